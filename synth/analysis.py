@@ -1,0 +1,317 @@
+"""Analysis of a design whose values are all given (``rnsynth check``).
+
+:func:`check` solves the network once by loop currents, measures every
+target and every part's current, voltage, dissipation and rating use, and
+optionally repeats the solve by modified nodal analysis to show the two agree.
+"""
+
+from __future__ import annotations
+
+__all__ = ["check", "CheckResult", "PartReport", "TargetReport", "target_reports", "resolve_values"]
+
+from collections.abc import Mapping
+from dataclasses import dataclass
+
+import numpy as np
+
+from synth.derating import derating_factor
+from synth.design import Design, Target
+from synth.errors import DesignError
+from synth.evaluate import Evaluation, Evaluator
+from synth.nodal import nodal_solve
+from synth.safety import power_cautions, voltage_cautions
+
+
+@dataclass(frozen=True)
+class PartReport:
+    """Stress of one part.
+
+    Attributes
+    ----------
+    ref, kind : str
+        Reference designator; ``"resistor"``, ``"voltage source"``,
+        ``"current source"`` or ``"regulator"``.
+    value : float
+        Ohm, V or A (a regulator: the output voltage it drives).
+    current : float
+        A, in the part's sign convention.
+    voltage : float
+        V across the part (absolute for resistors).
+    power : float
+        W dissipated (resistors) or delivered (sources).
+    package : str or None
+        Package name.
+    rated_power, allowed_power : float or None
+        W: package rating at its rated ambient; what the design allows after
+        derating at the design ambient times the margin.
+    utilization : float or None
+        ``power / allowed_power``; above 1 the part is over its allowance.
+    limiting_voltage, allowed_voltage : float or None
+        V: the package's limiting element voltage, and that times the
+        design's voltage margin.
+    voltage_utilization : float or None
+        ``voltage / allowed_voltage``.
+    """
+
+    ref: str
+    kind: str
+    value: float
+    current: float
+    voltage: float
+    power: float
+    package: str | None = None
+    rated_power: float | None = None
+    allowed_power: float | None = None
+    utilization: float | None = None
+    limiting_voltage: float | None = None
+    allowed_voltage: float | None = None
+    voltage_utilization: float | None = None
+
+
+@dataclass(frozen=True)
+class TargetReport:
+    """How one target came out.
+
+    Attributes
+    ----------
+    label, kind, unit : str
+        As in the design.
+    value : float
+        Achieved value.
+    goal : float or None
+        The ``equals`` value.
+    low, high : float
+        The hard window (``-inf``/``inf`` where open).
+    error : float or None
+        ``(value - goal) / |goal|`` when there is a goal (absolute error when
+        the goal is zero).
+    met : bool
+        True when the value lies inside the window.
+    """
+
+    label: str
+    kind: str
+    unit: str
+    value: float
+    goal: float | None
+    low: float
+    high: float
+    error: float | None
+    met: bool
+
+
+@dataclass(frozen=True)
+class CheckResult:
+    """Result of :func:`check`.
+
+    Attributes
+    ----------
+    design : Design
+    values : dict of str to float
+        Resistance used for each resistor, ohm.
+    nodes : dict of str to float
+        Node voltages, V.
+    parts : tuple of PartReport
+    targets : tuple of TargetReport
+    supply_current : float
+        A delivered by voltage sources and regulating elements (sum of magnitudes).
+    max_voltage : float
+        Largest voltage between any two nodes, V.
+    cautions : tuple of str
+    problems : tuple of str
+        One line per part over its allowance or target missed.
+    verify_difference : float or None
+        Largest difference between mesh and nodal results, relative to the
+        largest voltage or current (None unless ``verify``).
+    """
+
+    design: Design
+    values: dict[str, float]
+    nodes: dict[str, float]
+    parts: tuple[PartReport, ...]
+    targets: tuple[TargetReport, ...]
+    supply_current: float
+    max_voltage: float
+    cautions: tuple[str, ...]
+    problems: tuple[str, ...]
+    verify_difference: float | None
+
+    @property
+    def ok(self) -> bool:
+        """True when every target is met and every part is within its allowance."""
+        return not self.problems
+
+
+def _error(target: Target, value: float) -> float | None:
+    if target.equals is None:
+        return None
+    if target.equals == 0:
+        return value
+    return (value - target.equals) / abs(target.equals)
+
+
+def target_reports(design: Design, values: np.ndarray) -> tuple[TargetReport, ...]:
+    """Build :class:`TargetReport` rows from one candidate's target values."""
+    rows = []
+    for target, value in zip(design.targets, values, strict=True):
+        low, high = target.bounds
+        rows.append(TargetReport(
+            label=target.label, kind=target.kind, unit=target.unit, value=float(value),
+            goal=target.equals, low=low, high=high, error=_error(target, float(value)),
+            met=bool(low <= value <= high) and bool(np.isfinite(value)),
+        ))
+    return tuple(rows)
+
+
+def resolve_values(design: Design, given: Mapping[str, float] | None = None) -> np.ndarray:
+    """Resistance of every resistor for a check, ohm, in design order.
+
+    Parameters
+    ----------
+    design : Design
+    given : mapping, optional
+        Values by reference designator that override the file (e.g. ideal values).
+
+    Raises
+    ------
+    DesignError
+        When a free part has neither a ``value`` nor an entry in ``given``.
+    """
+    given = dict(given or {})
+    missing = [r.ref for r in design.resistors if r.value is None and r.ref not in given]
+    if missing:
+        raise DesignError(
+            f"{design.origin}: {', '.join(missing)} still need a value for check; add value = "
+            "\"...\" to each or run rnsynth design to choose them"
+        )
+    return np.array([given.get(r.ref, r.value) for r in design.resistors], dtype=float)
+
+
+def _part_reports(design: Design, ev: Evaluator, r: np.ndarray,
+                  result: Evaluation) -> list[PartReport]:
+    sol = result.solution
+    parts = []
+    for k, resistor in enumerate(design.resistors):
+        rating = design.rating(resistor)
+        power = float(result.resistor_power[0, k])
+        across = float(result.resistor_voltage[0, k])
+        allowed = None if rating is None else float(ev.allowed_power[k])
+        allowed_v = None if rating is None else float(ev.allowed_voltage[k])
+        parts.append(PartReport(
+            ref=resistor.ref, kind="resistor", value=float(r[k]),
+            current=float(sol.branch_currents[0, k]), voltage=across, power=power,
+            package=resistor.package,
+            rated_power=None if rating is None else rating.rated_power_w,
+            allowed_power=allowed,
+            utilization=None if allowed is None else (power / allowed if allowed > 0 else np.inf),
+            limiting_voltage=None if rating is None else rating.limiting_voltage_v,
+            allowed_voltage=allowed_v,
+            voltage_utilization=None if allowed_v is None else across / allowed_v,
+        ))
+    v = sol.node_voltages[0]
+    for source in design.sources:
+        col = ev.branch_index[source.ref]
+        current = float(sol.branch_currents[0, col])
+        a, b = ev.node_index[source.pos], ev.node_index[source.neg]
+        across = float(v[a] - v[b])
+        parts.append(PartReport(
+            ref=source.ref, kind=f"{source.kind} source", value=source.value, current=current,
+            voltage=across, power=current * across,
+        ))
+    for g, regulator in enumerate(design.regulators):
+        col = ev.branch_index[regulator.ref]
+        current = float(sol.branch_currents[0, col])
+        out = float(sol.regulator_outputs[0, g])
+        parts.append(PartReport(
+            ref=regulator.ref, kind="regulator", value=out, current=current, voltage=out,
+            power=current * out,
+        ))
+    return parts
+
+
+def check(design: Design, values: Mapping[str, float] | None = None,
+          verify: bool = False) -> CheckResult:
+    """Analyse a design whose resistor values are all known.
+
+    Parameters
+    ----------
+    design : Design
+        A validated design.
+    values : mapping, optional
+        Resistances by reference designator (ohm) overriding the file's values.
+    verify : bool
+        Also solve by modified nodal analysis and report the largest difference.
+
+    Returns
+    -------
+    CheckResult
+
+    Raises
+    ------
+    DesignError
+        When a part has no value, or a regulating element cannot regulate.
+
+    Examples
+    --------
+    >>> from synth.design import design_from_dict
+    >>> d = design_from_dict({
+    ...     "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+    ...                 "value": "12 V"}],
+    ...     "resistor": [{"ref": "R1", "nodes": ["in", "out"], "value": "10k"},
+    ...                  {"ref": "R2", "nodes": ["out", "gnd"], "value": "10k"}]})
+    >>> round(check(d).nodes["out"], 6)
+    6.0
+
+    Notes
+    -----
+    Allowed dissipation is the package's rated power, derated linearly from
+    its rated ambient (70 °C) to zero at its zero-power temperature (155 °C),
+    times the design margin (50 % by default; common practice).
+    """
+    r = resolve_values(design, values)
+    ev = Evaluator(design, typical_resistances=r)
+    ev.check_regulators(r)
+    result = ev.evaluate(r[None, :])
+    v = result.solution.node_voltages[0]
+    parts = _part_reports(design, ev, r, result)
+    targets = target_reports(design, result.targets[0])
+    problems = []
+    over_rating, over_margin = [], []
+    for part in parts:
+        if part.utilization is not None and part.utilization > 1:
+            rating = design.packages[part.package or ""]
+            full = rating.rated_power_w * float(derating_factor(
+                design.ambient_c, rating.rated_ambient_c, rating.zero_power_c))
+            (over_rating if part.power > full else over_margin).append(part.ref)
+            problems.append(f"{part.ref} dissipates {part.power:.4g} W, over its allowed "
+                            f"{part.allowed_power:.4g} W")
+        if part.voltage_utilization is not None and part.voltage_utilization > 1:
+            if part.ref not in over_margin + over_rating:
+                over_margin.append(part.ref)
+            problems.append(f"{part.ref} sees {part.voltage:.4g} V, over its allowed "
+                            f"{part.allowed_voltage:.4g} V")
+    for target in targets:
+        if not target.met:
+            problems.append(f"target {target.label} = {target.value:.6g} lies outside "
+                            f"{target.low:.6g}..{target.high:.6g}")
+    max_voltage = float(v.max() - v.min())
+    cautions = voltage_cautions(max_voltage) + power_cautions(over_rating, over_margin)
+    difference = None
+    if verify:
+        net, src = ev.network, ev.nominal_sources
+        other = nodal_solve(net, r[None, :], src.voltages, src.currents,
+                            src.setpoints if net.regulator_refs else None)
+        scale_v = max(float(np.abs(v).max()), 1e-300)
+        scale_i = max(float(np.abs(result.solution.branch_currents).max()), 1e-300)
+        difference = max(
+            float(np.abs(other.node_voltages - result.solution.node_voltages).max()) / scale_v,
+            float(np.abs(other.branch_currents - result.solution.branch_currents).max()) / scale_i,
+        )
+    return CheckResult(
+        design=design,
+        values={res.ref: float(r[k]) for k, res in enumerate(design.resistors)},
+        nodes={name: float(v[k]) for k, name in enumerate(ev.network.nodes)},
+        parts=tuple(parts), targets=targets,
+        supply_current=float(result.supply_current[0]), max_voltage=max_voltage,
+        cautions=tuple(cautions), problems=tuple(problems), verify_difference=difference,
+    )

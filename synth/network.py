@@ -1,0 +1,219 @@
+"""The electrical graph of a design, and the topology rules a solvable one obeys.
+
+A :class:`Network` numbers the nodes (ground is node 0) and lists the
+branches by kind: resistors, independent voltage sources, independent current
+sources and regulating elements.  Branch orientation is fixed here once and
+used by both solvers:
+
+* resistor: from ``nodes[0]`` to ``nodes[1]``;
+* voltage source: from ``minus`` to ``plus`` (its current is the current it
+  delivers, out of ``plus``);
+* current source: from ``from`` to ``to``;
+* regulating element: from ground to ``output``.
+
+A linear DC network has a unique solution when every node reaches ground,
+no loop consists of voltage-defined branches only and no cut consists of
+current sources only.  :func:`build_network` refuses the others with the
+parts named.
+"""
+
+from __future__ import annotations
+
+__all__ = ["Network", "build_network", "UnionFind"]
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from synth.design import Design
+from synth.errors import DesignError, nearest_name
+
+
+class UnionFind:
+    """Disjoint sets over ``0 .. n-1`` (path halving, union by size)."""
+
+    def __init__(self, n: int):
+        self.parent = list(range(n))
+        self.size = [1] * n
+
+    def find(self, x: int) -> int:
+        while self.parent[x] != x:
+            self.parent[x] = self.parent[self.parent[x]]
+            x = self.parent[x]
+        return x
+
+    def union(self, a: int, b: int) -> bool:
+        """Join the sets of ``a`` and ``b``; False when they were already one."""
+        ra, rb = self.find(a), self.find(b)
+        if ra == rb:
+            return False
+        if self.size[ra] < self.size[rb]:
+            ra, rb = rb, ra
+        self.parent[rb] = ra
+        self.size[ra] += self.size[rb]
+        return True
+
+
+@dataclass(frozen=True)
+class Network:
+    """Nodes and oriented branches of a circuit.
+
+    Attributes
+    ----------
+    origin : str
+        Where the design came from, for messages.
+    nodes : tuple of str
+        Node names; ``nodes[0]`` is ground.
+    resistor_refs, vsource_refs, isource_refs, regulator_refs : tuple of str
+        Reference designators by branch kind.
+    resistor_ends, vsource_ends, isource_ends, regulator_ends : numpy.ndarray
+        ``(count, 2)`` node indices ``[n0, n1]`` in the orientation above.
+    regulator_sense : numpy.ndarray
+        ``(regulators, 2)`` node indices ``[sense, reference]``.
+    """
+
+    origin: str
+    nodes: tuple[str, ...]
+    resistor_refs: tuple[str, ...]
+    resistor_ends: np.ndarray
+    vsource_refs: tuple[str, ...]
+    vsource_ends: np.ndarray
+    isource_refs: tuple[str, ...]
+    isource_ends: np.ndarray
+    regulator_refs: tuple[str, ...] = ()
+    regulator_ends: np.ndarray = field(default_factory=lambda: np.zeros((0, 2), dtype=int))
+    regulator_sense: np.ndarray = field(default_factory=lambda: np.zeros((0, 2), dtype=int))
+
+    @property
+    def branch_refs(self) -> tuple[str, ...]:
+        """All branches in solver order: resistors, voltage sources, current sources, regulators."""
+        return self.resistor_refs + self.vsource_refs + self.isource_refs + self.regulator_refs
+
+    @property
+    def branch_ends(self) -> np.ndarray:
+        """``(branches, 2)`` node indices in :attr:`branch_refs` order."""
+        return np.concatenate(
+            [self.resistor_ends, self.vsource_ends, self.isource_ends, self.regulator_ends]
+        ).astype(int)
+
+    def node_index(self, name: str) -> int:
+        """Index of a node by name."""
+        return self.nodes.index(name)
+
+    def with_test_source(self, plus: str, minus: str) -> Network:
+        """This network plus a current source ``TEST`` driving 1 A into ``plus`` from ``minus``.
+
+        Solved with every other source set to zero it gives the resistance
+        seen between the two nodes: ``V(plus) - V(minus)`` in ohm.
+        """
+        ends = np.array([[self.node_index(minus), self.node_index(plus)]])
+        return Network(
+            origin=self.origin, nodes=self.nodes,
+            resistor_refs=self.resistor_refs, resistor_ends=self.resistor_ends,
+            vsource_refs=self.vsource_refs, vsource_ends=self.vsource_ends,
+            isource_refs=self.isource_refs + ("TEST",),
+            isource_ends=np.concatenate([self.isource_ends, ends]).astype(int),
+            regulator_refs=self.regulator_refs, regulator_ends=self.regulator_ends,
+            regulator_sense=self.regulator_sense,
+        )
+
+
+def _ends(pairs: list[tuple[int, int]]) -> np.ndarray:
+    return np.array(pairs, dtype=int).reshape(-1, 2)
+
+
+def build_network(design: Design) -> Network:
+    """Number the nodes of a design and check that its circuit has one solution.
+
+    Parameters
+    ----------
+    design : Design
+        A validated design.
+
+    Returns
+    -------
+    Network
+
+    Raises
+    ------
+    DesignError
+        When a node or island does not reach ground, when voltage sources
+        (or regulating elements) form a loop, or when a group of nodes is fed
+        only through current sources (a cut of current sources).
+    """
+    names = [design.ground]
+    for s in design.sources:
+        names += [s.neg, s.pos]
+    for r in design.resistors:
+        names += list(r.nodes)
+    for g in design.regulators:
+        names.append(g.output)
+    nodes = tuple(dict.fromkeys(names))
+    index = {n: i for i, n in enumerate(nodes)}
+    origin = design.origin
+    for g in design.regulators:
+        if g.output == design.ground:
+            raise DesignError(f"{origin}, regulator {g.ref}: output is the ground node; "
+                              "name the node it drives")
+        for role, node in (("sense", g.sense), ("reference", g.reference)):
+            if node not in index:
+                raise DesignError(f"{origin}, regulator {g.ref}: {role} node {node!r} touches "
+                                  f"no part{nearest_name(node, nodes)}; name a node of the circuit")
+    vsources = [s for s in design.sources if s.kind == "voltage"]
+    isources = [s for s in design.sources if s.kind == "current"]
+    network = Network(
+        origin=origin,
+        nodes=nodes,
+        resistor_refs=tuple(r.ref for r in design.resistors),
+        resistor_ends=_ends([(index[r.nodes[0]], index[r.nodes[1]]) for r in design.resistors]),
+        vsource_refs=tuple(s.ref for s in vsources),
+        vsource_ends=_ends([(index[s.neg], index[s.pos]) for s in vsources]),
+        isource_refs=tuple(s.ref for s in isources),
+        isource_ends=_ends([(index[s.neg], index[s.pos]) for s in isources]),
+        regulator_refs=tuple(g.ref for g in design.regulators),
+        regulator_ends=_ends([(0, index[g.output]) for g in design.regulators]),
+        regulator_sense=_ends([(index[g.sense], index[g.reference]) for g in design.regulators]),
+    )
+    check_topology(network)
+    return network
+
+
+def check_topology(network: Network) -> None:
+    """Refuse a network without a unique DC solution (see :func:`build_network`)."""
+    n = len(network.nodes)
+    refs, ends = network.branch_refs, network.branch_ends
+    origin, names = network.origin, network.nodes
+    kinds = (["resistor"] * len(network.resistor_refs) + ["voltage"] * len(network.vsource_refs)
+             + ["current"] * len(network.isource_refs) + ["voltage"] * len(network.regulator_refs))
+
+    every = UnionFind(n)
+    for a, b in ends:
+        every.union(int(a), int(b))
+    stranded = [i for i in range(n) if every.find(i) != every.find(0)]
+    if stranded:
+        island = [names[i] for i in stranded]
+        parts = sorted({refs[k] for k, (a, b) in enumerate(ends) if a in stranded or b in stranded})
+        raise DesignError(f"{origin}: node(s) {', '.join(island)} (parts {', '.join(parts)}) "
+                          f"have no path to ground {names[0]!r}; connect them to the rest")
+
+    voltage_defined = UnionFind(n)
+    for k, (a, b) in enumerate(ends):
+        if kinds[k] == "voltage" and not voltage_defined.union(int(a), int(b)):
+            loop = [refs[j] for j in range(k + 1) if kinds[j] == "voltage"]
+            raise DesignError(f"{origin}, {refs[k]}: voltage sources and regulator outputs "
+                              f"{', '.join(loop)} close a "
+                              f"loop through nodes {names[a]!r} and {names[b]!r} with no "
+                              "resistor in it; remove one or add a resistor in series")
+
+    without_current = UnionFind(n)
+    for k, (a, b) in enumerate(ends):
+        if kinds[k] != "current":
+            without_current.union(int(a), int(b))
+    fed = [i for i in range(n) if without_current.find(i) != without_current.find(0)]
+    if fed:
+        cut = [names[i] for i in fed]
+        sources = sorted({refs[k] for k, (a, b) in enumerate(ends)
+                          if kinds[k] == "current" and ((a in fed) != (b in fed))})
+        raise DesignError(f"{origin}: node(s) {', '.join(cut)} are reached only through current "
+                          f"source(s) {', '.join(sources)}, a cut of current sources with no "
+                          "defined voltage; add a resistor from them to the rest")

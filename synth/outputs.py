@@ -1,0 +1,54 @@
+"""Writing files atomically, so a failed run never leaves a half-written output."""
+
+from __future__ import annotations
+
+__all__ = ["write_atomic"]
+
+import os
+import tempfile
+from pathlib import Path
+
+from synth.errors import DesignError
+
+
+def write_atomic(path: str | Path, text: str, *, force: bool = False) -> Path:
+    """Write ``text`` to ``path`` through a temporary file renamed into place.
+
+    Parameters
+    ----------
+    path : str or Path
+        Destination file.
+    text : str
+        Content (UTF-8).
+    force : bool
+        Replace an existing file; without it an existing file is refused.
+
+    Returns
+    -------
+    Path
+        The destination.
+
+    Raises
+    ------
+    DesignError
+        When the file exists and ``force`` is not set, or the folder is missing
+        or not writable.
+    """
+    target = Path(path)
+    if target.exists() and not force:
+        raise DesignError(f"{target}: already exists; pass --force to replace it")
+    folder = target.parent if str(target.parent) else Path(".")
+    if not folder.is_dir():
+        raise DesignError(f"{target}: folder {folder} does not exist; create it first")
+    try:
+        handle, temp = tempfile.mkstemp(prefix=f".{target.name}.", dir=folder)
+    except OSError as exc:
+        raise DesignError(f"{target}: cannot write there ({exc.strerror})") from None
+    try:
+        with os.fdopen(handle, "w", encoding="utf-8", newline="") as stream:
+            stream.write(text)
+        os.replace(temp, target)
+    except BaseException:
+        Path(temp).unlink(missing_ok=True)
+        raise
+    return target
