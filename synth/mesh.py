@@ -184,6 +184,17 @@ class MeshSolver:
         self._q_matrix = (self._d_r[:, None, :] * self._b_ur[None, :, :]).reshape(
             self.n_g * self.n_u, self.n_r
         )
+        self._map_z = _SparseMap(self._pair_matrix)
+        self._map_uv = _SparseMap(self._b_uv)
+        self._map_neg_ur = _SparseMap(-self._b_ur)
+        self._map_kr_t = _SparseMap(self._b_kr.T)
+        self._map_u_t = _SparseMap(self._b_u.T)
+        self._map_k_t = _SparseMap(self._b_k.T)
+        self._map_path_r = _SparseMap(self._path_r)
+        self._map_neg_path_v = _SparseMap(-self._path_v)
+        self._map_neg_path_g = _SparseMap(-self._path_g)
+        self._work: dict[str, np.ndarray] = {}
+        self._work_size = -1
         self.tree_branches = tuple(network.branch_refs[b] for b in np.flatnonzero(in_tree))
 
     @property
@@ -218,12 +229,21 @@ class MeshSolver:
         -------
         MeshSolution
         """
-        parts = list(self.iter_solve(resistances, voltages, currents, setpoints, chunk))
-        return MeshSolution(
-            node_voltages=np.concatenate([p.node_voltages for p in parts]),
-            branch_currents=np.concatenate([p.branch_currents for p in parts]),
-            regulator_outputs=np.concatenate([p.regulator_outputs for p in parts]),
+        r_all = np.asarray(resistances, dtype=float)
+        n = 1 if r_all.ndim == 1 else len(r_all)
+        result = MeshSolution(
+            node_voltages=np.empty((n, len(self.network.nodes))),
+            branch_currents=np.empty((n, len(self.network.branch_refs))),
+            regulator_outputs=np.empty((n, self.n_g)),
         )
+        start = 0
+        for part in self.iter_solve(r_all, voltages, currents, setpoints, chunk):
+            stop = start + len(part.node_voltages)
+            result.node_voltages[start:stop] = part.node_voltages
+            result.branch_currents[start:stop] = part.branch_currents
+            result.regulator_outputs[start:stop] = part.regulator_outputs
+            start = stop
+        return result
 
     def iter_solve(
         self,
@@ -236,7 +256,9 @@ class MeshSolver:
         """Solve block by block, yielding one :class:`MeshSolution` per block.
 
         Same parameters as :meth:`solve`; use this to keep memory bounded when
-        only a reduction of the results is kept.
+        only a reduction of the results is kept.  Each yielded solution holds
+        views of the solver's work arrays: it is valid until the next block is
+        requested, so copy what must outlive that.
         """
         r_all = np.asarray(resistances, dtype=float)
         if r_all.ndim == 1:
@@ -254,16 +276,19 @@ class MeshSolver:
             def rows(a: np.ndarray) -> np.ndarray:
                 return a[pick] if len(a) == n and n > 1 else np.broadcast_to(a[:1], (stop - start, a.shape[1]))
 
+            work = self._workspace(stop - start)
             v_t, i_t, g_t = self.solve_block(
                 np.ascontiguousarray(r_all[pick].T),
                 np.ascontiguousarray(rows(e_all).T),
                 np.ascontiguousarray(rows(j_all).T),
                 np.ascontiguousarray(rows(s_all).T),
+                out=(work["voltages"], work["currents"], work["outputs"]),
             )
             yield MeshSolution(node_voltages=v_t.T, branch_currents=i_t.T, regulator_outputs=g_t.T)
 
     def solve_block(
-        self, r: np.ndarray, e: np.ndarray, j: np.ndarray, s: np.ndarray
+        self, r: np.ndarray, e: np.ndarray, j: np.ndarray, s: np.ndarray,
+        out: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None,
     ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """Solve one block in entity-first layout (the fast inner routine).
 
@@ -274,6 +299,9 @@ class MeshSolver:
         e, j, s : numpy.ndarray
             ``(voltage sources, M)`` V, ``(current sources, M)`` A and
             ``(regulators, M)`` V.
+        out : tuple of numpy.ndarray, optional
+            Arrays to write the three results into (shapes as returned);
+            fresh arrays when omitted.
 
         Returns
         -------
@@ -281,30 +309,64 @@ class MeshSolver:
             ``(nodes, M)`` V, ``(branches, M)`` A and ``(regulators, M)`` V.
         """
         m = r.shape[1]
-        known_r = self._b_kr.T @ j if self.n_i else np.zeros((self.n_r, m))
-        r_known = r * known_r if self.n_i else known_r
-        rhs = np.empty((self.n_u, 1 + self.n_g, m))
-        rhs[:, 0] = self._b_uv @ e - self._b_ur @ r_known
+        if out is None:
+            out = (np.empty((len(self.network.nodes), m)),
+                   np.empty((len(self.network.branch_refs), m)), np.empty((self.n_g, m)))
+        voltages, currents, outputs = out
+        work = self._workspace(m)
+        rhs = work["rhs"]
+        main = rhs[:, 0] if self.n_g else rhs
+        self._map_uv.apply(e, out=main)
+        r_known = None
+        if self.n_i:
+            r_known = r * self._map_kr_t.apply(j)
+            self._map_neg_ur.apply(r_known, out=main, accumulate=True)
         if self.n_g:
             rhs[:, 1:] = self._b_ug[:, :, None]
-        z = self._pair_matrix @ r
-        loop_parts = _ldl_solve(z, rhs, self.n_u, self._pair_index)
-        loop_i = loop_parts[:, 0]
+        z = self._map_z.apply(r, out=work["z"])
+        parts = _ldl_solve(z, rhs, self.n_u, self._pair_index, work)
         if self.n_g:
-            outputs = self._regulator_outputs(r, e, s, loop_parts, r_known)
-            loop_i = loop_i + np.einsum("ugm,gm->um", loop_parts[:, 1:], outputs)
+            if r_known is None:
+                r_known = np.zeros_like(r)
+            outputs[...] = self._regulator_outputs(r, e, s, parts, r_known)
+            loop_i = parts[:, 0] + np.einsum("ugm,gm->um", parts[:, 1:], outputs)
         else:
-            outputs = np.zeros((0, m))
-        currents = self._b_u.T @ loop_i
+            loop_i = parts
+        self._map_u_t.apply(loop_i, out=currents)
         if self.n_i:
-            currents += self._b_k.T @ j
-        drops = r * currents[: self.n_r]
-        voltages = self._path_r @ drops
+            self._map_k_t.apply(j, out=currents, accumulate=True)
+        drops = np.multiply(r, currents[: self.n_r], out=work["drops"])
+        self._map_path_r.apply(drops, out=voltages)
         if self.n_v:
-            voltages -= self._path_v @ e
+            self._map_neg_path_v.apply(e, out=voltages, accumulate=True)
         if self.n_g:
-            voltages -= self._path_g @ outputs
+            self._map_neg_path_g.apply(outputs, out=voltages, accumulate=True)
         return voltages, currents, outputs
+
+    def _workspace(self, m: int) -> dict[str, np.ndarray]:
+        """Scratch arrays for blocks of ``m`` candidates, kept between calls.
+
+        Reusing them avoids fresh page-faulted memory on every block, which
+        otherwise costs more than the arithmetic.  (One solver object should
+        not be shared between threads.)
+        """
+        if self._work_size != m:
+            columns = (1 + self.n_g,) if self.n_g else ()
+            rhs_shape = (self.n_u, *columns, m)
+            self._work = {
+                "rhs": np.empty(rhs_shape),
+                "z": np.empty((len(self._pairs), m)),
+                "inverse": np.empty((self.n_u, m)),
+                "factor": np.empty(m),
+                "scratch": np.empty(m),
+                "rhs_scratch": np.empty((*columns, m)),
+                "drops": np.empty((self.n_r, m)),
+                "voltages": np.empty((len(self.network.nodes), m)),
+                "currents": np.empty((len(self.network.branch_refs), m)),
+                "outputs": np.empty((self.n_g, m)),
+            }
+            self._work_size = m
+        return self._work
 
     def _regulator_outputs(
         self, r: np.ndarray, e: np.ndarray, s: np.ndarray, parts: np.ndarray, r_known: np.ndarray
@@ -323,21 +385,69 @@ class MeshSolver:
         return np.linalg.solve(lhs.transpose(2, 0, 1), rhs.T[:, :, None])[:, :, 0].T
 
 
+class _SparseMap:
+    """``out = A @ X`` for a small constant matrix A with few non-zeros.
+
+    Network matrices hold mostly 0 and ±1, so summing the few rows of X that
+    matter with in-place ufuncs beats a general matrix product on short
+    inner dimensions, and allocates nothing per row.
+    """
+
+    def __init__(self, matrix: np.ndarray):
+        self.shape = matrix.shape
+        self.terms = [
+            [(int(k), float(matrix[row, k])) for k in np.flatnonzero(matrix[row])]
+            for row in range(matrix.shape[0])
+        ]
+
+    def apply(self, x: np.ndarray, out: np.ndarray | None = None,
+              accumulate: bool = False) -> np.ndarray:
+        """Return ``A @ x`` (``x`` is ``(cols, M)``); add into ``out`` when ``accumulate``."""
+        if out is None:
+            out = np.zeros((self.shape[0], x.shape[1]))
+            accumulate = True
+        for row, terms in enumerate(self.terms):
+            target = out[row]
+            if not accumulate:
+                if not terms:
+                    target.fill(0.0)
+                    continue
+                k, c = terms[0]
+                if c == 1.0:
+                    target[...] = x[k]
+                else:
+                    np.multiply(x[k], c, out=target)
+                rest = terms[1:]
+            else:
+                rest = terms
+            for k, c in rest:
+                if c == 1.0:
+                    np.add(target, x[k], out=target)
+                elif c == -1.0:
+                    np.subtract(target, x[k], out=target)
+                else:
+                    target += c * x[k]
+        return out
+
+
 def _ldl_solve(
-    z: np.ndarray, rhs: np.ndarray, n: int, pair_index: dict[tuple[int, int], int]
+    z: np.ndarray, rhs: np.ndarray, n: int, pair_index: dict[tuple[int, int], int],
+    work: dict[str, np.ndarray] | None = None,
 ) -> np.ndarray:
     """Solve ``Z x = rhs`` for symmetric positive definite Z, per candidate.
 
     ``z`` holds the upper triangle, one row per entry ``(i, j)``, ``i <= j``,
     candidates along the last axis; ``rhs`` is ``(n, columns, M)``.  Both are
-    overwritten.  Gaussian elimination without pivoting is stable for SPD
+    overwritten; ``work`` may supply scratch arrays.  Gaussian elimination without pivoting is stable for SPD
     matrices (Golub & Van Loan, *Matrix Computations*, §4.2).
     """
     if n == 0:
         return rhs
-    inverse = np.empty((n, z.shape[1]))
-    factor = np.empty(z.shape[1])
-    scratch = np.empty(z.shape[1])
+    if work is None:
+        work = {"inverse": np.empty((n, z.shape[1])), "factor": np.empty(z.shape[1]),
+                "scratch": np.empty(z.shape[1]), "rhs_scratch": np.empty(rhs.shape[1:])}
+    inverse, factor = work["inverse"], work["factor"]
+    scratch, rhs_scratch = work["scratch"], work["rhs_scratch"]
     for k in range(n):
         np.divide(1.0, z[pair_index[k, k]], out=inverse[k])
         for i in range(k + 1, n):
@@ -345,9 +455,11 @@ def _ldl_solve(
             for jj in range(i, n):
                 np.multiply(factor, z[pair_index[k, jj]], out=scratch)
                 np.subtract(z[pair_index[i, jj]], scratch, out=z[pair_index[i, jj]])
-            rhs[i] -= factor * rhs[k]
+            np.multiply(rhs[k], factor, out=rhs_scratch)
+            np.subtract(rhs[i], rhs_scratch, out=rhs[i])
     for i in range(n - 1, -1, -1):
         for jj in range(i + 1, n):
-            rhs[i] -= z[pair_index[i, jj]] * rhs[jj]
-        rhs[i] *= inverse[i]
+            np.multiply(rhs[jj], z[pair_index[i, jj]], out=rhs_scratch)
+            np.subtract(rhs[i], rhs_scratch, out=rhs[i])
+        np.multiply(rhs[i], inverse[i], out=rhs[i])
     return rhs
