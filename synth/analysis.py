@@ -7,7 +7,7 @@ optionally repeats the solve by modified nodal analysis to show the two agree.
 
 from __future__ import annotations
 
-__all__ = ["check", "CheckResult", "PartReport", "TargetReport", "target_reports", "resolve_values"]
+__all__ = ["CheckResult", "PartReport", "TargetReport", "check", "resolve_values", "target_reports"]
 
 from collections.abc import Mapping
 from dataclasses import dataclass
@@ -114,7 +114,8 @@ class CheckResult:
     parts : tuple of PartReport
     targets : tuple of TargetReport
     supply_current : float
-        A delivered by voltage sources and regulating elements (sum of magnitudes).
+        A delivered by voltage sources and regulating elements (those that
+        absorb current count zero).
     max_voltage : float
         Largest voltage between any two nodes, V.
     cautions : tuple of str
@@ -276,7 +277,8 @@ def check(design: Design, values: Mapping[str, float] | None = None,
     parts = _part_reports(design, ev, r, result)
     targets = target_reports(design, result.targets[0])
     problems = []
-    over_rating, over_margin = [], []
+    over_rating: list[str] = []
+    over_margin: list[str] = []
     for part in parts:
         if part.utilization is not None and part.utilization > 1:
             rating = design.packages[part.package or ""]
@@ -299,8 +301,7 @@ def check(design: Design, values: Mapping[str, float] | None = None,
     difference = None
     if verify:
         net, src = ev.network, ev.nominal_sources
-        other = nodal_solve(net, r[None, :], src.voltages, src.currents,
-                            src.setpoints if net.regulator_refs else None)
+        other = nodal_solve(net, r[None, :], src.voltages, src.currents, src.setpoints)
         scale_v = max(float(np.abs(v).max()), 1e-300)
         scale_i = max(float(np.abs(result.solution.branch_currents).max()), 1e-300)
         difference = max(

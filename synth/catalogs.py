@@ -9,15 +9,15 @@ module only reads them; nothing here hard-codes a catalogue value.
 from __future__ import annotations
 
 __all__ = [
-    "Series",
     "PackageRating",
+    "Series",
     "catalog_dir",
-    "series_names",
-    "load_series",
-    "series_values",
-    "nearest_value",
     "load_package_table",
+    "load_series",
+    "nearest_value",
     "read_csv_rows",
+    "series_names",
+    "series_values",
 ]
 
 import csv
@@ -295,7 +295,7 @@ def _package_row(path: Path, number: int, row: dict[str, str]) -> PackageRating:
 
 
 @functools.cache
-def _cached_package_table(path: Path) -> dict[str, PackageRating]:
+def _cached_package_table(path: Path, _mtime_ns: int) -> dict[str, PackageRating]:
     table: dict[str, PackageRating] = {}
     for number, row in read_csv_rows(path):
         rating = _package_row(path, number, row)
@@ -325,7 +325,12 @@ def load_package_table(path: str | Path | None = None) -> dict[str, PackageRatin
     0.1
     """
     source = Path(path) if path is not None else catalog_dir() / "packages.csv"
-    table = dict(_cached_package_table(source.resolve()))
+    resolved = source.resolve()
+    try:
+        stamp = resolved.stat().st_mtime_ns
+    except OSError:
+        raise DesignError(f"{source}: package table not found; check the path") from None
+    table = dict(_cached_package_table(resolved, stamp))
     for rating in list(table.values()):
         if rating.metric and rating.metric not in table:
             table[rating.metric] = rating

@@ -6,7 +6,7 @@ a part over its allowance, no standard values meet the limits), 2 bad input.
 
 from __future__ import annotations
 
-__all__ = ["main", "cli"]
+__all__ = ["cli", "main"]
 
 import json
 import sys

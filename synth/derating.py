@@ -8,7 +8,7 @@ thick-film chips).  The design then keeps a margin below that curve.
 
 from __future__ import annotations
 
-__all__ = ["derating_factor", "allowed_power"]
+__all__ = ["allowed_power", "derating_factor"]
 
 import numpy as np
 from numpy.typing import ArrayLike

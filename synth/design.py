@@ -13,14 +13,14 @@ fix; nothing downstream has to re-check input.
 from __future__ import annotations
 
 __all__ = [
-    "Design",
-    "Source",
-    "Resistor",
-    "Regulator",
-    "Target",
-    "load_design",
-    "design_from_dict",
     "TARGET_KINDS",
+    "Design",
+    "Regulator",
+    "Resistor",
+    "Source",
+    "Target",
+    "design_from_dict",
+    "load_design",
 ]
 
 import math
@@ -53,7 +53,7 @@ _RESISTOR_KEYS = (
     "ref", "nodes", "value", "choose", "range", "tolerance", "tcr", "package", "combine", "note",
 )
 _REGULATOR_KEYS = ("ref", "output", "sense", "reference", "setpoint", "tolerance", "note")
-_TARGET_KEYS = TARGET_KINDS + ("name", "equals", "within", "at_least", "at_most", "note")
+_TARGET_KEYS = (*TARGET_KINDS, "name", "equals", "within", "at_least", "at_most", "note")
 
 _DEFAULT_TOLERANCE = "1%"
 _DEFAULT_TCR = "100 ppm/C"
@@ -315,7 +315,9 @@ class _Reader:
             self.fail(f"{key}: {exc}")
         raise AssertionError("unreachable")
 
-    def fraction(self, key: str, default: str, *, upper: float = 1.0, strict: bool = False) -> float:
+    def fraction(
+        self, key: str, default: str, *, upper: float = 1.0, strict: bool = False
+    ) -> float:
         value = self.parsed(key, parse_fraction, default)
         if value < 0 or value > upper or (strict and value == 0):
             low = "above 0 %" if strict else "0 %"
@@ -362,7 +364,8 @@ def _read_design_table(origin: str, raw: Any) -> dict[str, Any]:
             reader.fail('temperature must be a pair such as ["-20 C", "60 C"]')
         low, high = (parse_temperature_or_fail(reader, t) for t in span)
         if high < low:
-            reader.fail(f"temperature range {span[0]!r}..{span[1]!r} is empty; give the low end first")
+            reader.fail(f"temperature range {span[0]!r}..{span[1]!r} is empty; "
+                        "give the low end first")
         settings["temperature_c"] = (low, high)
     else:
         settings["temperature_c"] = (settings["ambient_c"], settings["ambient_c"])
@@ -481,7 +484,8 @@ def _read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
     tcr = reader.parsed("tcr", parse_tcr) if reader.has("tcr") else settings["default_tcr"]
     package = reader.text("package") if reader.has("package") else settings["default_package"]
     if package is not None and package not in packages:
-        reader.fail(f"package {package!r} is not in the package table{nearest_name(package, packages)}; "
+        hint = nearest_name(package, packages)
+        reader.fail(f"package {package!r} is not in the package table{hint}; "
                     f"use one of {', '.join(sorted(packages))} or add a row to your table")
     return Resistor(
         ref=ref, nodes=(a, b), value=value, choose=choose, stock_path=stock_path, range=span,
@@ -647,7 +651,8 @@ def design_from_dict(data: Mapping[str, Any], origin: str = "<design>") -> Desig
         raise DesignError(f"{origin}, [design]: package {name!r} is not in the package "
                           f"table{nearest_name(name, packages)}; use one of "
                           f"{', '.join(sorted(packages))}")
-    sources = tuple(_read_source(origin, i, s) for i, s in enumerate(_array(origin, data, "source"), 1))
+    sources = tuple(_read_source(origin, i, s)
+                    for i, s in enumerate(_array(origin, data, "source"), 1))
     resistors = tuple(_read_resistor(origin, i, r, settings, packages)
                       for i, r in enumerate(_array(origin, data, "resistor"), 1))
     regulators = tuple(_read_regulator(origin, i, g)

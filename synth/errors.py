@@ -9,7 +9,7 @@ an engineering answer, not a bug, and the command line exits 1 for it.
 
 from __future__ import annotations
 
-__all__ = ["RnsynthError", "DesignError", "InfeasibleError", "nearest_name"]
+__all__ = ["DesignError", "InfeasibleError", "RnsynthError", "nearest_name"]
 
 import difflib
 from collections.abc import Iterable

@@ -8,7 +8,7 @@ candidates.  Both ``check`` (one candidate) and the search use it.
 
 from __future__ import annotations
 
-__all__ = ["Evaluator", "Evaluation", "SourceValues"]
+__all__ = ["Evaluation", "Evaluator", "SourceValues"]
 
 from dataclasses import dataclass
 
@@ -56,8 +56,9 @@ class Evaluation:
     resistor_voltage : numpy.ndarray
         ``(N, resistors)`` V across each resistor (absolute).
     supply_current : numpy.ndarray
-        ``(N,)`` A: sum of the magnitudes of the currents delivered by voltage
-        sources and regulating elements.
+        ``(N,)`` A: sum of the currents delivered by voltage sources and
+        regulating elements (a source that absorbs current, such as a
+        forward-biased LED modelled as a voltage drop, counts zero).
     """
 
     solution: MeshSolution
@@ -108,7 +109,8 @@ class Evaluator:
             setpoints=np.array([g.setpoint for g in design.regulators]),
         )
         self._supply_columns = np.array(
-            [self.branch_index[ref] for ref in self.network.vsource_refs + self.network.regulator_refs],
+            [self.branch_index[ref]
+             for ref in (*self.network.vsource_refs, *self.network.regulator_refs)],
             dtype=int,
         )
 
@@ -135,7 +137,8 @@ class Evaluator:
             currents=test,
             setpoints=np.zeros(len(self.network.regulator_refs)),
         )
-        return sol.node_voltages[:, self.node_index[plus]] - sol.node_voltages[:, self.node_index[minus]]
+        v = sol.node_voltages
+        return v[:, self.node_index[plus]] - v[:, self.node_index[minus]]
 
     def evaluate(self, resistances: ArrayLike, sources: SourceValues | None = None) -> Evaluation:
         """Solve a block of candidates and measure every target and part.
@@ -153,8 +156,7 @@ class Evaluator:
         """
         r = np.atleast_2d(np.asarray(resistances, dtype=float))
         src = sources or self.nominal_sources
-        sol = self.solver.solve(r, src.voltages, src.currents,
-                                src.setpoints if len(self.network.regulator_refs) else None)
+        sol = self.solver.solve(r, src.voltages, src.currents, src.setpoints)
         n_r = len(self.network.resistor_refs)
         i_r = sol.branch_currents[:, :n_r]
         power = i_r * i_r * r
@@ -163,7 +165,7 @@ class Evaluator:
         targets = np.column_stack(
             [self._target_values(t, r, sol, power) for t in self.design.targets]
         ) if self.design.targets else np.zeros((len(r), 0))
-        supply = np.abs(sol.branch_currents[:, self._supply_columns]).sum(axis=1)
+        supply = np.clip(sol.branch_currents[:, self._supply_columns], 0.0, None).sum(axis=1)
         return Evaluation(solution=sol, targets=targets, resistor_power=power,
                           resistor_voltage=across, supply_current=supply)
 

@@ -28,7 +28,7 @@ loops).
 
 from __future__ import annotations
 
-__all__ = ["MeshSolver", "MeshSolution", "DEFAULT_CHUNK"]
+__all__ = ["DEFAULT_CHUNK", "MeshSolution", "MeshSolver"]
 
 from collections.abc import Iterator
 from dataclasses import dataclass
@@ -78,6 +78,14 @@ def _as_block(values: ArrayLike | None, count: int, n: int | None, what: str) ->
     return array
 
 
+def _block_rows(values: np.ndarray, pick: slice, n: int) -> np.ndarray:
+    """Entity-first block of per-candidate values, or the shared row repeated."""
+    if len(values) == n and n > 1:
+        return np.ascontiguousarray(values[pick].T)
+    count = pick.stop - pick.start
+    return np.ascontiguousarray(np.broadcast_to(values[:1], (count, values.shape[1])).T)
+
+
 class MeshSolver:
     """Loop-current solver for one network topology, reused for any values.
 
@@ -119,7 +127,6 @@ class MeshSolver:
                    else np.asarray(resistor_weights, dtype=float))
         r_slice = np.arange(self.n_r)
         v_slice = self.n_r + np.arange(self.n_v)
-        i_slice = self.n_r + self.n_v + np.arange(self.n_i)
         g_slice = self.n_r + self.n_v + self.n_i + np.arange(self.n_g)
 
         # Kruskal: voltage-defined branches first (they must all be tree branches),
@@ -138,7 +145,7 @@ class MeshSolver:
         # path matrix: V(node) = sum_t path[node, t] * v_t over tree branch voltages
         path = np.zeros((n_nodes, n_b))
         adjacency: dict[int, list[tuple[int, int]]] = {i: [] for i in range(n_nodes)}
-        for b in np.flatnonzero(in_tree):
+        for b in (int(x) for x in np.flatnonzero(in_tree)):
             a, c = int(ends[b, 0]), int(ends[b, 1])
             adjacency[a].append((c, b))
             adjacency[c].append((a, b))
@@ -176,7 +183,9 @@ class MeshSolver:
         self._pair_matrix = np.array(
             [self._b_ur[u] * self._b_ur[w] for u, w in self._pairs]
         ).reshape(len(self._pairs), self.n_r)
-        self._path_r, self._path_v, self._path_g = path[:, r_slice], path[:, v_slice], path[:, g_slice]
+        self._path_r = path[:, r_slice]
+        self._path_v = path[:, v_slice]
+        self._path_g = path[:, g_slice]
         sense = network.regulator_sense
         diff = path[sense[:, 0]] - path[sense[:, 1]] if self.n_g else np.zeros((0, n_b))
         self._d_r, self._d_v, self._d_g = diff[:, r_slice], diff[:, v_slice], diff[:, g_slice]
@@ -273,18 +282,16 @@ class MeshSolver:
             stop = min(start + chunk, n)
             pick = slice(start, stop)
 
-            def rows(a: np.ndarray) -> np.ndarray:
-                return a[pick] if len(a) == n and n > 1 else np.broadcast_to(a[:1], (stop - start, a.shape[1]))
-
             work = self._workspace(stop - start)
             v_t, i_t, g_t = self.solve_block(
                 np.ascontiguousarray(r_all[pick].T),
-                np.ascontiguousarray(rows(e_all).T),
-                np.ascontiguousarray(rows(j_all).T),
-                np.ascontiguousarray(rows(s_all).T),
+                _block_rows(e_all, pick, n),
+                _block_rows(j_all, pick, n),
+                _block_rows(s_all, pick, n),
                 out=(work["voltages"], work["currents"], work["outputs"]),
             )
-            yield MeshSolution(node_voltages=v_t.T, branch_currents=i_t.T, regulator_outputs=g_t.T)
+            yield MeshSolution(node_voltages=v_t.T, branch_currents=i_t.T,
+                               regulator_outputs=g_t.T)
 
     def solve_block(
         self, r: np.ndarray, e: np.ndarray, j: np.ndarray, s: np.ndarray,
@@ -438,7 +445,8 @@ def _ldl_solve(
 
     ``z`` holds the upper triangle, one row per entry ``(i, j)``, ``i <= j``,
     candidates along the last axis; ``rhs`` is ``(n, columns, M)``.  Both are
-    overwritten; ``work`` may supply scratch arrays.  Gaussian elimination without pivoting is stable for SPD
+    overwritten; ``work`` may supply scratch arrays.  Gaussian elimination
+    without pivoting is stable for SPD
     matrices (Golub & Van Loan, *Matrix Computations*, §4.2).
     """
     if n == 0:

@@ -19,7 +19,7 @@ parts named.
 
 from __future__ import annotations
 
-__all__ = ["Network", "build_network", "UnionFind"]
+__all__ = ["Network", "UnionFind", "build_network"]
 
 from dataclasses import dataclass, field
 
@@ -111,7 +111,7 @@ class Network:
             origin=self.origin, nodes=self.nodes,
             resistor_refs=self.resistor_refs, resistor_ends=self.resistor_ends,
             vsource_refs=self.vsource_refs, vsource_ends=self.vsource_ends,
-            isource_refs=self.isource_refs + ("TEST",),
+            isource_refs=(*self.isource_refs, "TEST"),
             isource_ends=np.concatenate([self.isource_ends, ends]).astype(int),
             regulator_refs=self.regulator_refs, regulator_ends=self.regulator_ends,
             regulator_sense=self.regulator_sense,

@@ -78,7 +78,8 @@ def nodal_solve(
     r = r[None, :] if r.ndim == 1 else r
     n = len(r)
     n_nodes = len(network.nodes)
-    n_v, n_i, n_g = len(network.vsource_refs), len(network.isource_refs), len(network.regulator_refs)
+    n_v, n_i = len(network.vsource_refs), len(network.isource_refs)
+    n_g = len(network.regulator_refs)
     e, j, s = _rows(voltages, n_v, n), _rows(currents, n_i, n), _rows(setpoints, n_g, n)
     inc_r = _incidence(network.resistor_ends, n_nodes)[1:]
     inc_v = _incidence(network.vsource_ends, n_nodes)[1:]

@@ -6,7 +6,7 @@ JSON-ready dicts; printing and file writing stay in the command line.
 
 from __future__ import annotations
 
-__all__ = ["check_text", "check_json", "json_number", "target_json", "part_json", "window_text"]
+__all__ = ["check_json", "check_text", "json_number", "part_json", "target_json", "window_text"]
 
 import math
 from typing import Any

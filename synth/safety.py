@@ -7,7 +7,7 @@ local codes and licensed practice.
 
 from __future__ import annotations
 
-__all__ = ["voltage_cautions", "power_cautions", "DISCLAIMER"]
+__all__ = ["DISCLAIMER", "power_cautions", "voltage_cautions"]
 
 from synth.units import format_eng
 

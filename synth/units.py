@@ -15,15 +15,15 @@ Callers add the file and item to that message.
 from __future__ import annotations
 
 __all__ = [
-    "parse_resistance",
-    "parse_quantity",
+    "format_eng",
+    "format_percent",
+    "format_rkm",
+    "parse_decibels",
     "parse_fraction",
+    "parse_quantity",
+    "parse_resistance",
     "parse_tcr",
     "parse_temperature",
-    "parse_decibels",
-    "format_eng",
-    "format_rkm",
-    "format_percent",
 ]
 
 import math
@@ -357,7 +357,7 @@ def format_rkm(ohms: float, digits: int = 3) -> str:
         return "0R"
     rounded = float(f"{ohms:.{digits}g}")
     for letter, factor in (("T", 1e12), ("G", 1e9), ("M", 1e6), ("K", 1e3), ("R", 1.0)):
-        if rounded >= factor or letter == "R" and rounded >= 1e-2:
+        if rounded >= factor or (letter == "R" and rounded >= 1e-2):
             break
     else:
         letter, factor = "L", 1e-3

@@ -1,0 +1,36 @@
+"""Shared test helpers: designs built in memory."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from synth.design import design_from_dict
+
+ROOT = Path(__file__).resolve().parent.parent
+EXAMPLES = sorted((ROOT / "examples").glob("*.toml"))
+
+
+def divider(top="10k", bottom="10k", supply="10 V", **extra_design):
+    """A two-resistor divider design."""
+    return design_from_dict({
+        "design": {"title": "divider", **extra_design},
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "value": supply}],
+        "resistor": [{"ref": "R1", "nodes": ["in", "out"], "value": top, "package": "0603"},
+                     {"ref": "R2", "nodes": ["out", "gnd"], "value": bottom,
+                      "package": "0603"}],
+    })
+
+
+@pytest.fixture
+def tmp_design(tmp_path):
+    """Write design text to a file and return its path."""
+
+    def write(text: str, name: str = "design.toml") -> Path:
+        path = tmp_path / name
+        path.write_text(text, encoding="utf-8")
+        return path
+
+    return write

@@ -1,0 +1,53 @@
+"""Independent reference solvers for the tests (exact, with sympy rationals).
+
+Written separately from synth.mesh and synth.nodal: a plain textbook nodal
+analysis with Kirchhoff's current law at every node, solved exactly by
+sympy's LU solve over rationals (sympy's Matrix.LUsolve documentation).
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+
+import sympy
+
+
+def exact_nodal(nodes, resistors, vsources=(), isources=()):
+    """Solve a DC network exactly.
+
+    nodes: list of names, nodes[0] is ground.
+    resistors: list of (a, b, ohms); current counted a -> b.
+    vsources: list of (plus, minus, volts).
+    isources: list of (frm, to, amps): amps flow through the source into `to`.
+    Returns (node voltage dict, resistor currents list, vsource delivered currents list),
+    all as sympy Rationals.
+    """
+    index = {n: k for k, n in enumerate(nodes)}
+    unknown_v = [sympy.Symbol(f"v_{k}") for k in range(1, len(nodes))]
+    unknown_i = [sympy.Symbol(f"i_{k}") for k in range(len(vsources))]
+
+    def volt(name):
+        k = index[name]
+        return 0 if k == 0 else unknown_v[k - 1]
+
+    leaving = {n: 0 for n in nodes}
+    for a, b, ohms in resistors:
+        current = (volt(a) - volt(b)) / sympy.Rational(Fraction(ohms))
+        leaving[a] += current
+        leaving[b] -= current
+    for k, (plus, minus, _) in enumerate(vsources):
+        leaving[plus] -= unknown_i[k]  # delivered current leaves the source at plus
+        leaving[minus] += unknown_i[k]
+    for frm, to, amps in isources:
+        value = sympy.Rational(Fraction(amps))
+        leaving[to] -= value
+        leaving[frm] += value
+    equations = [sympy.Eq(leaving[n], 0) for n in nodes[1:]]
+    equations += [sympy.Eq(volt(p) - volt(m), sympy.Rational(Fraction(v)))
+                  for p, m, v in vsources]
+    solution = sympy.solve(equations, unknown_v + unknown_i, dict=True, rational=True)[0]
+    voltages = {n: (sympy.Integer(0) if index[n] == 0 else solution[unknown_v[index[n] - 1]])
+                for n in nodes}
+    currents = [(voltages[a] - voltages[b]) / sympy.Rational(Fraction(r)) for a, b, r in resistors]
+    delivered = [solution[i] for i in unknown_i]
+    return voltages, currents, delivered

@@ -1,0 +1,90 @@
+"""The command line, end to end with click's CliRunner."""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+from click.testing import CliRunner
+
+from synth import __version__
+from synth.cli import cli
+
+from conftest import EXAMPLES
+
+
+def run(*args):
+    return CliRunner().invoke(cli, list(args))
+
+
+def test_version_and_help():
+    result = run("--version")
+    assert result.exit_code == 0 and __version__ in result.output
+    assert run("--help").exit_code == 0
+    for command in cli.commands:
+        result = run(command, "--help")
+        assert result.exit_code == 0 and "Usage" in result.output
+
+
+def test_series_listing_and_json():
+    result = run("series", "E96", "--range", "1k:10k", "--json")
+    values = json.loads(result.output)
+    assert result.exit_code == 0 and len(values) == 97 and values[:3] == [1000.0, 1020.0, 1050.0]
+    text = run("series", "E12", "--range", "1k:2k").output
+    assert "1.2 kΩ  1K2" in text
+    assert json.loads(run("series", "e24", "--nearest", "1563", "--json").output) == [1600.0]
+
+
+@pytest.mark.parametrize(("args", "fragment"), [
+    (("series", "E96", "--range", "10k:1k"), "is empty or not positive"),
+    (("series", "E96", "--range", "1k"), "separated by a colon"),
+    (("series", "E96", "--nearest", "abc"), "--nearest: 'abc' is not a resistance"),
+])
+def test_series_bad_options(args, fragment):
+    result = run(*args)
+    assert result.exit_code == 2 and fragment in result.stderr
+
+
+def test_unknown_series_is_a_usage_error():
+    result = run("series", "E97")
+    assert result.exit_code == 2 and "E97" in result.output + result.stderr
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.name)
+def test_examples_check_cleanly(path):
+    result = run("check", str(path), "--verify")
+    assert result.exit_code == 0, result.output
+    assert "all targets met" in result.output
+    assert "mesh and nodal solves differ by at most" in result.output
+
+
+def test_check_json_fields():
+    path = next(p for p in EXAMPLES if p.name == "greenhouse_probe.toml")
+    result = run("check", str(path), "--json", "--verify")
+    doc = json.loads(result.output)
+    assert doc["ok"] is True
+    assert set(doc["nodes"]) == {"gnd", "vbat", "sense"} and doc["nodes"]["vbat"] == 13.8
+    for part in doc["parts"]:
+        assert {"ref", "current", "power", "allowed_power", "utilization"} <= set(part)
+    r1 = next(p for p in doc["parts"] if p["ref"] == "R1")
+    assert r1["power"] == pytest.approx(r1["current"] ** 2 * 324e3)
+    assert doc["verify"]["max_difference"] < 1e-12
+
+
+def test_failing_design_exits_one(tmp_design):
+    path = tmp_design("""
+[[source]]
+ref = "V1"
+kind = "voltage"
+plus = "in"
+minus = "gnd"
+value = "10 V"
+
+[[resistor]]
+ref = "R1"
+nodes = ["in", "gnd"]
+value = "100"
+package = "0603"
+""")
+    result = run("check", str(path))
+    assert result.exit_code == 1 and "FAILS" in result.output and "char the board" in result.output
