@@ -10,7 +10,7 @@ from __future__ import annotations
 __all__ = ["CheckResult", "PartReport", "TargetReport", "check", "resolve_values", "target_reports"]
 
 from collections.abc import Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -18,6 +18,7 @@ from synth.derating import derating_factor
 from synth.design import Design, Target
 from synth.errors import DesignError
 from synth.evaluate import Evaluation, Evaluator
+from synth.ideal import ideal_values
 from synth.nodal import nodal_solve
 from synth.safety import power_cautions, voltage_cautions
 
@@ -124,6 +125,8 @@ class CheckResult:
     verify_difference : float or None
         Largest difference between mesh and nodal results, relative to the
         largest voltage or current (None unless ``verify``).
+    filled : dict of str to float
+        Free parts that had no value and were checked at their ideal value, ohm.
     """
 
     design: Design
@@ -136,6 +139,7 @@ class CheckResult:
     cautions: tuple[str, ...]
     problems: tuple[str, ...]
     verify_difference: float | None
+    filled: dict[str, float] = field(default_factory=dict)
 
     @property
     def ok(self) -> bool:
@@ -231,7 +235,7 @@ def _part_reports(design: Design, ev: Evaluator, r: np.ndarray,
 
 
 def check(design: Design, values: Mapping[str, float] | None = None,
-          verify: bool = False) -> CheckResult:
+          verify: bool = False, fill_ideal: bool = True) -> CheckResult:
     """Analyse a design whose resistor values are all known.
 
     Parameters
@@ -242,6 +246,9 @@ def check(design: Design, values: Mapping[str, float] | None = None,
         Resistances by reference designator (ohm) overriding the file's values.
     verify : bool
         Also solve by modified nodal analysis and report the largest difference.
+    fill_ideal : bool
+        Check free parts that have no value at their ideal continuous value
+        (see :func:`synth.ideal.ideal_values`) instead of refusing.
 
     Returns
     -------
@@ -269,7 +276,14 @@ def check(design: Design, values: Mapping[str, float] | None = None,
     its rated ambient (70 °C) to zero at its zero-power temperature (155 °C),
     times the design margin (50 % by default; common practice).
     """
-    r = resolve_values(design, values)
+    given = dict(values or {})
+    filled: dict[str, float] = {}
+    missing = [p.ref for p in design.resistors if p.value is None and p.ref not in given]
+    if missing and fill_ideal and design.targets:
+        ideal = ideal_values(design)
+        filled = {ref: ideal[ref] for ref in missing if ref in ideal}
+        given.update(filled)
+    r = resolve_values(design, given)
     ev = Evaluator(design, typical_resistances=r)
     ev.check_regulators(r)
     result = ev.evaluate(r[None, :])
@@ -315,4 +329,5 @@ def check(design: Design, values: Mapping[str, float] | None = None,
         parts=tuple(parts), targets=targets,
         supply_current=float(result.supply_current[0]), max_voltage=max_voltage,
         cautions=tuple(cautions), problems=tuple(problems), verify_difference=difference,
+        filled=filled,
     )

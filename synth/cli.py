@@ -10,18 +10,24 @@ __all__ = ["cli", "main"]
 
 import json
 import sys
+import time
 from collections.abc import Callable
 from functools import wraps
 from typing import Any, TypeVar
 
 import click
+import tomli_w
 
 from synth import __version__
 from synth.analysis import check as run_check
 from synth.catalogs import nearest_value, series_names, series_values
-from synth.design import load_design
+from synth.design import Design, design_from_dict, load_design
+from synth.design_report import design_json, design_text
 from synth.errors import DesignError, InfeasibleError, RnsynthError
+from synth.outputs import write_atomic
+from synth.quick import QuickSettings, divider_tables, led_tables, pad_tables, regulator_tables
 from synth.report import check_json, check_text
+from synth.synthesis import synthesize
 from synth.units import format_eng, format_rkm, parse_resistance
 
 F = TypeVar("F", bound=Callable[..., Any])
@@ -117,6 +123,210 @@ def check_command(design_file: str, as_json: bool, verify: bool) -> None:
         click.echo(check_text(result))
     if not result.ok:
         sys.exit(1)
+
+
+class _Progress:
+    """A progress bar on stderr for searches longer than about a second."""
+
+    def __init__(self, enabled: bool):
+        self.enabled = enabled
+        self.start = time.monotonic()
+        self.shown = False
+
+    def __call__(self, fraction: float) -> None:
+        if not self.enabled or time.monotonic() - self.start < 1.0:
+            return
+        width = 30
+        done = int(fraction * width)
+        click.echo(f"\rsearching [{'#' * done}{'.' * (width - done)}] {fraction * 100:5.1f}%",
+                   err=True, nl=False)
+        self.shown = True
+
+    def close(self) -> None:
+        if self.shown:
+            click.echo("\r" + " " * 50 + "\r", err=True, nl=False)
+
+
+def _run_design(design: Design, top: int, time_limit: float | None, as_json: bool,
+                quiet: bool) -> None:
+    if not design.free_resistors:
+        raise DesignError(f"{design.origin}: no resistor has choose = ...; mark the parts "
+                          "rnsynth should pick, or use rnsynth check")
+    if top < 1:
+        raise DesignError(f"--top {top} must be at least 1")
+    progress = _Progress(enabled=not quiet and sys.stderr.isatty())
+    try:
+        result = synthesize(design, top=top, time_limit_s=time_limit, progress=progress)
+    finally:
+        progress.close()
+    if as_json:
+        _emit_json(design_json(result))
+    else:
+        click.echo(design_text(result))
+    if not result.feasible:
+        sys.exit(1)
+
+
+def _search_options(command: F) -> F:
+    options = [
+        click.option("--top", default=10, show_default=True, help="Candidates to show."),
+        click.option("--time-limit", type=float, default=None, metavar="SECONDS",
+                     help="Stop searching after this long and show the best so far, "
+                          "marked unproven."),
+        click.option("--json", "as_json", is_flag=True, help="Print the results as JSON."),
+        click.option("--quiet", is_flag=True, help="No progress bar."),
+    ]
+    for option in reversed(options):
+        command = option(command)
+    return command
+
+
+def _quick_options(command: F) -> F:
+    options = [
+        click.option("--series", default="E96", show_default=True,
+                     type=click.Choice(series_names(), case_sensitive=False),
+                     help="Series to choose from."),
+        click.option("--range", "value_range", default=None, metavar="LOW:HIGH",
+                     help="Values each chosen part may take [default: 100:10M; a pad: "
+                          "impedance/100 to impedance x 100]."),
+        click.option("--within", default=None, metavar="WINDOW",
+                     help='Hard window on the main target, e.g. "1%" or "10 mV".'),
+        click.option("--package", default="0603", show_default=True,
+                     help="Package of the chosen parts (name in the package table)."),
+        click.option("--ambient", default="25 C", show_default=True,
+                     help="Ambient temperature for derating."),
+        click.option("--margin", default="50%", show_default=True,
+                     help="Share of the derated power a part may use."),
+        click.option("--save", type=click.Path(dir_okay=False), default=None,
+                     help="Also write the equivalent design file here."),
+        click.option("--force", is_flag=True, help="Let --save replace an existing file."),
+    ]
+    for option in reversed(options):
+        command = option(command)
+    return _search_options(command)
+
+
+def _quick_run(tables: dict[str, Any], origin: str, save: str | None, force: bool, top: int,
+               time_limit: float | None, as_json: bool, quiet: bool) -> None:
+    design = design_from_dict(tables, origin=origin)
+    if save is not None:
+        write_atomic(save, tomli_w.dumps(tables), force=force)
+        if not as_json:
+            click.echo(f"design file written: {save}")
+    _run_design(design, top, time_limit, as_json, quiet)
+
+
+def _settings(series: str, value_range: str | None, within: str | None, package: str | None,
+              ambient: str, margin: str) -> QuickSettings:
+    return QuickSettings(series=series.upper(), value_range=value_range, within=within,
+                         package=package, ambient=ambient, margin=margin)
+
+
+@cli.command("design")
+@click.argument("design_file", type=click.Path(dir_okay=False))
+@_search_options
+@_friendly
+def design_command(design_file: str, top: int, time_limit: float | None, as_json: bool,
+                   quiet: bool) -> None:
+    """Choose standard values for the free parts of a design.
+
+    Shows the ideal continuous values, then the best candidates, each
+    re-checked by a full mesh solve: values, each target's value and error,
+    the hottest part and supply current.  Exits 1 when no standard values
+    meet every window and limit (the nearest designs are shown and the binding
+    target or limit named).
+    """
+    _run_design(load_design(design_file), top, time_limit, as_json, quiet)
+
+
+@cli.command("divider")
+@click.option("--input", "input_voltage", required=True, help='Input voltage, e.g. "12 V".')
+@click.option("--output", "output_voltage", required=True, help="Wanted output voltage.")
+@click.option("--load", default=None, help="Load resistance on the output, e.g. 100k.")
+@click.option("--max-current", default=None, help="Most current the divider may draw.")
+@_quick_options
+@_friendly
+def divider_command(input_voltage: str, output_voltage: str, load: str | None,
+                    max_current: str | None, series: str, value_range: str | None,
+                    within: str | None, package: str, ambient: str, margin: str,
+                    save: str | None, force: bool, top: int, time_limit: float | None,
+                    as_json: bool, quiet: bool) -> None:
+    """Voltage divider: R1 from input to output, R2 from output to ground."""
+    settings = _settings(series, value_range, within, package, ambient, margin)
+    tables = divider_tables(input_voltage=input_voltage, output_voltage=output_voltage,
+                            settings=settings, load=load, max_current=max_current)
+    _quick_run(tables, "rnsynth divider options", save, force, top, time_limit, as_json, quiet)
+
+
+@cli.command("regulator")
+@click.option("--style", type=click.Choice(["feedback", "adjust"]), default="feedback",
+              show_default=True,
+              help="feedback: reference at the divider tap (feedback-pin regulators); "
+                   "adjust: reference across the top resistor (three-terminal adjustable).")
+@click.option("--reference", required=True, help='Reference voltage, e.g. "0.8 V".')
+@click.option("--output", "output_voltage", required=True, help="Wanted output voltage.")
+@click.option("--pin-current", default="0 A", show_default=True,
+              help="Feedback-pin current (into the pin) or adjust-pin current (out of it).")
+@click.option("--load", default=None, help="Load resistance on the output.")
+@click.option("--min-current", default=None, help="Least current in the top resistor.")
+@click.option("--max-current", default=None, help="Most current in the top resistor.")
+@_quick_options
+@_friendly
+def regulator_command(style: str, reference: str, output_voltage: str, pin_current: str,
+                      load: str | None, min_current: str | None, max_current: str | None,
+                      series: str, value_range: str | None, within: str | None, package: str,
+                      ambient: str, margin: str, save: str | None, force: bool, top: int,
+                      time_limit: float | None, as_json: bool, quiet: bool) -> None:
+    """Regulator feedback network: RTOP from output to the tap, RBOT from tap to ground."""
+    settings = _settings(series, value_range, within, package, ambient, margin)
+    tables = regulator_tables(style=style, reference=reference, output_voltage=output_voltage,
+                              settings=settings, pin_current=pin_current, load=load,
+                              min_current=min_current, max_current=max_current)
+    _quick_run(tables, "rnsynth regulator options", save, force, top, time_limit, as_json,
+               quiet)
+
+
+@cli.command("led")
+@click.option("--supply", required=True, help='Supply voltage, e.g. "5 V".')
+@click.option("--forward", required=True, help="Forward voltage of one LED.")
+@click.option("--count", default=1, show_default=True, help="LEDs in series.")
+@click.option("--current", required=True, help='LED current, e.g. "20 mA".')
+@_quick_options
+@_friendly
+def led_command(supply: str, forward: str, count: int, current: str, series: str,
+                value_range: str | None, within: str | None, package: str, ambient: str,
+                margin: str, save: str | None, force: bool, top: int, time_limit: float | None,
+                as_json: bool, quiet: bool) -> None:
+    """LED series resistor, R = (Vsupply - count x Vforward) / I.
+
+    With --package auto the smallest chip package whose derated allowance
+    covers the resistor's dissipation is chosen.  --range is not used: the
+    resistor is searched around its ideal value.
+    """
+    settings = _settings(series, value_range, within,
+                         None if package.lower() == "auto" else package, ambient, margin)
+    tables, chosen = led_tables(supply=supply, forward=forward, count=count, current=current,
+                                settings=settings)
+    if not as_json:
+        click.echo(f"package: {chosen}")
+    _quick_run(tables, "rnsynth led options", save, force, top, time_limit, as_json, quiet)
+
+
+@cli.command("pad")
+@click.option("--impedance", default="50", show_default=True, help="Line impedance, ohm.")
+@click.option("--loss", required=True, help='Attenuation, e.g. "6 dB".')
+@click.option("--shape", type=click.Choice(["T", "Pi"], case_sensitive=False), default="T",
+              show_default=True, help="Pad shape.")
+@_quick_options
+@_friendly
+def pad_command(impedance: str, loss: str, shape: str, series: str, value_range: str | None,
+                within: str | None, package: str, ambient: str, margin: str, save: str | None,
+                force: bool, top: int, time_limit: float | None, as_json: bool,
+                quiet: bool) -> None:
+    """Matched attenuator pad (T or Pi) between two terminations of the line impedance."""
+    settings = _settings(series, value_range, within, package, ambient, margin)
+    tables = pad_tables(impedance=impedance, loss=loss, shape=shape, settings=settings)
+    _quick_run(tables, "rnsynth pad options", save, force, top, time_limit, as_json, quiet)
 
 
 def main() -> None:

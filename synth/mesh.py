@@ -57,11 +57,18 @@ class MeshSolution:
         element current as delivered (out of ``plus``/``output``, into ``to``).
     regulator_outputs : numpy.ndarray
         ``(N, regulators)`` V driven by each regulating element.
+    regulator_determinant : numpy.ndarray or None
+        ``(N,)`` determinant of the regulators' Schur complement (None when
+        the network has no regulating element).  The network's determinant
+        is this times det Z > 0 and is affine in each resistance, so a sign
+        that holds at every vertex of a box of values holds inside it: then no
+        quantity has a pole in the box.
     """
 
     node_voltages: np.ndarray
     branch_currents: np.ndarray
     regulator_outputs: np.ndarray
+    regulator_determinant: np.ndarray | None = None
 
 
 def _as_block(values: ArrayLike | None, count: int, n: int | None, what: str) -> np.ndarray:
@@ -244,6 +251,7 @@ class MeshSolver:
             node_voltages=np.empty((n, len(self.network.nodes))),
             branch_currents=np.empty((n, len(self.network.branch_refs))),
             regulator_outputs=np.empty((n, self.n_g)),
+            regulator_determinant=np.empty(n) if self.n_g else None,
         )
         start = 0
         for part in self.iter_solve(r_all, voltages, currents, setpoints, chunk):
@@ -251,6 +259,8 @@ class MeshSolver:
             result.node_voltages[start:stop] = part.node_voltages
             result.branch_currents[start:stop] = part.branch_currents
             result.regulator_outputs[start:stop] = part.regulator_outputs
+            if result.regulator_determinant is not None:
+                result.regulator_determinant[start:stop] = part.regulator_determinant
             start = stop
         return result
 
@@ -291,7 +301,8 @@ class MeshSolver:
                 out=(work["voltages"], work["currents"], work["outputs"]),
             )
             yield MeshSolution(node_voltages=v_t.T, branch_currents=i_t.T,
-                               regulator_outputs=g_t.T)
+                               regulator_outputs=g_t.T,
+                               regulator_determinant=work["determinant"] if self.n_g else None)
 
     def solve_block(
         self, r: np.ndarray, e: np.ndarray, j: np.ndarray, s: np.ndarray,
@@ -371,6 +382,7 @@ class MeshSolver:
                 "voltages": np.empty((len(self.network.nodes), m)),
                 "currents": np.empty((len(self.network.branch_refs), m)),
                 "outputs": np.empty((self.n_g, m)),
+                "determinant": np.empty(m),
             }
             self._work_size = m
         return self._work
@@ -386,6 +398,8 @@ class MeshSolver:
         rhs = s - np.einsum("gum,um->gm", q, parts[:, 0]) - self._d_r @ r_known
         if self.n_v:
             rhs = rhs + self._d_v @ e
+        determinant = self._workspace(m)["determinant"]
+        determinant[...] = lhs[0, 0] if self.n_g == 1 else np.linalg.det(lhs.transpose(2, 0, 1))
         if self.n_g == 1:
             with np.errstate(divide="ignore", invalid="ignore"):
                 return rhs / lhs[0]

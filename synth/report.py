@@ -104,6 +104,9 @@ def check_text(result: CheckResult) -> str:
                               headers=["target", "value", "goal", "error", "window", "met"],
                               disable_numparse=True))
     lines.append("")
+    for ref, value in result.filled.items():
+        lines.append(f"note: {ref} has no value; checked at its ideal value "
+                     f"{format_eng(value, 'Ω', 6)} (run rnsynth design to choose a standard one)")
     lines.append(f"supply current: {format_eng(result.supply_current, 'A')}; "
                  f"largest voltage in the circuit: {format_eng(result.max_voltage, 'V')}")
     if any(p.kind == "resistor" and p.package is None for p in result.parts):
@@ -155,6 +158,7 @@ def check_json(result: CheckResult) -> dict[str, Any]:
         "max_voltage": json_number(result.max_voltage),
         "problems": list(result.problems),
         "cautions": list(result.cautions),
+        "filled": dict(result.filled),
     }
     if result.verify_difference is not None:
         doc["verify"] = {"max_difference": result.verify_difference}

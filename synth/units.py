@@ -362,8 +362,7 @@ def format_rkm(ohms: float, digits: int = 3) -> str:
     else:
         letter, factor = "L", 1e-3
     mantissa = rounded / factor
-    whole_digits = len(str(int(mantissa))) if mantissa >= 1 else 0
-    decimals = max(digits - whole_digits, 0)
+    decimals = max(digits - 1 - math.floor(math.log10(mantissa)), 0)
     significant = f"{mantissa:.{decimals}f}".rstrip("0") if decimals else f"{mantissa:.0f}"
     whole, _, frac = significant.partition(".")
     # keep two significant digits as the code does (1K0, R10, 10K)

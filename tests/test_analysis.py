@@ -94,5 +94,19 @@ def test_free_part_without_value_is_named():
                      {"ref": "R2", "nodes": ["out", "gnd"], "value": "10k"}],
     })
     with pytest.raises(DesignError, match="R1 still need a value"):
-        check(design)
+        check(design)  # no target, so no ideal value either
     assert check(design, values={"R1": 20e3}).nodes["out"] == pytest.approx(4.0)
+    with_target = design_from_dict({
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "value": "12 V"}],
+        "resistor": [{"ref": "R1", "nodes": ["in", "out"], "choose": "E24",
+                      "range": ["1k", "100k"]},
+                     {"ref": "R2", "nodes": ["out", "gnd"], "value": "10k"}],
+        "target": [{"voltage": "out", "equals": "3 V"}],
+    })
+    result = check(with_target)
+    # ideal: 12 V * 10k / (R1 + 10k) = 3 V  ->  R1 = 30k (divider formula)
+    assert result.filled["R1"] == pytest.approx(30e3, rel=1e-6)
+    assert result.nodes["out"] == pytest.approx(3.0, rel=1e-6)
+    with pytest.raises(DesignError, match="still need a value"):
+        check(with_target, fill_ideal=False)

@@ -1,0 +1,107 @@
+"""Text tables and JSON records of synthesis results (``rnsynth design`` and quick commands)."""
+
+from __future__ import annotations
+
+__all__ = ["design_json", "design_text"]
+
+from typing import Any
+
+from tabulate import tabulate
+
+from synth.report import json_number, part_json, target_json
+from synth.synthesis import Candidate, SynthesisResult
+from synth.units import format_eng
+
+_UNIT_DIGITS = 5
+
+
+def _target_cell(t: Any) -> str:
+    value = format_eng(t.value, t.unit, _UNIT_DIGITS) if t.unit else f"{t.value:.6g}"
+    if t.goal is not None and t.goal != 0 and t.error is not None:
+        value += f" ({t.error * 100:+.3g}%)"
+    if not t.met:
+        value += " OUT"
+    return value
+
+
+def _row(candidate: Candidate, refs: list[str]) -> list[str]:
+    cells = [str(candidate.rank)]
+    for ref in refs:
+        value = candidate.values.get(ref)
+        cells.append("-" if value is None else
+                     f"{format_eng(value, 'Ω', 4)} {candidate.series.get(ref, '')}".strip())
+    cells += [_target_cell(t) for t in candidate.targets]
+    hot = candidate.hottest
+    cells.append("-" if hot is None or hot.utilization is None
+                 else f"{hot.ref} {hot.utilization * 100:.3g}%")
+    cells.append(format_eng(candidate.supply_current, "A"))
+    return cells
+
+
+def design_text(result: SynthesisResult) -> str:
+    """The report ``rnsynth design`` prints: search summary, ideal values, ranked table."""
+    design = result.design
+    where = "built from" if design.origin.startswith("rnsynth ") else "file"
+    lines = [design.title or "(untitled design)", f"{where}: {design.origin}"]
+    state = "proven optimal" if result.proven_optimal else "NOT proven optimal (time limit)"
+    lines.append(f"search: {result.combinations:,} combinations, {result.evaluated:,} "
+                 f"solved, {result.elapsed_s:.2f} s, {state}")
+    if result.ideal:
+        ideal = ", ".join(f"{ref} = {format_eng(v, 'Ω', 6)}" for ref, v in result.ideal.items())
+        lines.append(f"ideal values: {ideal}")
+    lines.append("")
+    if not result.candidates:
+        lines.append("no candidate could be evaluated")
+        return "\n".join(lines)
+    refs = list(result.candidates[0].values)
+    headers = ["rank", *refs, *[t.label for t in design.targets], "hottest", "supply"]
+    lines.append(tabulate([_row(c, refs) for c in result.candidates], headers=headers,
+                          disable_numparse=True))
+    lines.append("")
+    best = result.candidates[0]
+    if result.feasible:
+        lines.append("result: the best design meets every target window and limit")
+    else:
+        lines.append("result: NO standard values meet every window and limit; the nearest "
+                     f"designs are shown. Binding: {result.binding}")
+        lines.extend(f"  best design: {p}" for p in best.problems)
+    hot = best.hottest
+    if hot is not None and hot.utilization is not None:
+        lines.append(f"hottest part of the best design: {hot.ref} at "
+                     f"{format_eng(hot.power, 'W')}, {hot.utilization * 100:.3g}% of its "
+                     f"allowed {format_eng(hot.allowed_power or 0.0, 'W')}")
+    lines.extend(best.check.cautions)
+    return "\n".join(lines)
+
+
+def _candidate_json(candidate: Candidate) -> dict[str, Any]:
+    return {
+        "rank": candidate.rank,
+        "values": dict(candidate.values),
+        "positions": dict(candidate.positions),
+        "series": dict(candidate.series),
+        "objective": json_number(candidate.objective),
+        "feasible": candidate.feasible,
+        "supply_current": json_number(candidate.supply_current),
+        "targets": [target_json(t) for t in candidate.targets],
+        "parts": [part_json(p) for p in candidate.parts],
+        "problems": list(candidate.problems),
+    }
+
+
+def design_json(result: SynthesisResult) -> dict[str, Any]:
+    """The JSON document ``rnsynth design --json`` prints."""
+    best = result.candidates[0] if result.candidates else None
+    return {
+        "file": result.design.origin,
+        "title": result.design.title,
+        "proven_optimal": result.proven_optimal,
+        "feasible": result.feasible,
+        "binding": result.binding,
+        "ideal": dict(result.ideal),
+        "combinations": result.combinations,
+        "evaluated": result.evaluated,
+        "elapsed_s": result.elapsed_s,
+        "candidates": [_candidate_json(c) for c in result.candidates],
+        "cautions": list(best.check.cautions) if best else [],
+    }

@@ -1,0 +1,313 @@
+"""``synthesize()``: from targets to ranked, re-checked standard-value designs.
+
+It builds every free position's choices, finds the ideal continuous values,
+runs the exact branch-and-bound search, then re-checks each returned
+candidate with a full mesh solve (:func:`synth.analysis.check`) so that the
+numbers shown are those of the real network, loads and sources included.
+When no candidate meets every window and limit, a relaxed search ranks the
+nearest designs by their largest violation and names the binding target or
+limit.
+"""
+
+from __future__ import annotations
+
+__all__ = ["Candidate", "SynthesisResult", "synthesize"]
+
+import math
+from collections.abc import Callable
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from synth.analysis import CheckResult, PartReport, TargetReport, check
+from synth.candidates import Choices, choices_for, combination_count, series_rank
+from synth.catalogs import series_names
+from synth.design import Design
+from synth.evaluate import Evaluator
+from synth.ideal import ideal_values
+from synth.search import SearchOutcome, search
+
+
+@dataclass(frozen=True)
+class Candidate:
+    """One ranked design.
+
+    Attributes
+    ----------
+    rank : int
+        1 for the best.
+    values : dict of str to float
+        Ohm by physical part reference (a combined position ``R1`` gives
+        ``R1A`` and ``R1B``); free parts only.
+    positions : dict of str to float
+        Effective ohm of every resistor position, fixed ones included.
+    series : dict of str to str
+        The coarsest series holding each free part's value (``"E24"``), or
+        the stock file it came from.
+    objective : float
+        Largest relative error over the ``equals`` targets at nominal values.
+    targets : tuple of TargetReport
+    parts : tuple of PartReport
+        Every physical resistor, then the sources and regulators.
+    supply_current : float
+        A.
+    feasible : bool
+        Every window and limit met.
+    problems : tuple of str
+        What fails, when not feasible.
+    check : CheckResult
+        The full re-check of the candidate.
+    """
+
+    rank: int
+    values: dict[str, float]
+    positions: dict[str, float]
+    series: dict[str, str]
+    objective: float
+    targets: tuple[TargetReport, ...]
+    parts: tuple[PartReport, ...]
+    supply_current: float
+    feasible: bool
+    problems: tuple[str, ...]
+    check: CheckResult
+
+    @property
+    def hottest(self) -> PartReport | None:
+        """The resistor using the largest share of its allowed dissipation."""
+        rated = [p for p in self.parts if p.kind == "resistor" and p.utilization is not None]
+        return max(rated, key=lambda p: p.utilization or 0.0) if rated else None
+
+
+@dataclass(frozen=True)
+class SynthesisResult:
+    """Result of :func:`synthesize`.
+
+    Attributes
+    ----------
+    design : Design
+    ideal : dict of str to float
+        Ideal continuous value of each free position, ohm.
+    candidates : tuple of Candidate
+        Best first.  When none is feasible these are the nearest designs.
+    proven_optimal : bool
+        The search finished: the best candidate is provably the best over
+        the whole catalogue product (same objective as an exhaustive search);
+        for an infeasible design, that none meets everything and the nearest
+        designs are the nearest.
+    feasible : bool
+        The best candidate meets every window and limit.
+    binding : str or None
+        When infeasible: the target or limit the nearest design breaks most.
+    evaluated : int
+        Candidate value sets solved during the search.
+    combinations : int
+        Size of the catalogue product.
+    elapsed_s : float
+        Search time, s.
+    """
+
+    design: Design
+    ideal: dict[str, float]
+    candidates: tuple[Candidate, ...]
+    proven_optimal: bool
+    feasible: bool
+    binding: str | None
+    evaluated: int
+    combinations: int
+    elapsed_s: float
+
+
+def _seeds(choices: list[Choices], ideal: dict[str, float]) -> np.ndarray | None:
+    if not ideal or len(choices) > 12:
+        return None
+    around = []
+    for choice in choices:
+        wanted = ideal.get(choice.ref)
+        if wanted is None:
+            return None
+        at = int(np.searchsorted(choice.values, wanted))
+        around.append(sorted({min(max(at - 1, 0), len(choice) - 1), min(at, len(choice) - 1)}))
+    grid = np.meshgrid(*[np.array(a) for a in around], indexing="ij")
+    return np.stack([g.ravel() for g in grid], axis=1).astype(np.int64)
+
+
+def _series_label(value: float, choice: Choices) -> str:
+    rank = int(series_rank(np.array([value]))[0])
+    names = series_names()
+    return names[rank] if rank < len(names) else choice.label
+
+
+def _split_part(part: PartReport, a: float, b: float, how: str) -> list[PartReport]:
+    out = []
+    for suffix, value in (("A", a), ("B", b)):
+        if how == "series":
+            current, voltage = part.current, abs(part.current) * value
+        else:
+            voltage = part.voltage
+            current = part.current * (part.value / value)
+        power = current * current * value
+        out.append(replace(
+            part, ref=part.ref + suffix, value=value, current=current, voltage=voltage,
+            power=power,
+            utilization=None if part.allowed_power is None else power / part.allowed_power,
+            voltage_utilization=None if part.allowed_voltage is None
+            else voltage / part.allowed_voltage,
+        ))
+    return out
+
+
+def _candidate(design: Design, choices: list[Choices], indices: np.ndarray, rank: int,
+               objective: float) -> Candidate:
+    positions = {}
+    values: dict[str, float] = {}
+    labels: dict[str, str] = {}
+    splits = {}
+    for p, choice in enumerate(choices):
+        i = int(indices[p])
+        positions[choice.ref] = float(choice.values[i])
+        if choice.combine is None:
+            values[choice.ref] = float(choice.values[i])
+            labels[choice.ref] = _series_label(values[choice.ref], choice)
+        else:
+            a, b = float(choice.first[i]), float(choice.second[i])
+            values[choice.ref + "A"], values[choice.ref + "B"] = a, b
+            labels[choice.ref + "A"] = _series_label(a, choice)
+            labels[choice.ref + "B"] = _series_label(b, choice)
+            splits[choice.ref] = (a, b, choice.combine)
+    result = check(design, values=positions)
+    parts: list[PartReport] = []
+    problems = [p for p in result.problems]
+    for part in result.parts:
+        if part.ref in splits:
+            a, b, how = splits[part.ref]
+            pieces = _split_part(part, a, b, how)
+            parts.extend(pieces)
+            problems = [p for p in problems if not p.startswith(f"{part.ref} ")]
+            for piece in pieces:
+                if piece.utilization is not None and piece.utilization > 1:
+                    problems.append(f"{piece.ref} dissipates {piece.power:.4g} W, over its "
+                                    f"allowed {piece.allowed_power:.4g} W")
+                if piece.voltage_utilization is not None and piece.voltage_utilization > 1:
+                    problems.append(f"{piece.ref} sees {piece.voltage:.4g} V, over its "
+                                    f"allowed {piece.allowed_voltage:.4g} V")
+        else:
+            parts.append(part)
+    all_positions = dict(result.values)
+    return Candidate(
+        rank=rank, values=values, positions=all_positions, series=labels,
+        objective=objective, targets=result.targets, parts=tuple(parts),
+        supply_current=result.supply_current, feasible=not problems,
+        problems=tuple(problems), check=result,
+    )
+
+
+def _objective(design: Design, reports: tuple[TargetReport, ...]) -> float:
+    """Largest relative error over ``equals`` targets (a zero goal: error / window)."""
+    worst = 0.0
+    for target, report in zip(design.targets, reports, strict=True):
+        if target.equals is None:
+            continue
+        scale = abs(target.equals) if target.equals else (target.within_abs or 1.0)
+        worst = max(worst, abs(report.value - target.equals) / scale)
+    return worst
+
+
+def _binding(candidate: Candidate) -> str:
+    worst, text = -math.inf, "a target or limit"
+    for t in candidate.targets:
+        if t.met:
+            continue
+        edge = t.low if t.value < t.low else t.high
+        scale = abs(t.goal) if t.goal else max(abs(edge), 1e-300)
+        gap = abs(t.value - edge) / scale
+        if gap > worst:
+            window = f"{t.low:.6g}..{t.high:.6g}".replace("-inf..", "<= ").replace("..inf", "")
+            worst, text = gap, (f"target {t.label!r} (nearest design gives {t.value:.6g}, "
+                                f"window {window})")
+    for p in candidate.parts:
+        for use, what, limit, unit in ((p.utilization, "dissipation", p.allowed_power, "W"),
+                                       (p.voltage_utilization, "voltage", p.allowed_voltage,
+                                        "V")):
+            if use is not None and use > 1 and use - 1 > worst:
+                amount = p.power if what == "dissipation" else p.voltage
+                worst, text = use - 1, (f"the {what} limit of {p.ref} ({amount:.4g} {unit} "
+                                        f"against {limit:.4g} {unit} allowed)")
+    return text
+
+
+def synthesize(
+    design: Design,
+    top: int = 10,
+    time_limit_s: float | None = None,
+    progress: Callable[[float], None] | None = None,
+) -> SynthesisResult:
+    """Choose standard values for a design's free parts.
+
+    Parameters
+    ----------
+    design : Design
+        A design with at least one free part (``choose``).
+    top : int
+        Number of distinct candidates to return (default 10).
+    time_limit_s : float, optional
+        Stop searching after this many seconds; the result is then marked
+        unproven unless the search had already finished.
+    progress : callable, optional
+        Called with the settled share of the search space (0..1).
+
+    Returns
+    -------
+    SynthesisResult
+
+    Examples
+    --------
+    >>> from synth.design import design_from_dict
+    >>> d = design_from_dict({
+    ...     "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+    ...                 "value": "12 V"}],
+    ...     "resistor": [{"ref": "R1", "nodes": ["in", "out"], "choose": "E24",
+    ...                   "range": ["1k", "100k"]},
+    ...                  {"ref": "R2", "nodes": ["out", "gnd"], "value": "10k"}],
+    ...     "target": [{"voltage": "out", "equals": "4 V"}]})
+    >>> best = synthesize(d).candidates[0]
+    >>> best.values["R1"], best.objective
+    (20000.0, 0.0)
+
+    Notes
+    -----
+    The objective is the largest relative error over the ``equals`` targets
+    at nominal values, subject to every window, bound and limit; ties (within
+    1e-12) go to fewer distinct values, then coarser series, then lower supply
+    current.  The search is exact: see :mod:`synth.search`.
+    """
+    choices = [choices_for(r, design.origin) for r in design.free_resistors]
+    evaluator = Evaluator(design)
+    ideal = ideal_values(design, evaluator)
+    seeds = _seeds(choices, ideal)
+    outcome: SearchOutcome = search(design, evaluator, choices, top=top,
+                                    time_limit_s=time_limit_s, seeds=seeds, progress=progress)
+    feasible = len(outcome.ranked.objective) > 0
+    binding = None
+    if not feasible:
+        remaining = None if time_limit_s is None else max(time_limit_s - outcome.elapsed_s, 1.0)
+        relaxed = search(design, evaluator, choices, top=min(top, 5), time_limit_s=remaining,
+                         seeds=seeds, relaxed=True)
+        ranked = relaxed.ranked
+        proven = outcome.proven and relaxed.proven
+        evaluated = outcome.evaluated + relaxed.evaluated
+        elapsed = outcome.elapsed_s + relaxed.elapsed_s
+    else:
+        ranked, proven = outcome.ranked, outcome.proven
+        evaluated, elapsed = outcome.evaluated, outcome.elapsed_s
+    candidates = []
+    for rank, row in enumerate(ranked.indices, start=1):
+        candidate = _candidate(design, choices, row, rank, 0.0)
+        candidates.append(replace(candidate, objective=_objective(design, candidate.targets)))
+    if not feasible and candidates:
+        binding = _binding(candidates[0])
+    return SynthesisResult(
+        design=design, ideal=ideal, candidates=tuple(candidates),
+        proven_optimal=proven, feasible=feasible and bool(candidates),
+        binding=binding, evaluated=evaluated, combinations=combination_count(choices),
+        elapsed_s=elapsed,
+    )
