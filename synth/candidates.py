@@ -9,7 +9,7 @@ treat every position as an ordered list.
 
 from __future__ import annotations
 
-__all__ = ["Choices", "StockItem", "choices_for", "load_stock", "series_rank"]
+__all__ = ["Choices", "StockItem", "choices_for", "load_stock", "part_range", "series_rank"]
 
 import math
 from dataclasses import dataclass
@@ -143,6 +143,17 @@ class Choices:
         return len(self.values)
 
 
+def part_range(combine: str, low: float, high: float) -> tuple[float, float]:
+    """Values each part of a combined position may take, ohm.
+
+    The design's ``range`` bounds the position's effective value.  In series
+    each part is at most the effective value and a trimming part may be down
+    to a tenth of the range's low end; in parallel each part is at least the
+    effective value and a trimming part may be up to ten times the high end.
+    """
+    return (low / 10, high) if combine == "series" else (low, high * 10)
+
+
 def _base_values(resistor: Resistor, origin: str) -> tuple[np.ndarray, str]:
     if resistor.stock_path is not None:
         values = np.unique([item.value for item in load_stock(resistor.stock_path)])
@@ -154,9 +165,7 @@ def _base_values(resistor: Resistor, origin: str) -> tuple[np.ndarray, str]:
         assert resistor.choose is not None and resistor.range is not None
         low, high = resistor.range
         if resistor.combine is not None:
-            # two parts in series reach an effective value from parts up to that value;
-            # in parallel from parts down to that value: widen the part range accordingly
-            low, high = (low / 2, high) if resistor.combine == "series" else (low, high * 2)
+            low, high = part_range(resistor.combine, low, high)
         values = series_values(resistor.choose, low, high)
         label = resistor.choose
     if len(values) == 0:

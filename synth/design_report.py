@@ -62,8 +62,12 @@ def design_text(result: SynthesisResult) -> str:
     if result.feasible:
         lines.append("result: the best design meets every target window and limit")
     else:
-        lines.append("result: NO standard values meet every window and limit; the nearest "
-                     f"designs are shown. Binding: {result.binding}")
+        head = ("NO standard values meet every window and limit" if result.proven_optimal
+                else "no design meeting every window and limit was found within the time "
+                     "limit (give the search more time)")
+        tail = f"; the nearest designs are shown. Binding: {result.binding}" if (
+            result.binding) else ""
+        lines.append(f"result: {head}{tail}")
         lines.extend(f"  best design: {p}" for p in best.problems)
     hot = best.hottest
     if hot is not None and hot.utilization is not None:

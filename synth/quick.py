@@ -203,7 +203,7 @@ def led_tables(supply: str, forward: str, count: int, current: str,
         margin = parse_fraction(settings.margin)
         chips = sorted((p for name, p in table.items() if p.mount == "chip" and name == p.name),
                        key=lambda p: p.rated_power_w)
-        fits = [p for p in chips if float(allowed_power(p, ambient, margin)) >= power * 1.1]
+        fits = [p for p in chips if float(allowed_power(p, ambient, margin)) >= power]
         if not fits:
             raise DesignError(f"the resistor dissipates {format_eng(power, 'W')}, more than any "
                               "chip package allows; give --package for a larger part")

@@ -88,7 +88,14 @@ class RankedCandidates:
             return self
         quantised = np.floor(obj / TIE_TOLERANCE)
         keys = [idx[:, c] for c in range(idx.shape[1] - 1, -1, -1)]
-        order = np.lexsort((*keys, sup, coa, dis, quantised))[:top]
+        order = np.lexsort((*keys, sup, coa, dis, quantised))
+        if idx.shape[1]:
+            # the same candidate can arrive twice (a seed, then its box): keep it once
+            _, first = np.unique(idx[order], axis=0, return_index=True)
+            order = order[np.sort(first)]
+        else:
+            order = order[:1]
+        order = order[:top]
         return RankedCandidates(idx[order], obj[order], dis[order], coa[order], sup[order])
 
 
@@ -387,9 +394,9 @@ def search(
     if seeds is not None and len(seeds):
         seeded, n = problem.score(np.asarray(seeds, dtype=np.int64))
         evaluated += n
-        seeded = RankedCandidates.empty(k).merged(seeded, top)
-        if len(seeded.objective) >= top:
-            bar = float(seeded.objective[-1])
+        ranked = ranked.merged(seeded, top)
+        if len(ranked.objective) >= top:
+            bar = float(ranked.objective[-1])
     leaf_size = max(_LEAF_MIN, _LEAF_PER_VERTEX * 2 ** k)
     if k == 0 or total <= leaf_size:
         found, n = problem.score(_enumerate(np.zeros(k, np.int64), sizes - 1))
@@ -415,11 +422,15 @@ def search(
             open_lo, open_hi, open_bound = open_lo[keep], open_hi[keep], open_bound[keep]
             if not len(open_bound):
                 break
-        if len(open_bound) > _FRONTIER_CAP:
+        if len(open_bound) > _BATCH_BOXES:
+            # half the batch by lowest bound (best first), half by smallest box (depth
+            # first): the dive finds good candidates early, which raises the bar; past
+            # the frontier cap only the smallest boxes are taken, to drain it
             volume = np.prod((open_hi - open_lo + 1).astype(float), axis=1)
-            pick = np.argsort(volume, kind="stable")[:_BATCH_BOXES]
-        elif len(open_bound) > _BATCH_BOXES:
-            pick = np.argpartition(open_bound, _BATCH_BOXES)[:_BATCH_BOXES]
+            half = 0 if len(open_bound) > _FRONTIER_CAP else _BATCH_BOXES // 2
+            deep = np.argpartition(volume, _BATCH_BOXES - half)[: _BATCH_BOXES - half]
+            best = np.argpartition(open_bound, half)[:half] if half else deep[:0]
+            pick = np.unique(np.concatenate([best, deep]))
         else:
             pick = np.arange(len(open_bound))
         rest = np.ones(len(open_bound), dtype=bool)
