@@ -85,6 +85,23 @@ def _as_block(values: ArrayLike | None, count: int, n: int | None, what: str) ->
     return array
 
 
+def _node_depths(n_nodes: int, ends: np.ndarray) -> np.ndarray:
+    """Branch count from ground to each node (breadth-first over every branch)."""
+    depth = np.full(n_nodes, n_nodes, dtype=int)
+    depth[0] = 0
+    frontier = [0]
+    while frontier:
+        nxt = []
+        for node in frontier:
+            for a, b in ends:
+                for here, there in ((a, b), (b, a)):
+                    if here == node and depth[there] > depth[node] + 1:
+                        depth[there] = depth[node] + 1
+                        nxt.append(int(there))
+        frontier = nxt
+    return depth
+
+
 def _block_rows(values: np.ndarray, pick: slice, n: int) -> np.ndarray:
     """Entity-first block of per-candidate values, or the shared row repeated."""
     if len(values) == n and n > 1:
@@ -102,9 +119,11 @@ class MeshSolver:
         The circuit.
     resistor_weights : array_like, optional
         Typical resistance of each resistor (ohm), used only to choose the
-        spanning tree: low resistances go into the tree first, so that large
-        ones become links whose currents are solved directly.  This keeps
-        networks mixing 1 Ω and 10 MΩ accurate.  Default: all equal.
+        spanning tree: low resistances go into the tree first (by decade), so
+        that large ones become links whose currents are solved directly.  This
+        keeps networks mixing 1 Ω and 10 MΩ accurate.  Within a decade,
+        branches nearer ground go first, which keeps the loops short and the
+        loop matrix sparse.  Default: all equal.
 
     Examples
     --------
@@ -137,8 +156,14 @@ class MeshSolver:
         g_slice = self.n_r + self.n_v + self.n_i + np.arange(self.n_g)
 
         # Kruskal: voltage-defined branches first (they must all be tree branches),
-        # then resistors from the lowest typical resistance up; current sources never.
-        order = list(v_slice) + list(g_slice) + list(r_slice[np.argsort(weights, kind="stable")])
+        # then resistors by decade of typical resistance, lowest first, and within a
+        # decade nearest ground first (short fundamental loops keep Z sparse);
+        # current sources never.
+        depth = _node_depths(n_nodes, ends)
+        edge_depth = np.minimum(depth[ends[:self.n_r, 0]], depth[ends[:self.n_r, 1]])
+        decade = np.floor(np.log10(np.maximum(weights, 1e-300)))
+        by_weight = np.lexsort((np.arange(self.n_r), edge_depth, decade))
+        order = list(v_slice) + list(g_slice) + list(r_slice[by_weight])
         sets = UnionFind(n_nodes)
         in_tree = np.zeros(n_b, dtype=bool)
         for b in order:
@@ -201,6 +226,9 @@ class MeshSolver:
             self.n_g * self.n_u, self.n_r
         )
         self._map_z = _SparseMap(self._pair_matrix)
+        self._fill = _fill_pattern(self.n_u, {
+            pair for pair, row in zip(self._pairs, self._pair_matrix, strict=True) if row.any()
+        })
         self._map_uv = _SparseMap(self._b_uv)
         self._map_neg_ur = _SparseMap(-self._b_ur)
         self._map_kr_t = _SparseMap(self._b_kr.T)
@@ -342,7 +370,7 @@ class MeshSolver:
         if self.n_g:
             rhs[:, 1:] = self._b_ug[:, :, None]
         z = self._map_z.apply(r, out=work["z"])
-        parts = _ldl_solve(z, rhs, self.n_u, self._pair_index, work)
+        parts = _ldl_solve(z, rhs, self.n_u, self._pair_index, work, self._fill)
         if self.n_g:
             if r_known is None:
                 r_known = np.zeros_like(r)
@@ -451,17 +479,35 @@ class _SparseMap:
         return out
 
 
+def _fill_pattern(n: int, nonzero: set[tuple[int, int]]) -> frozenset[tuple[int, int]]:
+    """Entries ``(i, j)``, ``i <= j``, that can be non-zero during the elimination.
+
+    Symbolic factorisation: eliminating loop ``k`` couples every pair of
+    later loops that both touch ``k``.  Entries outside the pattern stay zero
+    for every candidate, so the numeric elimination skips them (a ladder's
+    tridiagonal Z then costs O(n) instead of O(n³)).
+    """
+    pattern = set(nonzero) | {(i, i) for i in range(n)}
+    for k in range(n):
+        touched = [i for i in range(k + 1, n) if (k, i) in pattern]
+        for a in touched:
+            pattern.update((a, b) for b in touched if b >= a)
+    return frozenset(pattern)
+
+
 def _ldl_solve(
     z: np.ndarray, rhs: np.ndarray, n: int, pair_index: dict[tuple[int, int], int],
     work: dict[str, np.ndarray] | None = None,
+    filled: frozenset[tuple[int, int]] | None = None,
 ) -> np.ndarray:
     """Solve ``Z x = rhs`` for symmetric positive definite Z, per candidate.
 
     ``z`` holds the upper triangle, one row per entry ``(i, j)``, ``i <= j``,
     candidates along the last axis; ``rhs`` is ``(n, columns, M)``.  Both are
-    overwritten; ``work`` may supply scratch arrays.  Gaussian elimination
-    without pivoting is stable for SPD
-    matrices (Golub & Van Loan, *Matrix Computations*, §4.2).
+    overwritten; ``work`` may supply scratch arrays; ``filled`` (from
+    :func:`_fill_pattern`) lists the entries that can be non-zero.  Gaussian
+    elimination without pivoting is stable for SPD matrices (Golub & Van
+    Loan, *Matrix Computations*, §4.2).
     """
     if n == 0:
         return rhs
@@ -470,17 +516,23 @@ def _ldl_solve(
                 "scratch": np.empty(z.shape[1]), "rhs_scratch": np.empty(rhs.shape[1:])}
     inverse, factor = work["inverse"], work["factor"]
     scratch, rhs_scratch = work["scratch"], work["rhs_scratch"]
+    pattern = filled if filled is not None else frozenset(pair_index)
     for k in range(n):
         np.divide(1.0, z[pair_index[k, k]], out=inverse[k])
-        for i in range(k + 1, n):
+        below = [i for i in range(k + 1, n) if (k, i) in pattern]
+        for i in below:
             np.multiply(z[pair_index[k, i]], inverse[k], out=factor)
-            for jj in range(i, n):
+            for jj in below:
+                if jj < i:
+                    continue
                 np.multiply(factor, z[pair_index[k, jj]], out=scratch)
                 np.subtract(z[pair_index[i, jj]], scratch, out=z[pair_index[i, jj]])
             np.multiply(rhs[k], factor, out=rhs_scratch)
             np.subtract(rhs[i], rhs_scratch, out=rhs[i])
     for i in range(n - 1, -1, -1):
         for jj in range(i + 1, n):
+            if (i, jj) not in pattern:
+                continue
             np.multiply(rhs[jj], z[pair_index[i, jj]], out=rhs_scratch)
             np.subtract(rhs[i], rhs_scratch, out=rhs[i])
         np.multiply(rhs[i], inverse[i], out=rhs[i])
