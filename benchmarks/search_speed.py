@@ -20,13 +20,13 @@ import time
 os.environ.setdefault("OMP_NUM_THREADS", "1")
 os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 
-import numpy as np  # noqa: E402
+import numpy as np
 
-from synth.candidates import choices_for  # noqa: E402
-from synth.design import design_from_dict  # noqa: E402
-from synth.evaluate import Evaluator  # noqa: E402
-from synth.search import _Problem  # noqa: E402
-from synth.synthesis import synthesize  # noqa: E402
+from synth.candidates import choices_for
+from synth.design import design_from_dict
+from synth.evaluate import Evaluator
+from synth.search import _Problem
+from synth.synthesis import synthesize
 
 TAPS = ["9.1 V", "6.2 V", "3.9 V", "2.2 V", "1.1 V"]
 FULL_LIMIT = 30_000_000

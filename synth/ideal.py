@@ -73,16 +73,26 @@ def ideal_values(design: Design, evaluator: Evaluator | None = None) -> dict[str
     flat = hi - lo < 1e-12
     hi = np.where(flat, lo + 1e-9, hi)
 
-    def residual(logs: np.ndarray) -> np.ndarray:
-        r = base.copy()
-        r[index] = np.exp(logs)
+    def residuals(points: np.ndarray) -> np.ndarray:
+        r = np.tile(base, (len(points), 1))
+        r[:, index] = np.exp(points)
         with np.errstate(all="ignore"):
-            res = _residuals(design, ev.evaluate(r[None, :]).targets)[0]
+            res = _residuals(design, ev.evaluate(r).targets)
         return np.nan_to_num(res, nan=1e6, posinf=1e6, neginf=-1e6)
+
+    def residual(logs: np.ndarray) -> np.ndarray:
+        return residuals(logs[None, :])[0]
+
+    def jacobian(logs: np.ndarray) -> np.ndarray:
+        # forward differences, all perturbed points in one batched solve
+        step = 1e-7
+        points = np.vstack([logs, logs + step * np.eye(len(logs))])
+        values = residuals(points)
+        return (values[1:] - values[0]).T / step
 
     start = (lo + hi) / 2
     if residual(start).size == 0:
         return {}
-    fit = least_squares(residual, start, bounds=(lo, hi), method="trf", xtol=1e-14,
-                        ftol=1e-14, gtol=1e-14, max_nfev=2000)
+    fit = least_squares(residual, start, jac=jacobian, bounds=(lo, hi), method="trf",
+                        xtol=1e-14, ftol=1e-14, gtol=1e-14, max_nfev=2000)
     return {r.ref: float(np.exp(v)) for r, v in zip(free, fit.x, strict=True)}

@@ -88,7 +88,9 @@ class RankedCandidates:
             return self
         quantised = np.floor(obj / TIE_TOLERANCE)
         keys = [idx[:, c] for c in range(idx.shape[1] - 1, -1, -1)]
-        order = np.lexsort((*keys, sup, coa, dis, quantised))
+        # duplicates only pair a row of self with one of other: the best top + len(self)
+        # rows hold the best top distinct ones
+        order = np.lexsort((*keys, sup, coa, dis, quantised))[: top + len(self.objective)]
         if idx.shape[1]:
             # the same candidate can arrive twice (a seed, then its box): keep it once
             _, first = np.unique(idx[order], axis=0, return_index=True)
@@ -335,9 +337,24 @@ def _distinct(values: np.ndarray) -> np.ndarray:
 
 def _enumerate(lo: np.ndarray, hi: np.ndarray) -> np.ndarray:
     """Every index vector inside the box ``lo..hi`` (inclusive)."""
-    axes = [np.arange(a, b + 1) for a, b in zip(lo, hi, strict=True)]
-    grid = np.meshgrid(*axes, indexing="ij")
-    return np.stack([g.ravel() for g in grid], axis=1)
+    return _enumerate_boxes(lo[None, :], hi[None, :])
+
+
+def _enumerate_boxes(lo: np.ndarray, hi: np.ndarray) -> np.ndarray:
+    """Every index vector inside each of the boxes ``lo[b]..hi[b]``, box after box.
+
+    Vectorised: row ``t`` of the output belongs to box ``b`` at offset ``o``
+    and its index along each axis is a mixed-radix digit of ``o``.
+    """
+    counts = (hi - lo + 1).astype(np.int64)
+    volume = np.prod(counts, axis=1)
+    box = np.repeat(np.arange(len(lo)), volume)
+    offset = np.arange(int(volume.sum()), dtype=np.int64) - np.repeat(
+        np.cumsum(volume) - volume, volume)
+    # C order: the last axis varies fastest
+    strides = np.cumprod(counts[:, ::-1], axis=1)[:, ::-1]
+    strides = np.concatenate([strides[:, 1:], np.ones((len(lo), 1), np.int64)], axis=1)
+    return lo[box] + (offset[:, None] // strides[box]) % counts[box]
 
 
 def search(
@@ -441,8 +458,7 @@ def search(
         volume = np.prod(counts.astype(float), axis=1)
         leaf = volume <= leaf_size
         if leaf.any():
-            batch = np.concatenate([_enumerate(a, b) for a, b in zip(b_lo[leaf], b_hi[leaf],
-                                                                       strict=True)])
+            batch = _enumerate_boxes(b_lo[leaf], b_hi[leaf])
             found, n = problem.score(batch)
             evaluated += n
             ranked = ranked.merged(found, top)

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 __all__ = ["Candidate", "SynthesisResult", "synthesize"]
 
+import functools
 import math
 from collections.abc import Callable
 from dataclasses import dataclass, replace
@@ -131,10 +132,15 @@ def _seeds(choices: list[Choices], ideal: dict[str, float]) -> np.ndarray | None
     return np.stack([g.ravel() for g in grid], axis=1).astype(np.int64)
 
 
-def _series_label(value: float, choice: Choices) -> str:
+@functools.lru_cache(maxsize=4096)
+def _coarsest_series(value: float) -> str | None:
     rank = int(series_rank(np.array([value]))[0])
     names = series_names()
-    return names[rank] if rank < len(names) else choice.label
+    return names[rank] if rank < len(names) else None
+
+
+def _series_label(value: float, choice: Choices) -> str:
+    return _coarsest_series(value) or choice.label
 
 
 def _split_part(part: PartReport, a: float, b: float, how: str) -> list[PartReport]:

@@ -88,3 +88,19 @@ package = "0603"
 """)
     result = run("check", str(path))
     assert result.exit_code == 1 and "FAILS" in result.output and "char the board" in result.output
+
+
+def test_progress_bar_after_a_second(monkeypatch, capsys):
+    from synth import cli as cli_module
+
+    clock = iter([0.0, 0.5, 1.5, 1.6])
+    monkeypatch.setattr(cli_module.time, "monotonic", lambda: next(clock))
+    bar = cli_module._Progress(enabled=True)  # started at t = 0
+    bar(0.1)  # t = 0.5: too early, nothing shown
+    assert capsys.readouterr().err == ""
+    bar(0.5)  # t = 1.5
+    assert "searching [" in capsys.readouterr().err and bar.shown
+    bar.close()
+    quiet = cli_module._Progress(enabled=False)
+    quiet(0.9)
+    assert capsys.readouterr().err == "" and not quiet.shown
