@@ -101,6 +101,7 @@ def test_progress_bar_after_a_second(monkeypatch, capsys):
     bar(0.5)  # t = 1.5
     assert "searching [" in capsys.readouterr().err and bar.shown
     bar.close()
+    assert capsys.readouterr().err.strip() == ""  # the line is wiped
     quiet = cli_module._Progress(enabled=False)
     quiet(0.9)
     assert capsys.readouterr().err == "" and not quiet.shown
