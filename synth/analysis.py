@@ -21,6 +21,7 @@ from synth.evaluate import Evaluation, Evaluator
 from synth.ideal import ideal_values
 from synth.nodal import nodal_solve
 from synth.safety import power_cautions, voltage_cautions
+from synth.spread import SpreadResult, SpreadSettings, analyse_spread
 
 
 @dataclass(frozen=True)
@@ -127,6 +128,8 @@ class CheckResult:
         largest voltage or current (None unless ``verify``).
     filled : dict of str to float
         Free parts that had no value and were checked at their ideal value, ohm.
+    spread : SpreadResult or None
+        Tolerance, temperature and supply spread, when asked for.
     """
 
     design: Design
@@ -140,6 +143,7 @@ class CheckResult:
     problems: tuple[str, ...]
     verify_difference: float | None
     filled: dict[str, float] = field(default_factory=dict)
+    spread: SpreadResult | None = None
 
     @property
     def ok(self) -> bool:
@@ -235,7 +239,8 @@ def _part_reports(design: Design, ev: Evaluator, r: np.ndarray,
 
 
 def check(design: Design, values: Mapping[str, float] | None = None,
-          verify: bool = False, fill_ideal: bool = True) -> CheckResult:
+          verify: bool = False, fill_ideal: bool = True,
+          spread: SpreadSettings | None = None) -> CheckResult:
     """Analyse a design whose resistor values are all known.
 
     Parameters
@@ -249,6 +254,9 @@ def check(design: Design, values: Mapping[str, float] | None = None,
     fill_ideal : bool
         Check free parts that have no value at their ideal continuous value
         (see :func:`synth.ideal.ideal_values`) instead of refusing.
+    spread : SpreadSettings, optional
+        Also analyse the spread over tolerance, temperature and supply
+        (:func:`synth.spread.analyse_spread`).
 
     Returns
     -------
@@ -330,4 +338,7 @@ def check(design: Design, values: Mapping[str, float] | None = None,
         supply_current=float(result.supply_current[0]), max_voltage=max_voltage,
         cautions=tuple(cautions), problems=tuple(problems), verify_difference=difference,
         filled=filled,
+        spread=None if spread is None else analyse_spread(
+            design, {res.ref: float(r[k]) for k, res in enumerate(design.resistors)}, spread,
+            ev),
     )

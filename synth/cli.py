@@ -27,7 +27,8 @@ from synth.errors import DesignError, InfeasibleError, RnsynthError
 from synth.outputs import write_atomic
 from synth.quick import QuickSettings, divider_tables, led_tables, pad_tables, regulator_tables
 from synth.report import check_json, check_text
-from synth.synthesis import synthesize
+from synth.spread import SpreadSettings
+from synth.synthesis import RANKINGS, synthesize
 from synth.units import format_eng, format_rkm, parse_resistance
 
 F = TypeVar("F", bound=Callable[..., Any])
@@ -65,6 +66,22 @@ def _parse_range(text: str) -> tuple[float, float]:
     if ends[0] <= 0 or ends[1] < ends[0]:
         raise DesignError(f"--range {text!r} is empty or not positive; give the low end first")
     return ends
+
+
+def _spread_options(command: F) -> F:
+    options = [
+        click.option("--samples", default=100_000, show_default=True,
+                     help="Monte Carlo samples for the spread (0: none)."),
+        click.option("--distribution", type=click.Choice(["uniform", "normal"]),
+                     default="uniform", show_default=True,
+                     help="Shape of each tolerance; normal reads tolerance as 3 sigma."),
+        click.option("--seed", default=1, show_default=True, help="Monte Carlo seed."),
+        click.option("--plots", type=click.Path(file_okay=False), default=None,
+                     metavar="FOLDER", help="Write PNG and SVG plots into this folder."),
+    ]
+    for option in reversed(options):
+        command = option(command)
+    return command
 
 
 @click.group(context_settings={"help_option_names": ["-h", "--help"]})
@@ -107,8 +124,10 @@ def series_command(name: str, span: str, nearest: str | None, as_json: bool) -> 
 @click.option("--json", "as_json", is_flag=True, help="Print the results as JSON.")
 @click.option("--verify", is_flag=True,
               help="Also solve by nodal analysis and report the largest difference.")
+@_spread_options
 @_friendly
-def check_command(design_file: str, as_json: bool, verify: bool) -> None:
+def check_command(design_file: str, as_json: bool, verify: bool, samples: int,
+                  distribution: str, seed: int, plots: str | None) -> None:
     """Analyse a design whose values are all given.
 
     Prints node voltages, each part's current, dissipation and use of its
@@ -116,11 +135,16 @@ def check_command(design_file: str, as_json: bool, verify: bool) -> None:
     is missed or a part is over its allowance.
     """
     design = load_design(design_file)
-    result = run_check(design, verify=verify)
+    settings = _spread_settings(samples, distribution, seed)
+    result = run_check(design, verify=verify, spread=settings)
     if as_json:
         _emit_json(check_json(result))
     else:
         click.echo(check_text(result))
+    if plots and result.spread is not None:
+        from synth.plots import target_histograms
+
+        _write_plots(target_histograms(design, result.spread, plots), as_json)
     if not result.ok:
         sys.exit(1)
 
@@ -147,22 +171,44 @@ class _Progress:
             click.echo("\r" + " " * 50 + "\r", err=True, nl=False)
 
 
+def _spread_settings(samples: int, distribution: str, seed: int) -> SpreadSettings:
+    if samples < 0:
+        raise DesignError(f"--samples {samples} must be 0 (no Monte Carlo) or more")
+    return SpreadSettings(samples=samples, distribution=distribution, seed=seed)
+
+
+def _write_plots(paths: list[Any], as_json: bool) -> None:
+    if not as_json:
+        for path in paths:
+            click.echo(f"plot written: {path}")
+
+
 def _run_design(design: Design, top: int, time_limit: float | None, as_json: bool,
-                quiet: bool) -> None:
+                quiet: bool, spread: dict[str, Any]) -> None:
     if not design.free_resistors:
         raise DesignError(f"{design.origin}: no resistor has choose = ...; mark the parts "
                           "rnsynth should pick, or use rnsynth check")
     if top < 1:
         raise DesignError(f"--top {top} must be at least 1")
+    settings = _spread_settings(spread["samples"], spread["distribution"], spread["seed"])
     progress = _Progress(enabled=not quiet and sys.stderr.isatty())
     try:
-        result = synthesize(design, top=top, time_limit_s=time_limit, progress=progress)
+        result = synthesize(design, top=top, time_limit_s=time_limit, progress=progress,
+                            spread=settings, rank_by=spread["rank_by"])
     finally:
         progress.close()
     if as_json:
         _emit_json(design_json(result))
     else:
         click.echo(design_text(result))
+    if spread["plots"] and result.candidates:
+        from synth.plots import candidate_scatter, target_histograms
+
+        best = result.candidates[0]
+        paths = candidate_scatter(result, spread["plots"], cost=spread["cost"])
+        if best.spread is not None:
+            paths += target_histograms(design, best.spread, spread["plots"])
+        _write_plots(paths, as_json)
     if not result.feasible:
         sys.exit(1)
 
@@ -170,6 +216,13 @@ def _run_design(design: Design, top: int, time_limit: float | None, as_json: boo
 def _search_options(command: F) -> F:
     options = [
         click.option("--top", default=10, show_default=True, help="Candidates to show."),
+        click.option("--rank-by", type=click.Choice(RANKINGS), default="nominal",
+                     show_default=True,
+                     help="nominal error, worst-case error over the tolerance box, or "
+                          "Monte Carlo yield."),
+        click.option("--cost", type=click.Choice(["supply", "hottest", "distinct"]),
+                     default="supply", show_default=True,
+                     help="Horizontal axis of the candidate plot."),
         click.option("--time-limit", type=float, default=None, metavar="SECONDS",
                      help="Stop searching after this long and show the best so far, "
                           "marked unproven."),
@@ -178,7 +231,7 @@ def _search_options(command: F) -> F:
     ]
     for option in reversed(options):
         command = option(command)
-    return command
+    return _spread_options(command)
 
 
 def _quick_options(command: F) -> F:
@@ -207,13 +260,14 @@ def _quick_options(command: F) -> F:
 
 
 def _quick_run(tables: dict[str, Any], origin: str, save: str | None, force: bool, top: int,
-               time_limit: float | None, as_json: bool, quiet: bool) -> None:
+               time_limit: float | None, as_json: bool, quiet: bool,
+               spread: dict[str, Any]) -> None:
     design = design_from_dict(tables, origin=origin)
     if save is not None:
         write_atomic(save, tomli_w.dumps(tables), force=force)
         if not as_json:
             click.echo(f"design file written: {save}")
-    _run_design(design, top, time_limit, as_json, quiet)
+    _run_design(design, top, time_limit, as_json, quiet, spread)
 
 
 def _settings(series: str, value_range: str | None, within: str | None, package: str | None,
@@ -227,7 +281,7 @@ def _settings(series: str, value_range: str | None, within: str | None, package:
 @_search_options
 @_friendly
 def design_command(design_file: str, top: int, time_limit: float | None, as_json: bool,
-                   quiet: bool) -> None:
+                   quiet: bool, **spread: Any) -> None:
     """Choose standard values for the free parts of a design.
 
     Shows the ideal continuous values, then the best candidates, each
@@ -236,7 +290,7 @@ def design_command(design_file: str, top: int, time_limit: float | None, as_json
     meet every window and limit (the nearest designs are shown and the binding
     target or limit named).
     """
-    _run_design(load_design(design_file), top, time_limit, as_json, quiet)
+    _run_design(load_design(design_file), top, time_limit, as_json, quiet, spread)
 
 
 @cli.command("divider")
@@ -250,12 +304,13 @@ def divider_command(input_voltage: str, output_voltage: str, load: str | None,
                     max_current: str | None, series: str, value_range: str | None,
                     within: str | None, package: str, ambient: str, margin: str,
                     save: str | None, force: bool, top: int, time_limit: float | None,
-                    as_json: bool, quiet: bool) -> None:
+                    as_json: bool, quiet: bool, **spread: Any) -> None:
     """Voltage divider: R1 from input to output, R2 from output to ground."""
     settings = _settings(series, value_range, within, package, ambient, margin)
     tables = divider_tables(input_voltage=input_voltage, output_voltage=output_voltage,
                             settings=settings, load=load, max_current=max_current)
-    _quick_run(tables, "rnsynth divider options", save, force, top, time_limit, as_json, quiet)
+    _quick_run(tables, "rnsynth divider options", save, force, top, time_limit, as_json, quiet,
+               spread)
 
 
 @cli.command("regulator")
@@ -276,14 +331,14 @@ def regulator_command(style: str, reference: str, output_voltage: str, pin_curre
                       load: str | None, min_current: str | None, max_current: str | None,
                       series: str, value_range: str | None, within: str | None, package: str,
                       ambient: str, margin: str, save: str | None, force: bool, top: int,
-                      time_limit: float | None, as_json: bool, quiet: bool) -> None:
+                      time_limit: float | None, as_json: bool, quiet: bool, **spread: Any) -> None:
     """Regulator feedback network: RTOP from output to the tap, RBOT from tap to ground."""
     settings = _settings(series, value_range, within, package, ambient, margin)
     tables = regulator_tables(style=style, reference=reference, output_voltage=output_voltage,
                               settings=settings, pin_current=pin_current, load=load,
                               min_current=min_current, max_current=max_current)
     _quick_run(tables, "rnsynth regulator options", save, force, top, time_limit, as_json,
-               quiet)
+               quiet, spread)
 
 
 @cli.command("led")
@@ -296,7 +351,7 @@ def regulator_command(style: str, reference: str, output_voltage: str, pin_curre
 def led_command(supply: str, forward: str, count: int, current: str, series: str,
                 value_range: str | None, within: str | None, package: str, ambient: str,
                 margin: str, save: str | None, force: bool, top: int, time_limit: float | None,
-                as_json: bool, quiet: bool) -> None:
+                as_json: bool, quiet: bool, **spread: Any) -> None:
     """LED series resistor, R = (Vsupply - count x Vforward) / I.
 
     With --package auto the smallest chip package whose derated allowance
@@ -309,7 +364,8 @@ def led_command(supply: str, forward: str, count: int, current: str, series: str
                                 settings=settings)
     if not as_json:
         click.echo(f"package: {chosen}")
-    _quick_run(tables, "rnsynth led options", save, force, top, time_limit, as_json, quiet)
+    _quick_run(tables, "rnsynth led options", save, force, top, time_limit, as_json, quiet,
+               spread)
 
 
 @cli.command("pad")
@@ -322,11 +378,12 @@ def led_command(supply: str, forward: str, count: int, current: str, series: str
 def pad_command(impedance: str, loss: str, shape: str, series: str, value_range: str | None,
                 within: str | None, package: str, ambient: str, margin: str, save: str | None,
                 force: bool, top: int, time_limit: float | None, as_json: bool,
-                quiet: bool) -> None:
+                quiet: bool, **spread: Any) -> None:
     """Matched attenuator pad (T or Pi) between two terminations of the line impedance."""
     settings = _settings(series, value_range, within, package, ambient, margin)
     tables = pad_tables(impedance=impedance, loss=loss, shape=shape, settings=settings)
-    _quick_run(tables, "rnsynth pad options", save, force, top, time_limit, as_json, quiet)
+    _quick_run(tables, "rnsynth pad options", save, force, top, time_limit, as_json, quiet,
+               spread)
 
 
 def main() -> None:

@@ -8,7 +8,9 @@ from typing import Any
 
 from tabulate import tabulate
 
-from synth.report import json_number, part_json, target_json
+from synth.formatting import json_number
+from synth.report import part_json, target_json
+from synth.spread_report import spread_json, spread_text
 from synth.synthesis import Candidate, SynthesisResult
 from synth.units import format_eng
 
@@ -35,6 +37,11 @@ def _row(candidate: Candidate, refs: list[str]) -> list[str]:
     cells.append("-" if hot is None or hot.utilization is None
                  else f"{hot.ref} {hot.utilization * 100:.3g}%")
     cells.append(format_eng(candidate.supply_current, "A"))
+    if candidate.spread is not None:
+        s = candidate.spread
+        cells += [f"{candidate.objective * 100:.3g}%", f"{s.worst_error * 100:.3g}%",
+                  f"{s.rss_error * 100:.3g}%",
+                  "-" if s.yield_fraction is None else f"{s.yield_fraction * 100:.4g}%"]
     return cells
 
 
@@ -55,6 +62,11 @@ def design_text(result: SynthesisResult) -> str:
         return "\n".join(lines)
     refs = list(result.candidates[0].values)
     headers = ["rank", *refs, *[t.label for t in design.targets], "hottest", "supply"]
+    if result.candidates[0].spread is not None:
+        headers += ["nominal error", "worst-case error", "RSS", "yield"]
+        phrase = {"nominal": "nominal error", "yield": "Monte Carlo yield",
+                  "worst-case": "worst-case error over the tolerance box"}[result.rank_by]
+        lines.append(f"ranked by {phrase}")
     lines.append(tabulate([_row(c, refs) for c in result.candidates], headers=headers,
                           disable_numparse=True))
     lines.append("")
@@ -74,6 +86,10 @@ def design_text(result: SynthesisResult) -> str:
         lines.append(f"hottest part of the best design: {hot.ref} at "
                      f"{format_eng(hot.power, 'W')}, {hot.utilization * 100:.3g}% of its "
                      f"allowed {format_eng(hot.allowed_power or 0.0, 'W')}")
+    if best.spread is not None:
+        lines.append("")
+        lines.append("spread of the best design:")
+        lines.append(spread_text(best.spread, [t.unit for t in best.targets]))
     lines.extend(best.check.cautions)
     return "\n".join(lines)
 
@@ -90,6 +106,7 @@ def _candidate_json(candidate: Candidate) -> dict[str, Any]:
         "targets": [target_json(t) for t in candidate.targets],
         "parts": [part_json(p) for p in candidate.parts],
         "problems": list(candidate.problems),
+        **({"spread": spread_json(candidate.spread)} if candidate.spread is not None else {}),
     }
 
 
@@ -106,6 +123,7 @@ def design_json(result: SynthesisResult) -> dict[str, Any]:
         "combinations": result.combinations,
         "evaluated": result.evaluated,
         "elapsed_s": result.elapsed_s,
+        "rank_by": result.rank_by,
         "candidates": [_candidate_json(c) for c in result.candidates],
         "cautions": list(best.check.cautions) if best else [],
     }

@@ -14,16 +14,11 @@ from typing import Any
 from tabulate import tabulate
 
 from synth.analysis import CheckResult, PartReport, TargetReport
+from synth.formatting import json_number
+from synth.spread_report import spread_json, spread_text
 from synth.units import format_eng, format_rkm
 
 _UNIT_OF = {"voltage": "V", "current": "A", "power": "W", "resistance": "Ω", "ratio": ""}
-
-
-def json_number(value: float | None) -> float | None:
-    """A float for JSON, or None for missing and non-finite values."""
-    if value is None or not math.isfinite(value):
-        return None
-    return float(value)
 
 
 def _quantity(value: float, unit: str, digits: int = 5) -> str:
@@ -116,6 +111,9 @@ def check_text(result: CheckResult) -> str:
                      f"{result.verify_difference:.2e} (relative)")
     lines.append("result: " + ("all targets met, all parts within their allowance"
                                if result.ok else "FAILS: " + "; ".join(result.problems)))
+    if result.spread is not None:
+        lines.append("")
+        lines.append(spread_text(result.spread, [t.unit for t in result.targets]))
     lines.extend(result.cautions)
     return "\n".join(lines)
 
@@ -162,4 +160,6 @@ def check_json(result: CheckResult) -> dict[str, Any]:
     }
     if result.verify_difference is not None:
         doc["verify"] = {"max_difference": result.verify_difference}
+    if result.spread is not None:
+        doc["spread"] = spread_json(result.spread)
     return doc

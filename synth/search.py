@@ -36,6 +36,7 @@ import numpy as np
 from synth.candidates import Choices
 from synth.design import Design
 from synth.evaluate import Evaluation, Evaluator
+from synth.spread import WorstCase
 
 TIE_TOLERANCE = 1e-12
 """Objectives closer than this (as fractions) are ties, ordered by the tie-break."""
@@ -131,8 +132,9 @@ class _Problem:
     """A design's targets and limits as arrays, evaluated over candidate blocks."""
 
     def __init__(self, design: Design, evaluator: Evaluator, choices: list[Choices],
-                 relaxed: bool):
+                 relaxed: bool, worst_case: WorstCase | None = None):
         self.design, self.ev, self.choices, self.relaxed = design, evaluator, choices, relaxed
+        self.worst_case = worst_case
         self.free = np.array([evaluator.resistor_index[c.ref] for c in choices], dtype=int)
         self.base = np.array([r.value if r.value is not None else 1.0 for r in design.resistors])
         targets = design.targets
@@ -224,8 +226,16 @@ class _Problem:
             objective = np.maximum(violation, 0.0)
             keep = np.isfinite(objective)
         else:
-            objective = error
             keep = (violation <= 0) & np.isfinite(error)
+            objective = error
+            if self.worst_case is not None and keep.any() and self.has_goal.any():
+                objective = error.copy()
+                low, high = self.worst_case.ranges(r[keep])
+                g = self.goal[self.has_goal]
+                spread = np.maximum(np.abs(high[:, self.has_goal] - g),
+                                    np.abs(low[:, self.has_goal] - g)) / self.scale[self.has_goal]
+                objective[keep] = np.where(np.all(np.isfinite(spread), axis=1),
+                                           spread.max(axis=1), np.inf)
         values = np.stack([c.first[indices[:, p]] for p, c in enumerate(self.choices)]
                           + [c.second[indices[:, p]] for p, c in enumerate(self.choices)],
                           axis=1)
@@ -366,6 +376,7 @@ def search(
     seeds: np.ndarray | None = None,
     relaxed: bool = False,
     progress: Callable[[float], None] | None = None,
+    worst_case: WorstCase | None = None,
 ) -> SearchOutcome:
     """Find the ``top`` best candidates by branch and bound.
 
@@ -388,6 +399,10 @@ def search(
         the nearest designs when none meets everything.
     progress : callable, optional
         Called with the share of the search space settled (0..1).
+    worst_case : WorstCase, optional
+        Rank by the largest worst-case relative error over the tolerance box
+        instead of the nominal error.  A candidate's worst-case error is at
+        least its nominal error, so the nominal box bounds stay sound.
 
     Returns
     -------
@@ -401,7 +416,7 @@ def search(
     lower choice indices, position by position.
     """
     start = time.perf_counter()
-    problem = _Problem(design, evaluator, choices, relaxed)
+    problem = _Problem(design, evaluator, choices, relaxed, worst_case)
     k = len(choices)
     sizes = np.array([len(c) for c in choices], dtype=np.int64)
     total = math.prod(int(s) for s in sizes)

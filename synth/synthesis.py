@@ -24,9 +24,11 @@ from synth.analysis import CheckResult, PartReport, TargetReport, check
 from synth.candidates import Choices, choices_for, combination_count, series_rank
 from synth.catalogs import series_names
 from synth.design import Design
+from synth.errors import DesignError
 from synth.evaluate import Evaluator
 from synth.ideal import ideal_values
 from synth.search import SearchOutcome, search
+from synth.spread import SpreadResult, SpreadSettings, WorstCase, analyse_spread
 
 
 @dataclass(frozen=True)
@@ -58,6 +60,8 @@ class Candidate:
         What fails, when not feasible.
     check : CheckResult
         The full re-check of the candidate.
+    spread : SpreadResult or None
+        Tolerance, temperature and supply spread, when asked for.
     """
 
     rank: int
@@ -71,6 +75,7 @@ class Candidate:
     feasible: bool
     problems: tuple[str, ...]
     check: CheckResult
+    spread: SpreadResult | None = None
 
     @property
     def hottest(self) -> PartReport | None:
@@ -105,6 +110,8 @@ class SynthesisResult:
         Size of the catalogue product.
     elapsed_s : float
         Search time, s.
+    rank_by : str
+        ``"nominal"``, ``"worst-case"`` or ``"yield"``: what ordered the candidates.
     """
 
     design: Design
@@ -116,6 +123,10 @@ class SynthesisResult:
     evaluated: int
     combinations: int
     elapsed_s: float
+    rank_by: str = "nominal"
+
+
+RANKINGS = ("nominal", "worst-case", "yield")
 
 
 def _seeds(choices: list[Choices], ideal: dict[str, float]) -> np.ndarray | None:
@@ -246,6 +257,8 @@ def synthesize(
     top: int = 10,
     time_limit_s: float | None = None,
     progress: Callable[[float], None] | None = None,
+    spread: SpreadSettings | None = None,
+    rank_by: str = "nominal",
 ) -> SynthesisResult:
     """Choose standard values for a design's free parts.
 
@@ -260,6 +273,14 @@ def synthesize(
         unproven unless the search had already finished.
     progress : callable, optional
         Called with the settled share of the search space (0..1).
+    spread : SpreadSettings, optional
+        Analyse every returned candidate's spread (worst case, RSS, Monte Carlo).
+    rank_by : {"nominal", "worst-case", "yield"}
+        ``"nominal"`` minimises the largest relative error at nominal values;
+        ``"worst-case"`` the largest worst-case relative error over the
+        tolerance box (exact, by the same branch and bound); ``"yield"``
+        finds the nominal best candidates, then orders them by Monte Carlo
+        yield (highest first; ties keep the nominal order).
 
     Returns
     -------
@@ -286,12 +307,16 @@ def synthesize(
     1e-12) go to fewer distinct values, then coarser series, then lower supply
     current.  The search is exact: see :mod:`synth.search`.
     """
+    if rank_by not in RANKINGS:
+        raise DesignError(f"rank_by {rank_by!r} is not known; use one of {', '.join(RANKINGS)}")
     choices = [choices_for(r, design.origin) for r in design.free_resistors]
     evaluator = Evaluator(design)
+    worst_case = WorstCase(design, evaluator) if rank_by == "worst-case" else None
     ideal = ideal_values(design, evaluator)
     seeds = _seeds(choices, ideal)
     outcome: SearchOutcome = search(design, evaluator, choices, top=top,
-                                    time_limit_s=time_limit_s, seeds=seeds, progress=progress)
+                                    time_limit_s=time_limit_s, seeds=seeds, progress=progress,
+                                    worst_case=worst_case)
     feasible = len(outcome.ranked.objective) > 0
     binding = None
     if not feasible:
@@ -309,11 +334,19 @@ def synthesize(
     for rank, row in enumerate(ranked.indices, start=1):
         candidate = _candidate(design, choices, row, rank, 0.0)
         candidates.append(replace(candidate, objective=_objective(design, candidate.targets)))
+    if spread is not None or rank_by == "yield":
+        settings = spread or SpreadSettings()
+        candidates = [replace(c, spread=analyse_spread(design, c.positions, settings, evaluator))
+                      for c in candidates]
+    if rank_by == "yield" and candidates:
+        order = sorted(candidates, key=lambda c: (-(c.spread.yield_fraction or 0.0)
+                                                  if c.spread else 0.0, c.rank))
+        candidates = [replace(c, rank=k) for k, c in enumerate(order, start=1)]
     if not feasible and candidates:
         binding = _binding(candidates[0])
     return SynthesisResult(
         design=design, ideal=ideal, candidates=tuple(candidates),
         proven_optimal=proven, feasible=feasible and bool(candidates),
         binding=binding, evaluated=evaluated, combinations=combination_count(choices),
-        elapsed_s=elapsed,
+        elapsed_s=elapsed, rank_by=rank_by,
     )
