@@ -444,40 +444,60 @@ def _part_spread(design: Design, ev: Evaluator, var: _Variables, r0: np.ndarray,
     return out
 
 
+_MC_BLOCK = 1 << 15
+"""Samples drawn and solved per block: arrays stay in cache; the random stream is drawn
+block by block in a fixed order, so a seed gives the same samples every time."""
+
+
 def _monte_carlo(design: Design, ev: Evaluator, var: _Variables, r0: np.ndarray,
                  src: SourceValues, settings: SpreadSettings, targets: list[TargetSpread]
                  ) -> tuple[list[TargetSpread], float]:
     rng = np.random.default_rng(settings.seed)
-    m, n = settings.samples, len(var)
-
-    def draw(width: np.ndarray) -> np.ndarray:
-        if settings.distribution == "normal":
-            return rng.standard_normal((m, len(width))) * (width / 3)
-        return rng.uniform(-1.0, 1.0, (m, len(width))) * width
-
+    total, n = settings.samples, len(var)
     low_c, high_c = design.temperature_c
-    temperature = rng.uniform(low_c, high_c, m) if high_c > low_c else np.full(m, low_c)
-    factors = 1 + draw(var.tolerance) if n else np.ones((m, 0))
     tcr = np.array([design.resistors[k].tcr if g == "resistor" else 0.0
                     for g, k in var.kind])
-    if n:
-        # each part's temperature coefficient lies within its ±TCR (a normal spread
-        # reads the TCR limit as 3σ, like a tolerance)
-        coefficient = draw(tcr)
-        factors *= 1 + coefficient * (temperature[:, None] - REFERENCE_C)
-    r, s = var.apply(factors, r0, src)
-    result = ev.evaluate(r, s)
-    values = result.targets
-    inside = _window(design, values) & np.isfinite(values)
-    ok = inside.all(axis=1) if values.shape[1] else np.ones(m, dtype=bool)
-    for k, resistor in enumerate(design.resistors):
-        rating = design.rating(resistor)
-        if rating is None:
-            continue
-        allowed = allowed_power(rating, temperature, design.margin_frac)
-        ok &= result.resistor_power[:, k] <= allowed
-        ok &= result.resistor_voltage[:, k] <= rating.limiting_voltage_v * \
-            design.voltage_margin_frac
+    ratings = [(k, design.rating(r)) for k, r in enumerate(design.resistors)]
+    ratings = [(k, rating) for k, rating in ratings if rating is not None]
+    values = np.empty((total, len(design.targets)))
+    inside = np.empty((total, len(design.targets)), dtype=bool)
+    ok = np.empty(total, dtype=bool)
+
+    def draw(m: int, width: np.ndarray) -> np.ndarray:
+        if settings.distribution == "normal":
+            out = rng.standard_normal((m, len(width)))
+            out *= width / 3
+        else:
+            out = rng.random((m, len(width)))
+            out *= 2 * width
+            out -= width
+        return out
+
+    for start in range(0, total, _MC_BLOCK):
+        m = min(_MC_BLOCK, total - start)
+        rows = slice(start, start + m)
+        temperature = (rng.uniform(low_c, high_c, m) if high_c > low_c
+                       else np.full(m, low_c))
+        factors = draw(m, var.tolerance)
+        factors += 1.0
+        if n:
+            # each part's temperature coefficient lies within its ±TCR (a normal spread
+            # reads the TCR limit as 3σ, like a tolerance)
+            drift = draw(m, tcr)
+            drift *= (temperature - REFERENCE_C)[:, None]
+            drift += 1.0
+            factors *= drift
+        r, s = var.apply(factors, r0, src)
+        result = ev.evaluate(r, s)
+        values[rows] = result.targets
+        inside[rows] = _window(design, result.targets) & np.isfinite(result.targets)
+        good = inside[rows].all(axis=1)
+        for k, rating in ratings:
+            allowed = allowed_power(rating, temperature, design.margin_frac)
+            good &= result.resistor_power[:, k] <= allowed
+            good &= (result.resistor_voltage[:, k]
+                     <= rating.limiting_voltage_v * design.voltage_margin_frac)
+        ok[rows] = good
     updated = []
     for j, t in enumerate(targets):
         column = values[:, j]
