@@ -28,6 +28,8 @@ from synth.evaluate import Evaluation, Evaluator
 from synth.mesh import MeshSolution, MeshSolver
 from synth.network import Network, build_network
 from synth.nodal import nodal_solve
+from synth.spread import SpreadResult, SpreadSettings, analyse_spread
+from synth.synthesis import Candidate, SynthesisResult, synthesize
 from synth.units import (
     format_eng,
     format_rkm,
@@ -70,6 +72,8 @@ __all__ = [
     "load_series",
     "nearest_value",
     "nodal_solve",
+    "SpreadResult", "SpreadSettings", "analyse_spread",
+    "Candidate", "SynthesisResult", "synthesize",
     "parse_fraction",
     "parse_quantity",
     "parse_resistance",
