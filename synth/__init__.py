@@ -41,6 +41,7 @@ from synth.units import (
 )
 
 __all__ = [
+    "Candidate",
     "CheckResult",
     "Design",
     "DesignError",
@@ -57,10 +58,14 @@ __all__ = [
     "RnsynthError",
     "Series",
     "Source",
+    "SpreadResult",
+    "SpreadSettings",
+    "SynthesisResult",
     "Target",
     "TargetReport",
     "__version__",
     "allowed_power",
+    "analyse_spread",
     "build_network",
     "check",
     "derating_factor",
@@ -72,8 +77,6 @@ __all__ = [
     "load_series",
     "nearest_value",
     "nodal_solve",
-    "SpreadResult", "SpreadSettings", "analyse_spread",
-    "Candidate", "SynthesisResult", "synthesize",
     "parse_fraction",
     "parse_quantity",
     "parse_resistance",
@@ -81,4 +84,5 @@ __all__ = [
     "parse_temperature",
     "series_names",
     "series_values",
+    "synthesize",
 ]

@@ -9,8 +9,10 @@ treat every position as an ordered list.
 
 from __future__ import annotations
 
-__all__ = ["Choices", "StockItem", "choices_for", "load_stock", "part_range", "series_rank"]
+__all__ = ["Choices", "StockItem", "choices_for", "coarsest_series", "load_stock", "part_range",
+           "series_rank"]
 
+import functools
 import math
 from dataclasses import dataclass
 from pathlib import Path
@@ -108,6 +110,20 @@ def series_rank(values: np.ndarray) -> np.ndarray:
                                                                 rtol=1e-9)
         ranks[hit] = rank
     return ranks
+
+
+@functools.lru_cache(maxsize=4096)
+def coarsest_series(value: float) -> str | None:
+    """Name of the coarsest series holding ``value`` (ohm), or None.
+
+    Examples
+    --------
+    >>> coarsest_series(4700.0), coarsest_series(4990.0), coarsest_series(1234.0)
+    ('E3', 'E96', None)
+    """
+    rank = int(series_rank(np.array([value]))[0])
+    names = series_names()
+    return names[rank] if rank < len(names) else None
 
 
 @dataclass(frozen=True)

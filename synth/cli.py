@@ -13,6 +13,7 @@ import sys
 import time
 from collections.abc import Callable
 from functools import wraps
+from pathlib import Path
 from typing import Any, TypeVar
 
 import click
@@ -20,6 +21,9 @@ import tomli_w
 
 from synth import __version__
 from synth.analysis import check as run_check
+from synth.board import load_board
+from synth.bom import build_bom
+from synth.bom_report import bom_summary, render_bom
 from synth.catalogs import nearest_value, series_names, series_values
 from synth.design import Design, design_from_dict, load_design
 from synth.design_report import design_json, design_text
@@ -384,6 +388,54 @@ def pad_command(impedance: str, loss: str, shape: str, series: str, value_range:
     tables = pad_tables(impedance=impedance, loss=loss, shape=shape, settings=settings)
     _quick_run(tables, "rnsynth pad options", save, force, top, time_limit, as_json, quiet,
                spread)
+
+
+@cli.command("bom")
+@click.argument("files", nargs=-1, required=True, type=click.Path(dir_okay=False))
+@click.option("--stock", type=click.Path(dir_okay=False), default=None,
+              help="House stock list (CSV: value, package, tolerance, quantity).")
+@click.option("--stock-only", is_flag=True,
+              help="Choose only values the stock list holds.")
+@click.option("--pool", type=int, default=None,
+              help="Feasible candidates kept per network for consolidation [default: 200].")
+@click.option("--format", "form", type=click.Choice(["csv", "json", "markdown"]),
+              default="csv", show_default=True, help="Output format.")
+@click.option("--output", type=click.Path(dir_okay=False), default=None,
+              help="Write the BOM to this file instead of standard output.")
+@click.option("--force", is_flag=True, help="Replace an existing output file.")
+@click.option("--time-limit", type=float, default=30.0, show_default=True,
+              metavar="SECONDS", help="Time limit of the consolidation.")
+@click.option("--quiet", is_flag=True, help="No summary and no progress lines.")
+@_friendly
+def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, pool: int | None,
+                form: str, output: str | None, force: bool, time_limit: float,
+                quiet: bool) -> None:
+    """Bill of materials for a board: design files and/or board files.
+
+    Designs every network, then chooses one design per network so that the
+    board has the fewest distinct BOM lines (CP-SAT, exact within the time
+    limit), and writes one line per distinct orderable part.
+    """
+    if output is not None and Path(output).exists() and not force:
+        raise DesignError(f"{output}: already exists; pass --force to replace it")
+    board = load_board(list(files), stock=stock, pool=pool)
+    if stock_only and board.stock_path is None:
+        raise DesignError("--stock-only needs a stock list; give --stock FILE")
+
+    def note(name: str) -> None:
+        if not quiet:
+            click.echo(f"designing {name} ...", err=True)
+
+    result = build_bom(board, stock_only=stock_only, time_limit_s=time_limit, progress=note)
+    text = render_bom(result, form)
+    if output is None:
+        click.echo(text, nl=False)
+    else:
+        write_atomic(output, text, force=force)
+    if not quiet:
+        click.echo(bom_summary(result), err=output is None)
+        if output is not None:
+            click.echo(f"BOM written: {output}")
 
 
 def main() -> None:

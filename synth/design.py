@@ -50,7 +50,8 @@ _DESIGN_KEYS = (
 )
 _SOURCE_KEYS = ("ref", "kind", "plus", "minus", "from", "to", "value", "tolerance", "note")
 _RESISTOR_KEYS = (
-    "ref", "nodes", "value", "choose", "range", "tolerance", "tcr", "package", "combine", "note",
+    "ref", "nodes", "value", "choose", "range", "tolerance", "tcr", "package", "combine", "bom",
+    "note",
 )
 _REGULATOR_KEYS = ("ref", "output", "sense", "reference", "setpoint", "tolerance", "note")
 _TARGET_KEYS = (*TARGET_KINDS, "name", "equals", "within", "at_least", "at_most", "note")
@@ -113,6 +114,9 @@ class Resistor:
         Package name in the design's package table, or None (not rated).
     combine : {None, "series", "parallel"}
         Two parts from the same choice fill this position.
+    bom : bool
+        True when the part goes on the bill of materials; False for resistors
+        that model something else (a load, a sensor, an input resistance).
     """
 
     ref: str
@@ -125,6 +129,7 @@ class Resistor:
     tcr: float
     package: str | None
     combine: str | None
+    bom: bool = True
 
     @property
     def free(self) -> bool:
@@ -487,10 +492,13 @@ def _read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
         hint = nearest_name(package, packages)
         reader.fail(f"package {package!r} is not in the package table{hint}; "
                     f"use one of {', '.join(sorted(packages))} or add a row to your table")
+    bom = raw.get("bom", True)
+    if not isinstance(bom, bool):
+        reader.fail(f"bom must be true or false, not {bom!r}")
     return Resistor(
         ref=ref, nodes=(a, b), value=value, choose=choose, stock_path=stock_path, range=span,
         tolerance=tolerance, tcr=tcr, package=package,
-        combine=raw.get("combine") if choose is not None else None,
+        combine=raw.get("combine") if choose is not None else None, bom=bom,
     )
 
 

@@ -457,8 +457,8 @@ def _monte_carlo(design: Design, ev: Evaluator, var: _Variables, r0: np.ndarray,
     low_c, high_c = design.temperature_c
     tcr = np.array([design.resistors[k].tcr if g == "resistor" else 0.0
                     for g, k in var.kind])
-    ratings = [(k, design.rating(r)) for k, r in enumerate(design.resistors)]
-    ratings = [(k, rating) for k, rating in ratings if rating is not None]
+    ratings = [(k, rating) for k, r in enumerate(design.resistors)
+               if (rating := design.rating(r)) is not None]
     values = np.empty((total, len(design.targets)))
     inside = np.empty((total, len(design.targets)), dtype=bool)
     ok = np.empty(total, dtype=bool)

@@ -13,7 +13,6 @@ from __future__ import annotations
 
 __all__ = ["Candidate", "SynthesisResult", "synthesize"]
 
-import functools
 import math
 from collections.abc import Callable
 from dataclasses import dataclass, replace
@@ -21,8 +20,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from synth.analysis import CheckResult, PartReport, TargetReport, check
-from synth.candidates import Choices, choices_for, combination_count, series_rank
-from synth.catalogs import series_names
+from synth.candidates import Choices, choices_for, coarsest_series, combination_count
 from synth.design import Design
 from synth.errors import DesignError
 from synth.evaluate import Evaluator
@@ -143,15 +141,8 @@ def _seeds(choices: list[Choices], ideal: dict[str, float]) -> np.ndarray | None
     return np.stack([g.ravel() for g in grid], axis=1).astype(np.int64)
 
 
-@functools.lru_cache(maxsize=4096)
-def _coarsest_series(value: float) -> str | None:
-    rank = int(series_rank(np.array([value]))[0])
-    names = series_names()
-    return names[rank] if rank < len(names) else None
-
-
 def _series_label(value: float, choice: Choices) -> str:
-    return _coarsest_series(value) or choice.label
+    return coarsest_series(value) or choice.label
 
 
 def _split_part(part: PartReport, a: float, b: float, how: str) -> list[PartReport]:

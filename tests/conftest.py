@@ -9,7 +9,8 @@ import pytest
 from synth.design import design_from_dict
 
 ROOT = Path(__file__).resolve().parent.parent
-EXAMPLES = sorted((ROOT / "examples").glob("*.toml"))
+EXAMPLES = sorted(p for p in (ROOT / "examples").glob("*.toml") if not p.stem.endswith("board"))
+BOARDS = sorted((ROOT / "examples").glob("*board.toml"))
 
 
 def divider(top="10k", bottom="10k", supply="10 V", **extra_design):
