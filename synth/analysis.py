@@ -227,6 +227,16 @@ def _part_reports(design: Design, ev: Evaluator, r: np.ndarray,
             ref=source.ref, kind=f"{source.kind} source", value=source.value, current=current,
             voltage=across, power=current * across,
         ))
+    for c in design.controlled:
+        col = ev.branch_index[c.ref]
+        current = float(sol.branch_currents[0, col])
+        a, b = ev.node_index[c.pos], ev.node_index[c.neg]
+        across = float(v[a] - v[b])
+        # delivered power: out of plus for a voltage output, into `to` for a current output
+        parts.append(PartReport(
+            ref=c.ref, kind=f"controlled source ({c.kind})", value=c.gain, current=current,
+            voltage=across, power=current * across,
+        ))
     for g, regulator in enumerate(design.regulators):
         col = ev.branch_index[regulator.ref]
         current = float(sol.branch_currents[0, col])

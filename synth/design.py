@@ -43,7 +43,8 @@ from synth.units import (
 TARGET_KINDS = ("voltage", "current", "ratio", "power", "resistance")
 _TARGET_UNIT = {"voltage": "V", "current": "A", "power": "W", "resistance": "Ω", "ratio": ""}
 
-_TOP_KEYS = ("design", "source", "resistor", "regulator", "target")
+_TOP_KEYS = ("design", "source", "resistor", "regulator", "controlled", "transistor",
+             "amplifier", "target")
 _DESIGN_KEYS = (
     "title", "ground", "ambient", "margin", "voltage_margin", "temperature",
     "package", "packages", "tolerance", "tcr", "notes",
@@ -165,6 +166,78 @@ class Regulator:
 
 
 @dataclass(frozen=True)
+class ControlledSource:
+    """A linear controlled source.
+
+    Attributes
+    ----------
+    ref : str
+    kind : {"vcvs", "vccs", "ccvs", "cccs"}
+        Voltage- or current-controlled, voltage or current output.
+    pos, neg : str
+        Output: ``plus``/``minus`` for a voltage output (V(plus) - V(minus) =
+        gain × control), ``to``/``from`` for a current output (gain × control
+        amperes through it from ``from`` to ``to``).
+    control_nodes : tuple of str or None
+        ``(a, b)``: the controlling voltage V(a) - V(b).
+    control_ref : str or None
+        The part whose current controls it (its current in its own sign convention).
+    gain : float
+        V/V, A/V (S), V/A (ohm) or A/A.
+    gain_low, gain_high : float
+        The range the gain may take (for spread); both equal ``gain`` when fixed.
+    """
+
+    ref: str
+    kind: str
+    pos: str
+    neg: str
+    control_nodes: tuple[str, str] | None
+    control_ref: str | None
+    gain: float
+    gain_low: float
+    gain_high: float
+
+    @property
+    def voltage_output(self) -> bool:
+        """True for a voltage output (a voltage-defined branch)."""
+        return self.kind in ("vcvs", "ccvs")
+
+
+@dataclass(frozen=True)
+class Transistor:
+    """A bipolar transistor in its forward-active region (DC model).
+
+    It is solved as a base-emitter drop (a voltage source ``REF.BE``) and a
+    collector current β × base current (a controlled source ``REF.C``); a
+    target ``REF active`` keeps the collector-emitter voltage above ``vce_sat``.
+
+    Attributes
+    ----------
+    ref, polarity : str
+        ``polarity`` is ``"npn"`` or ``"pnp"``.
+    collector, base, emitter : str
+    vbe : float
+        Base-emitter drop magnitude, V.
+    beta, beta_low, beta_high : float
+        Typical, least and greatest current gain.
+    vce_sat : float
+        Least collector-emitter voltage magnitude still counted as active, V.
+    """
+
+    ref: str
+    polarity: str
+    collector: str
+    base: str
+    emitter: str
+    vbe: float
+    beta: float
+    beta_low: float
+    beta_high: float
+    vce_sat: float
+
+
+@dataclass(frozen=True)
 class Target:
     """One requirement on the network.
 
@@ -257,6 +330,8 @@ class Design:
     regulators: tuple[Regulator, ...]
     targets: tuple[Target, ...]
     packages: Mapping[str, PackageRating] = field(repr=False)
+    controlled: tuple[ControlledSource, ...] = ()
+    transistors: tuple[Transistor, ...] = ()
 
     @property
     def free_resistors(self) -> tuple[Resistor, ...]:
@@ -273,6 +348,8 @@ class Design:
             names += list(r.nodes)
         for g in self.regulators:
             names += [g.output, g.sense, g.reference]
+        for c in self.controlled:
+            names += [c.neg, c.pos, *(c.control_nodes or ())]
         return tuple(dict.fromkeys(names))
 
     def rating(self, resistor: Resistor) -> PackageRating | None:
@@ -667,12 +744,19 @@ def design_from_dict(data: Mapping[str, Any], origin: str = "<design>") -> Desig
                        for i, g in enumerate(_array(origin, data, "regulator"), 1))
     targets = tuple(_read_target(origin, i, t, settings["ground"])
                     for i, t in enumerate(_array(origin, data, "target"), 1))
+    from synth.active import read_active_parts  # here: synth.active builds on this module
+
+    active = read_active_parts(origin, data, settings["ground"])
+    sources += active.sources
+    regulators += active.regulators
+    targets += active.targets
     design = Design(
         origin=origin, title=settings["title"], ground=settings["ground"],
         ambient_c=settings["ambient_c"], margin_frac=settings["margin_frac"],
         voltage_margin_frac=settings["voltage_margin_frac"],
         temperature_c=settings["temperature_c"], packages=packages,
         sources=sources, resistors=resistors, regulators=regulators, targets=targets,
+        controlled=active.controlled, transistors=active.transistors,
     )
     _check_references(design)
     return design
@@ -685,7 +769,8 @@ def _check_references(design: Design) -> None:
     seen: dict[str, str] = {}
     parts = ([("source", s.ref) for s in design.sources]
              + [("resistor", r.ref) for r in design.resistors]
-             + [("regulator", g.ref) for g in design.regulators])
+             + [("regulator", g.ref) for g in design.regulators]
+             + [("controlled source", c.ref) for c in design.controlled])
     for kind, ref in parts:
         if ref in seen:
             raise DesignError(f"{origin}, {kind} {ref}: reference designator {ref!r} is already "
@@ -694,12 +779,30 @@ def _check_references(design: Design) -> None:
     nodes = design.node_names
     touched = {n for s in design.sources for n in (s.pos, s.neg)}
     touched |= {n for r in design.resistors for n in r.nodes}
+    touched |= {n for c in design.controlled for n in (c.pos, c.neg)}
     if design.ground not in touched:
         raise DesignError(f"{origin}, [design]: ground node {design.ground!r} touches no part"
                           f"{nearest_name(design.ground, touched)}; connect a part to it or "
                           "set ground to your reference node")
     resistor_refs = {r.ref for r in design.resistors}
-    source_refs = {s.ref for s in design.sources} | {g.ref for g in design.regulators}
+    source_refs = ({s.ref for s in design.sources} | {g.ref for g in design.regulators}
+                   | {c.ref for c in design.controlled})
+    current_defined = {c.ref for c in design.controlled if not c.voltage_output}
+    for c in design.controlled:
+        item = f"{origin}, controlled source {c.ref}"
+        for node in c.control_nodes or ():
+            if node not in nodes:
+                raise DesignError(f"{item}: control node {node!r} is not in the circuit"
+                                  f"{nearest_name(node, nodes)}; name a node a part touches")
+        if c.control_ref is not None:
+            if c.control_ref in current_defined:
+                raise DesignError(f"{item}: it is controlled by the current of {c.control_ref!r},"
+                                  " another controlled current source; control it by a "
+                                  "resistor's or a voltage-defined part's current")
+            if c.control_ref not in resistor_refs | source_refs:
+                raise DesignError(f"{item}: control part {c.control_ref!r} is not in the "
+                                  f"circuit{nearest_name(c.control_ref, resistor_refs | source_refs)}"
+                                  "; name a resistor or a source")
     for target in design.targets:
         item = f"{origin}, target {target.label!r}"
         for node in target.nodes:

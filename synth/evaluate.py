@@ -18,6 +18,7 @@ from numpy.typing import ArrayLike
 from synth.derating import allowed_power
 from synth.design import Design, Target
 from synth.errors import DesignError
+from synth.controlled import ControlledSolver
 from synth.mesh import MeshSolution, MeshSolver
 from synth.network import Network, build_network
 
@@ -34,11 +35,14 @@ class SourceValues:
         Current sources, A.
     setpoints : numpy.ndarray
         Regulating element setpoints, V.
+    gains : numpy.ndarray or None
+        Controlled sources' gains, ``(count,)`` or ``(N, count)`` (None: nominal).
     """
 
     voltages: np.ndarray
     currents: np.ndarray
     setpoints: np.ndarray
+    gains: np.ndarray | None = None
 
 
 @dataclass(frozen=True)
@@ -87,8 +91,10 @@ class Evaluator:
         if typical_resistances is None:
             typical_resistances = [_typical(r) for r in design.resistors]
         self.weights = np.asarray(typical_resistances, dtype=float)
-        self.solver = MeshSolver(self.network, self.weights)
-        self._seen: dict[tuple[str, str], MeshSolver] = {}
+        self.solver: MeshSolver | ControlledSolver = (
+            ControlledSolver(self.network, self.weights) if self.network.controlled
+            else MeshSolver(self.network, self.weights))
+        self._seen: dict[tuple[str, str], MeshSolver | ControlledSolver] = {}
         index = {n: i for i, n in enumerate(self.network.nodes)}
         self.node_index = index
         refs = self.network.branch_refs
@@ -103,10 +109,15 @@ class Evaluator:
             [np.nan if p is None else p.limiting_voltage_v * design.voltage_margin_frac
              for p in rated]
         )
+        n_cv = sum(1 for c in design.controlled if c.voltage_output)
+        n_ci = len(design.controlled) - n_cv
         self.nominal_sources = SourceValues(
-            voltages=np.array([s.value for s in design.sources if s.kind == "voltage"]),
-            currents=np.array([s.value for s in design.sources if s.kind == "current"]),
+            voltages=np.array([s.value for s in design.sources if s.kind == "voltage"]
+                              + [0.0] * n_cv),
+            currents=np.array([s.value for s in design.sources if s.kind == "current"]
+                              + [0.0] * n_ci),
             setpoints=np.array([g.setpoint for g in design.regulators]),
+            gains=np.array([c.gain for c in design.controlled]) if design.controlled else None,
         )
         self._supply_columns = np.array(
             [self.branch_index[ref]
@@ -114,13 +125,23 @@ class Evaluator:
             dtype=int,
         )
 
-    def _seen_solver(self, plus: str, minus: str) -> MeshSolver:
+    def _seen_solver(self, plus: str, minus: str) -> MeshSolver | ControlledSolver:
         key = (plus, minus)
         if key not in self._seen:
-            self._seen[key] = MeshSolver(self.network.with_test_source(plus, minus), self.weights)
+            network = self.network.with_test_source(plus, minus)
+            self._seen[key] = (ControlledSolver(network, self.weights) if network.controlled
+                               else MeshSolver(network, self.weights))
         return self._seen[key]
 
-    def seen_resistance(self, resistances: np.ndarray, plus: str, minus: str) -> np.ndarray:
+    def _solve(self, solver: MeshSolver | ControlledSolver, r: np.ndarray,
+               voltages: np.ndarray, currents: np.ndarray, setpoints: np.ndarray,
+               gains: np.ndarray | None) -> MeshSolution:
+        if isinstance(solver, ControlledSolver):
+            return solver.solve(r, voltages, currents, setpoints, gains=gains)
+        return solver.solve(r, voltages, currents, setpoints)
+
+    def seen_resistance(self, resistances: np.ndarray, plus: str, minus: str,
+                        gains: np.ndarray | None = None) -> np.ndarray:
         """Resistance between two nodes with independent sources zeroed, ohm, ``(N,)``.
 
         Voltage sources are shorted and current sources opened; regulating
@@ -131,12 +152,8 @@ class Evaluator:
         n_i = len(self.network.isource_refs)
         test = np.zeros(n_i + 1)
         test[-1] = 1.0
-        sol = solver.solve(
-            resistances,
-            voltages=np.zeros(len(self.network.vsource_refs)),
-            currents=test,
-            setpoints=np.zeros(len(self.network.regulator_refs)),
-        )
+        sol = self._solve(solver, resistances, np.zeros(len(self.network.vsource_refs)), test,
+                          np.zeros(len(self.network.regulator_refs)), gains)
         v = sol.node_voltages
         return v[:, self.node_index[plus]] - v[:, self.node_index[minus]]
 
@@ -156,21 +173,22 @@ class Evaluator:
         """
         r = np.atleast_2d(np.asarray(resistances, dtype=float))
         src = sources or self.nominal_sources
-        sol = self.solver.solve(r, src.voltages, src.currents, src.setpoints)
+        gains = src.gains if src.gains is not None else self.nominal_sources.gains
+        sol = self._solve(self.solver, r, src.voltages, src.currents, src.setpoints, gains)
         n_r = len(self.network.resistor_refs)
         i_r = sol.branch_currents[:, :n_r]
         power = i_r * i_r * r
         ends = self.network.resistor_ends
         across = np.abs(sol.node_voltages[:, ends[:, 0]] - sol.node_voltages[:, ends[:, 1]])
         targets = np.column_stack(
-            [self._target_values(t, r, sol, power) for t in self.design.targets]
+            [self._target_values(t, r, sol, power, gains) for t in self.design.targets]
         ) if self.design.targets else np.zeros((len(r), 0))
         supply = np.clip(sol.branch_currents[:, self._supply_columns], 0.0, None).sum(axis=1)
         return Evaluation(solution=sol, targets=targets, resistor_power=power,
                           resistor_voltage=across, supply_current=supply)
 
     def _target_values(self, target: Target, r: np.ndarray, sol: MeshSolution,
-                       power: np.ndarray) -> np.ndarray:
+                       power: np.ndarray, gains: np.ndarray | None = None) -> np.ndarray:
         v = sol.node_voltages
         idx = self.node_index
         if target.kind == "voltage":
@@ -185,7 +203,7 @@ class Evaluator:
         if target.kind == "power":
             return power[:, self.resistor_index[target.ref or ""]]
         a, b = target.nodes
-        return self.seen_resistance(r, a, b)
+        return self.seen_resistance(r, a, b, gains)
 
     def check_regulators(self, resistances: np.ndarray) -> None:
         """Refuse a design whose regulating element cannot move its sense node.
@@ -196,10 +214,17 @@ class Evaluator:
             When the output voltage of a regulating element comes out
             undefined (its sense node does not depend on its output).
         """
-        if not self.network.regulator_refs:
+        if not self.network.regulator_refs and not self.network.controlled:
             return
-        sol = self.solver.solve(np.atleast_2d(resistances), self.nominal_sources.voltages,
-                                self.nominal_sources.currents, self.nominal_sources.setpoints)
+        src = self.nominal_sources
+        sol = self._solve(self.solver, np.atleast_2d(resistances), src.voltages, src.currents,
+                          src.setpoints, src.gains)
+        if self.network.controlled and not np.all(np.isfinite(sol.node_voltages)):
+            raise DesignError(
+                f"{self.design.origin}: the controlled sources leave the circuit without a "
+                "unique solution (their loop gain is exactly one); check their gains and "
+                "control connections"
+            )
         for k, ref in enumerate(self.network.regulator_refs):
             out = sol.regulator_outputs[:, k]
             if not np.all(np.isfinite(out)) or np.any(np.abs(out) > 1e12):

@@ -55,6 +55,37 @@ class UnionFind:
 
 
 @dataclass(frozen=True)
+class ControlledBranch:
+    """A controlled source as the solvers see it.
+
+    Attributes
+    ----------
+    ref, kind : str
+        ``kind`` is ``"vcvs"``, ``"vccs"``, ``"ccvs"`` or ``"cccs"``.
+    slot : int
+        Its place among the voltage sources (voltage output) or current
+        sources (current output) of the network.
+    control_nodes : tuple of int or None
+        Node indices ``(a, b)`` of the controlling voltage.
+    control_branch : int or None
+        Index in :attr:`Network.branch_refs` of the controlling current.
+    gain : float
+        Nominal gain.
+    """
+
+    ref: str
+    kind: str
+    slot: int
+    control_nodes: tuple[int, int] | None
+    control_branch: int | None
+    gain: float
+
+    @property
+    def voltage_output(self) -> bool:
+        return self.kind in ("vcvs", "ccvs")
+
+
+@dataclass(frozen=True)
 class Network:
     """Nodes and oriented branches of a circuit.
 
@@ -83,6 +114,7 @@ class Network:
     regulator_refs: tuple[str, ...] = ()
     regulator_ends: np.ndarray = field(default_factory=lambda: np.zeros((0, 2), dtype=int))
     regulator_sense: np.ndarray = field(default_factory=lambda: np.zeros((0, 2), dtype=int))
+    controlled: tuple[ControlledBranch, ...] = ()
 
     @property
     def branch_refs(self) -> tuple[str, ...]:
@@ -115,7 +147,16 @@ class Network:
             isource_ends=np.concatenate([self.isource_ends, ends]).astype(int),
             regulator_refs=self.regulator_refs, regulator_ends=self.regulator_ends,
             regulator_sense=self.regulator_sense,
+            controlled=tuple(
+                c if c.control_branch is None or c.control_branch < self._test_slot()
+                else ControlledBranch(c.ref, c.kind, c.slot, c.control_nodes,
+                                      c.control_branch + 1, c.gain)
+                for c in self.controlled),
         )
+
+    def _test_slot(self) -> int:
+        """Branch index at which a test current source is inserted."""
+        return len(self.resistor_refs) + len(self.vsource_refs) + len(self.isource_refs)
 
 
 def _ends(pairs: list[tuple[int, int]]) -> np.ndarray:
@@ -148,6 +189,8 @@ def build_network(design: Design) -> Network:
         names += list(r.nodes)
     for g in design.regulators:
         names.append(g.output)
+    for c in design.controlled:
+        names += [c.neg, c.pos]
     nodes = tuple(dict.fromkeys(names))
     index = {n: i for i, n in enumerate(nodes)}
     origin = design.origin
@@ -159,20 +202,49 @@ def build_network(design: Design) -> Network:
             if node not in index:
                 raise DesignError(f"{origin}, regulator {g.ref}: {role} node {node!r} touches "
                                   f"no part{nearest_name(node, nodes)}; name a node of the circuit")
-    vsources = [s for s in design.sources if s.kind == "voltage"]
-    isources = [s for s in design.sources if s.kind == "current"]
+    for c in design.controlled:
+        for node in c.control_nodes or ():
+            if node not in index:
+                raise DesignError(f"{origin}, controlled source {c.ref}: control node {node!r} "
+                                  f"touches no part{nearest_name(node, nodes)}; name a node of "
+                                  "the circuit")
+    # controlled sources follow the independent ones of their kind: voltage outputs are
+    # voltage-defined branches, current outputs current-defined ones
+    vsources = [(s.ref, s.neg, s.pos) for s in design.sources if s.kind == "voltage"]
+    isources = [(s.ref, s.neg, s.pos) for s in design.sources if s.kind == "current"]
+    n_v_independent, n_i_independent = len(vsources), len(isources)
+    for c in design.controlled:
+        (vsources if c.voltage_output else isources).append((c.ref, c.neg, c.pos))
+    resistor_refs = tuple(r.ref for r in design.resistors)
+    refs = (resistor_refs + tuple(v[0] for v in vsources) + tuple(i[0] for i in isources)
+            + tuple(g.ref for g in design.regulators))
+    controlled = []
+    v_slot, i_slot = n_v_independent, n_i_independent
+    for c in design.controlled:
+        slot = v_slot if c.voltage_output else i_slot
+        if c.voltage_output:
+            v_slot += 1
+        else:
+            i_slot += 1
+        controlled.append(ControlledBranch(
+            ref=c.ref, kind=c.kind, slot=slot,
+            control_nodes=None if c.control_nodes is None
+            else (index[c.control_nodes[0]], index[c.control_nodes[1]]),
+            control_branch=None if c.control_ref is None else refs.index(c.control_ref),
+            gain=c.gain))
     network = Network(
         origin=origin,
         nodes=nodes,
-        resistor_refs=tuple(r.ref for r in design.resistors),
+        resistor_refs=resistor_refs,
         resistor_ends=_ends([(index[r.nodes[0]], index[r.nodes[1]]) for r in design.resistors]),
-        vsource_refs=tuple(s.ref for s in vsources),
-        vsource_ends=_ends([(index[s.neg], index[s.pos]) for s in vsources]),
-        isource_refs=tuple(s.ref for s in isources),
-        isource_ends=_ends([(index[s.neg], index[s.pos]) for s in isources]),
+        vsource_refs=tuple(v[0] for v in vsources),
+        vsource_ends=_ends([(index[v[1]], index[v[2]]) for v in vsources]),
+        isource_refs=tuple(i[0] for i in isources),
+        isource_ends=_ends([(index[i[1]], index[i[2]]) for i in isources]),
         regulator_refs=tuple(g.ref for g in design.regulators),
         regulator_ends=_ends([(0, index[g.output]) for g in design.regulators]),
         regulator_sense=_ends([(index[g.sense], index[g.reference]) for g in design.regulators]),
+        controlled=tuple(controlled),
     )
     check_topology(network)
     return network

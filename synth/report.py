@@ -48,6 +48,8 @@ def window_text(target: TargetReport) -> str:
 def _part_row(part: PartReport) -> list[str]:
     if part.kind == "resistor":
         value = f"{format_eng(part.value, 'Ω')} ({format_rkm(part.value)})"
+    elif part.kind.startswith("controlled"):
+        value = f"gain {part.value:.6g}"
     else:
         value = _quantity(part.value, "A" if part.kind == "current source" else "V")
     return [
