@@ -108,9 +108,9 @@ def _read_controlled(origin: str, index: int, raw: Any, ground: str) -> Controll
         control_nodes = _node_pair(reader, "control", ground)
     else:
         control_ref = reader.text("control")
-    gain = _gain(reader, kind, raw.get("gain"), "gain") if "gain" in raw else None
-    if gain is None:
+    if "gain" not in raw:
         reader.fail("gain is missing; add gain = ...")
+    gain = _gain(reader, kind, raw.get("gain"), "gain")
     low = high = gain
     if "gain_range" in raw:
         span = raw["gain_range"]
@@ -189,7 +189,10 @@ def read_active_parts(origin: str, data: Mapping[str, Any], ground: str) -> Acti
     """Read and expand the ``[[controlled]]``, ``[[transistor]]`` and ``[[amplifier]]`` tables."""
     controlled = [_read_controlled(origin, i, raw, ground)
                   for i, raw in enumerate(_array(origin, data, "controlled"), 1)]
-    transistors, sources, targets, regulators = [], [], [], []
+    transistors: list[Transistor] = []
+    sources: list[Source] = []
+    targets: list[Target] = []
+    regulators: list[Regulator] = []
     for i, raw in enumerate(_array(origin, data, "transistor"), 1):
         transistor, drop, collector, target = _read_transistor(origin, i, raw, ground)
         transistors.append(transistor)
@@ -198,7 +201,10 @@ def read_active_parts(origin: str, data: Mapping[str, Any], ground: str) -> Acti
         targets.append(target)
     for i, raw in enumerate(_array(origin, data, "amplifier"), 1):
         part = _read_amplifier(origin, i, raw, ground)
-        (regulators if isinstance(part, Regulator) else controlled).append(part)
+        if isinstance(part, Regulator):
+            regulators.append(part)
+        else:
+            controlled.append(part)
     return ActiveParts(controlled=tuple(controlled), transistors=tuple(transistors),
                        sources=tuple(sources), regulators=tuple(regulators),
                        targets=tuple(targets))

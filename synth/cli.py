@@ -30,10 +30,11 @@ from synth.design_report import design_json, design_text
 from synth.errors import DesignError, InfeasibleError, RnsynthError
 from synth.outputs import write_atomic
 from synth.quick import QuickSettings, divider_tables, led_tables, pad_tables, regulator_tables
+from synth.quick_active import bias_rules, bias_tables, gain_tables
 from synth.report import check_json, check_text
 from synth.spread import SpreadSettings
 from synth.synthesis import RANKINGS, synthesize
-from synth.units import format_eng, format_rkm, parse_resistance
+from synth.units import format_eng, format_rkm, parse_quantity, parse_resistance
 
 F = TypeVar("F", bound=Callable[..., Any])
 
@@ -201,10 +202,18 @@ def _run_design(design: Design, top: int, time_limit: float | None, as_json: boo
                             spread=settings, rank_by=spread["rank_by"])
     finally:
         progress.close()
+    rules = spread.get("rules")
     if as_json:
-        _emit_json(design_json(result))
+        document = design_json(result)
+        if rules is not None and result.candidates:
+            document["rules"] = rules(result.candidates[0])
+        _emit_json(document)
     else:
         click.echo(design_text(result))
+        if rules is not None and result.candidates:
+            click.echo("rules of thumb for the best design:")
+            for line in rules(result.candidates[0]):
+                click.echo(f"  {line}")
     if spread["plots"] and result.candidates:
         from synth.plots import candidate_scatter, target_histograms
 
@@ -387,6 +396,56 @@ def pad_command(impedance: str, loss: str, shape: str, series: str, value_range:
     settings = _settings(series, value_range, within, package, ambient, margin)
     tables = pad_tables(impedance=impedance, loss=loss, shape=shape, settings=settings)
     _quick_run(tables, "rnsynth pad options", save, force, top, time_limit, as_json, quiet,
+               spread)
+
+
+@cli.command("bias")
+@click.option("--supply", required=True, help='Supply voltage, e.g. "10 V".')
+@click.option("--collector-current", required=True, help='Wanted collector current, e.g. "1 mA".')
+@click.option("--collector-voltage", required=True, help="Wanted collector voltage.")
+@click.option("--beta", default="100:50:300", show_default=True,
+              help="Current gain: typical or typical:least:greatest.")
+@click.option("--vbe", default="0.7 V", show_default=True, help="Base-emitter drop.")
+@_quick_options
+@_friendly
+def bias_command(supply: str, collector_current: str, collector_voltage: str, beta: str,
+                 vbe: str, series: str, value_range: str | None, within: str | None,
+                 package: str, ambient: str, margin: str, save: str | None, force: bool,
+                 top: int, time_limit: float | None, as_json: bool, quiet: bool,
+                 **spread: Any) -> None:
+    """Four-resistor NPN bias: R1 supply-base, R2 base-ground, RC, RE.
+
+    Also reports the rules of thumb for the best design: emitter voltage about
+    a tenth of the supply, divider current at least ten times the base current,
+    and the divider's stiffness against beta.
+    """
+    settings = _settings(series, value_range, within, package, ambient, margin)
+    tables = bias_tables(supply=supply, collector_current=collector_current,
+                         collector_voltage=collector_voltage, settings=settings, beta=beta,
+                         vbe=vbe)
+    spread["rules"] = lambda candidate: bias_rules(
+        candidate, parse_quantity(supply, "V"), tables["transistor"][0]["beta"][1])
+    _quick_run(tables, "rnsynth bias options", save, force, top, time_limit, as_json, quiet,
+               spread)
+
+
+@cli.command("gain")
+@click.option("--gain", "wanted", required=True, help="Gain magnitude, e.g. 10.")
+@click.option("--inverting", is_flag=True, help="Inverting stage (gain -RF/RIN).")
+@click.option("--input-resistance", default=None, help="Input resistance (inverting stage).")
+@click.option("--open-loop-gain", default=None, help="Finite open-loop gain (default: ideal).")
+@_quick_options
+@_friendly
+def gain_command(wanted: str, inverting: bool, input_resistance: str | None,
+                 open_loop_gain: str | None, series: str, value_range: str | None,
+                 within: str | None, package: str, ambient: str, margin: str,
+                 save: str | None, force: bool, top: int, time_limit: float | None,
+                 as_json: bool, quiet: bool, **spread: Any) -> None:
+    """Amplifier gain network: non-inverting (1 + RF/RG) or inverting (-RF/RIN)."""
+    settings = _settings(series, value_range, within, package, ambient, margin)
+    tables = gain_tables(gain=wanted, settings=settings, inverting=inverting,
+                         input_resistance=input_resistance, open_loop_gain=open_loop_gain)
+    _quick_run(tables, "rnsynth gain options", save, force, top, time_limit, as_json, quiet,
                spread)
 
 

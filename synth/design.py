@@ -799,10 +799,11 @@ def _check_references(design: Design) -> None:
                 raise DesignError(f"{item}: it is controlled by the current of {c.control_ref!r},"
                                   " another controlled current source; control it by a "
                                   "resistor's or a voltage-defined part's current")
-            if c.control_ref not in resistor_refs | source_refs:
+            known = resistor_refs | source_refs
+            if c.control_ref not in known:
                 raise DesignError(f"{item}: control part {c.control_ref!r} is not in the "
-                                  f"circuit{nearest_name(c.control_ref, resistor_refs | source_refs)}"
-                                  "; name a resistor or a source")
+                                  f"circuit{nearest_name(c.control_ref, known)}; name a "
+                                  "resistor or a source")
     for target in design.targets:
         item = f"{origin}, target {target.label!r}"
         for node in target.nodes:

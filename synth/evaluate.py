@@ -15,10 +15,10 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike
 
+from synth.controlled import ControlledSolver
 from synth.derating import allowed_power
 from synth.design import Design, Target
 from synth.errors import DesignError
-from synth.controlled import ControlledSolver
 from synth.mesh import MeshSolution, MeshSolver
 from synth.network import Network, build_network
 

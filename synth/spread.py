@@ -19,6 +19,8 @@ Three methods, all through the batched mesh solve:
 
 Temperature: a part's resistance is R·(1 + δ)·(1 + a·(T − 25 °C)) with δ its
 tolerance deviation and a its temperature coefficient, anywhere within ±TCR.
+A controlled source with a gain range (a transistor's β from least to
+greatest) varies over that range; Monte Carlo draws it uniformly within it.
 
 References
 ----------
@@ -206,6 +208,16 @@ class _Variables:
             ("voltage", [s for s in design.sources if s.kind == "voltage"]),
                   ("current", [s for s in design.sources if s.kind == "current"]),
                   ("setpoint", list(design.regulators)))
+        for k, c in enumerate(design.controlled):
+            if c.gain_low == c.gain_high:
+                continue
+            names.append(c.ref)
+            ends = sorted((c.gain_low / c.gain, c.gain_high / c.gain))
+            low.append(ends[0])
+            high.append(ends[1])
+            tol.append((c.gain_high - c.gain_low) / (2 * abs(c.gain)))
+            drift.append(0.0)
+            self.kind.append(("gain", k))
         for group, items in groups:
             for k, item in enumerate(items):
                 if item.tolerance == 0:
@@ -231,15 +243,18 @@ class _Variables:
         """
         m = len(factors)
         r = np.tile(r0, (m, 1)) if base is None else base.copy()
+        gains = src.gains if src.gains is not None else np.zeros(0)
         values = {"voltage": np.tile(src.voltages, (m, 1)),
                   "current": np.tile(src.currents, (m, 1)),
-                  "setpoint": np.tile(src.setpoints, (m, 1))}
+                  "setpoint": np.tile(src.setpoints, (m, 1)),
+                  "gain": np.tile(gains, (m, 1))}
         for column, (group, k) in enumerate(self.kind):
             if group == "resistor":
                 r[:, k] *= factors[:, column]
             else:
                 values[group][:, k] *= factors[:, column]
-        return r, SourceValues(values["voltage"], values["current"], values["setpoint"])
+        return r, SourceValues(values["voltage"], values["current"], values["setpoint"],
+                               values["gain"] if src.gains is not None else None)
 
 
 class WorstCase:
@@ -428,9 +443,13 @@ def _part_spread(design: Design, ev: Evaluator, var: _Variables, r0: np.ndarray,
                 peak = np.where(inside, v_th ** 2 / (4 * r_th), 0.0)
                 available = np.abs(v_th) * np.abs(v_th / r_th) / 4
             worst = max(worst, float(np.nanmax(peak)) if peak.size else worst)
-            # sound bound: available power V_oc I_sc / 4 with both at their box extremes
-            bound = max(worst, float(np.nanmax(np.abs(v_th)) * np.nanmax(np.abs(v_th / r_th))
-                                     / 4) if np.all(np.isfinite(available)) else np.inf)
+            # two sound bounds: the available power V_oc I_sc / 4 with both at their box
+            # extremes, and (I monotone in R) the largest I² at either end times R at its
+            # high end; the tighter one is given
+            by_available = (float(np.nanmax(np.abs(v_th)) * np.nanmax(np.abs(v_th / r_th)) / 4)
+                            if np.all(np.isfinite(available)) else np.inf)
+            by_current = float(np.max(np.maximum(i_lo ** 2, i_hi ** 2) * r_hi))
+            bound = max(worst, min(by_available, by_current))
         rating = design.rating(resistor)
         allowed_hot = (None if rating is None
                        else float(allowed_power(rating, hot_c, design.margin_frac)))
@@ -459,6 +478,7 @@ def _monte_carlo(design: Design, ev: Evaluator, var: _Variables, r0: np.ndarray,
                     for g, k in var.kind])
     ratings = [(k, rating) for k, r in enumerate(design.resistors)
                if (rating := design.rating(r)) is not None]
+    gain_columns = [c for c, (group, _) in enumerate(var.kind) if group == "gain"]
     values = np.empty((total, len(design.targets)))
     inside = np.empty((total, len(design.targets)), dtype=bool)
     ok = np.empty(total, dtype=bool)
@@ -480,6 +500,8 @@ def _monte_carlo(design: Design, ev: Evaluator, var: _Variables, r0: np.ndarray,
                        else np.full(m, low_c))
         factors = draw(m, var.tolerance)
         factors += 1.0
+        for column in gain_columns:  # a gain range (a transistor's beta): uniform within it
+            factors[:, column] = rng.uniform(var.low[column], var.high[column], m)
         if n:
             # each part's temperature coefficient lies within its ±TCR (a normal spread
             # reads the TCR limit as 3σ, like a tolerance)
@@ -500,8 +522,8 @@ def _monte_carlo(design: Design, ev: Evaluator, var: _Variables, r0: np.ndarray,
         ok[rows] = good
     updated = []
     for j, t in enumerate(targets):
-        column = values[:, j]
+        drawn = values[:, j]
         updated.append(TargetSpread(
-            **{**t.__dict__, "mc_mean": float(np.mean(column)), "mc_std": float(np.std(column)),
-               "mc_values": column, "inside": float(np.mean(inside[:, j]))}))
+            **{**t.__dict__, "mc_mean": float(np.mean(drawn)), "mc_std": float(np.std(drawn)),
+               "mc_values": drawn, "inside": float(np.mean(inside[:, j]))}))
     return updated, float(np.mean(ok))
