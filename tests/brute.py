@@ -44,6 +44,8 @@ def exhaustive(design: Design, chunk: int = 200_000):
     node = {n: k for k, n in enumerate(net.nodes)}
     volts = [s.value for s in design.sources if s.kind == "voltage"]
     amps = [s.value for s in design.sources if s.kind == "current"]
+    volts += [0.0] * sum(1 for c in design.controlled if c.voltage_output)  # set by nodal_solve
+    amps += [0.0] * sum(1 for c in design.controlled if not c.voltage_output)
     sets = [g.setpoint for g in design.regulators]
     branch = {ref: k for k, ref in enumerate(net.branch_refs)}
     found = []

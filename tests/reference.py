@@ -12,19 +12,24 @@ from fractions import Fraction
 import sympy
 
 
-def exact_nodal(nodes, resistors, vsources=(), isources=()):
+def exact_nodal(nodes, resistors, vsources=(), isources=(), controlled=()):
     """Solve a DC network exactly.
 
     nodes: list of names, nodes[0] is ground.
     resistors: list of (a, b, ohms); current counted a -> b.
     vsources: list of (plus, minus, volts).
     isources: list of (frm, to, amps): amps flow through the source into `to`.
+    controlled: list of (kind, out_a, out_b, control, gain): kind vcvs/ccvs hold
+      V(out_a) - V(out_b) = gain * control; vccs/cccs drive gain * control amperes from
+      out_b to out_a (into out_a).  control is ("v", a, b) for V(a) - V(b), ("r", k) for
+      the current of resistor k, or ("s", k) for the delivered current of vsource k.
     Returns (node voltage dict, resistor currents list, vsource delivered currents list),
     all as sympy Rationals.
     """
     index = {n: k for k, n in enumerate(nodes)}
     unknown_v = [sympy.Symbol(f"v_{k}") for k in range(1, len(nodes))]
     unknown_i = [sympy.Symbol(f"i_{k}") for k in range(len(vsources))]
+    unknown_c = [sympy.Symbol(f"c_{k}") for k in range(len(controlled))]
 
     def volt(name):
         k = index[name]
@@ -42,10 +47,30 @@ def exact_nodal(nodes, resistors, vsources=(), isources=()):
         value = sympy.Rational(Fraction(amps))
         leaving[to] -= value
         leaving[frm] += value
-    equations = [sympy.Eq(leaving[n], 0) for n in nodes[1:]]
+    def control_value(spec):
+        if spec[0] == "v":
+            return volt(spec[1]) - volt(spec[2])
+        if spec[0] == "r":
+            a, b, ohms = resistors[spec[1]]
+            return (volt(a) - volt(b)) / sympy.Rational(Fraction(ohms))
+        return unknown_i[spec[1]]
+
+    extra = []
+    for k, (kind, out_a, out_b, spec, gain) in enumerate(controlled):
+        g = sympy.Rational(Fraction(gain))
+        if kind in ("vcvs", "ccvs"):  # a voltage source with unknown current c_k
+            leaving[out_a] -= unknown_c[k]
+            leaving[out_b] += unknown_c[k]
+            extra.append(sympy.Eq(volt(out_a) - volt(out_b), g * control_value(spec)))
+        else:
+            leaving[out_a] -= g * control_value(spec)
+            leaving[out_b] += g * control_value(spec)
+            extra.append(sympy.Eq(unknown_c[k], g * control_value(spec)))
+    equations = [sympy.Eq(leaving[n], 0) for n in nodes[1:]] + extra
     equations += [sympy.Eq(volt(p) - volt(m), sympy.Rational(Fraction(v)))
                   for p, m, v in vsources]
-    solution = sympy.solve(equations, unknown_v + unknown_i, dict=True, rational=True)[0]
+    solution = sympy.solve(equations, unknown_v + unknown_i + unknown_c, dict=True,
+                           rational=True)[0]
     voltages = {n: (sympy.Integer(0) if index[n] == 0 else solution[unknown_v[index[n] - 1]])
                 for n in nodes}
     currents = [(voltages[a] - voltages[b]) / sympy.Rational(Fraction(r)) for a, b, r in resistors]
