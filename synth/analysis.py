@@ -196,6 +196,18 @@ def resolve_values(design: Design, given: Mapping[str, float] | None = None) -> 
     return np.array([given.get(r.ref, r.value) for r in design.resistors], dtype=float)
 
 
+def stress_problems(part: PartReport) -> list[str]:
+    """One line for each allowance (power, voltage) the part goes over."""
+    lines = []
+    if part.utilization is not None and part.utilization > 1:
+        lines.append(f"{part.ref} dissipates {part.power:.4g} W, over its allowed "
+                     f"{part.allowed_power:.4g} W")
+    if part.voltage_utilization is not None and part.voltage_utilization > 1:
+        lines.append(f"{part.ref} sees {part.voltage:.4g} V, over its allowed "
+                     f"{part.allowed_voltage:.4g} V")
+    return lines
+
+
 def _part_reports(design: Design, ev: Evaluator, r: np.ndarray,
                   result: Evaluation) -> list[PartReport]:
     sol = result.solution
@@ -218,25 +230,15 @@ def _part_reports(design: Design, ev: Evaluator, r: np.ndarray,
             voltage_utilization=None if allowed_v is None else across / allowed_v,
         ))
     v = sol.node_voltages[0]
-    for source in design.sources:
-        col = ev.branch_index[source.ref]
-        current = float(sol.branch_currents[0, col])
-        a, b = ev.node_index[source.pos], ev.node_index[source.neg]
-        across = float(v[a] - v[b])
-        parts.append(PartReport(
-            ref=source.ref, kind=f"{source.kind} source", value=source.value, current=current,
-            voltage=across, power=current * across,
-        ))
-    for c in design.controlled:
-        col = ev.branch_index[c.ref]
-        current = float(sol.branch_currents[0, col])
-        a, b = ev.node_index[c.pos], ev.node_index[c.neg]
-        across = float(v[a] - v[b])
-        # delivered power: out of plus for a voltage output, into `to` for a current output
-        parts.append(PartReport(
-            ref=c.ref, kind=f"controlled source ({c.kind})", value=c.gain, current=current,
-            voltage=across, power=current * across,
-        ))
+    # sources and controlled sources: current as delivered (out of plus, into `to`)
+    two_terminal = ([(s.ref, f"{s.kind} source", s.value, s.pos, s.neg) for s in design.sources]
+                    + [(c.ref, f"controlled source ({c.kind})", c.gain, c.pos, c.neg)
+                       for c in design.controlled])
+    for ref, kind, value, pos, neg in two_terminal:
+        current = float(sol.branch_currents[0, ev.branch_index[ref]])
+        across = float(v[ev.node_index[pos]] - v[ev.node_index[neg]])
+        parts.append(PartReport(ref=ref, kind=kind, value=value, current=current,
+                                voltage=across, power=current * across))
     for g, regulator in enumerate(design.regulators):
         col = ev.branch_index[regulator.ref]
         current = float(sol.branch_currents[0, col])
@@ -317,13 +319,10 @@ def check(design: Design, values: Mapping[str, float] | None = None,
             full = rating.rated_power_w * float(derating_factor(
                 design.ambient_c, rating.rated_ambient_c, rating.zero_power_c))
             (over_rating if part.power > full else over_margin).append(part.ref)
-            problems.append(f"{part.ref} dissipates {part.power:.4g} W, over its allowed "
-                            f"{part.allowed_power:.4g} W")
         if part.voltage_utilization is not None and part.voltage_utilization > 1:
             if part.ref not in over_margin + over_rating:
                 over_margin.append(part.ref)
-            problems.append(f"{part.ref} sees {part.voltage:.4g} V, over its allowed "
-                            f"{part.allowed_voltage:.4g} V")
+        problems.extend(stress_problems(part))
     for target in targets:
         if not target.met:
             problems.append(f"target {target.label} = {target.value:.6g} lies outside "

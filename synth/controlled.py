@@ -23,15 +23,8 @@ __all__ = ["ControlledSolver"]
 import numpy as np
 from numpy.typing import ArrayLike
 
-from synth.mesh import DEFAULT_CHUNK, MeshSolution, MeshSolver
+from synth.mesh import DEFAULT_CHUNK, MeshSolution, MeshSolver, broadcast_rows
 from synth.network import Network
-
-
-def _rows(values: ArrayLike | None, count: int, n: int) -> np.ndarray:
-    if values is None:
-        return np.zeros((n, count))
-    array = np.asarray(values, dtype=float)
-    return np.array(np.broadcast_to(array if array.ndim == 2 else array[None, :], (n, count)))
 
 
 class ControlledSolver:
@@ -92,8 +85,8 @@ class ControlledSolver:
         """
         r = np.atleast_2d(np.asarray(resistances, dtype=float))
         n = len(r)
-        e = _rows(voltages, self.n_v, n)
-        j = _rows(currents, self.n_i, n)
+        e = np.array(broadcast_rows(voltages, self.n_v, n))  # copies: slots are zeroed below
+        j = np.array(broadcast_rows(currents, self.n_i, n))
         for c in self.network.controlled:
             (e if c.voltage_output else j)[:, c.slot] = 0.0
         base = self.inner.solve(r, e, j, setpoints, chunk)
@@ -101,7 +94,7 @@ class ControlledSolver:
         for k in range(len(self.network.controlled)):
             unit_e, unit_j = self._unit(k)
             units.append(self.inner.solve(r, unit_e, unit_j, np.zeros(self.n_g), chunk))
-        g = _rows(self.gains if gains is None else gains, len(self.gains), n)
+        g = broadcast_rows(self.gains if gains is None else gains, len(self.gains), n)
         control = np.stack([self._control(u) for u in units], axis=2)  # (N, k, j)
         matrix = np.eye(len(units))[None, :, :] - g[:, :, None] * control
         rhs = g * self._control(base)

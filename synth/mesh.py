@@ -71,6 +71,14 @@ class MeshSolution:
     regulator_determinant: np.ndarray | None = None
 
 
+def broadcast_rows(values: ArrayLike | None, count: int, n: int) -> np.ndarray:
+    """``(n, count)`` values: zeros when None, a vector repeated for every candidate."""
+    if values is None:
+        return np.zeros((n, count))
+    array = np.asarray(values, dtype=float)
+    return np.broadcast_to(array if array.ndim == 2 else array[None, :], (n, count))
+
+
 def _as_block(values: ArrayLike | None, count: int, n: int | None, what: str) -> np.ndarray:
     """Return ``values`` as an ``(N, count)`` float array (a vector is shared by all)."""
     if values is None:

@@ -23,7 +23,7 @@ __all__ = ["nodal_solve"]
 import numpy as np
 from numpy.typing import ArrayLike
 
-from synth.mesh import MeshSolution
+from synth.mesh import MeshSolution, broadcast_rows
 from synth.network import ControlledBranch, Network
 
 
@@ -34,13 +34,6 @@ def _incidence(ends: np.ndarray, n_nodes: int) -> np.ndarray:
         inc[a, b] += 1.0
         inc[c, b] -= 1.0
     return inc
-
-
-def _rows(values: ArrayLike | None, count: int, n: int) -> np.ndarray:
-    if values is None:
-        return np.zeros((n, count))
-    array = np.asarray(values, dtype=float)
-    return np.broadcast_to(array if array.ndim == 2 else array[None, :], (n, count))
 
 
 def _control_row(network: Network, c: ControlledBranch, r: np.ndarray, j: np.ndarray, m: int,
@@ -115,7 +108,8 @@ def nodal_solve(
     n_nodes = len(network.nodes)
     n_v, n_i = len(network.vsource_refs), len(network.isource_refs)
     n_g = len(network.regulator_refs)
-    e, j, s = _rows(voltages, n_v, n), _rows(currents, n_i, n), _rows(setpoints, n_g, n)
+    e, j = broadcast_rows(voltages, n_v, n), broadcast_rows(currents, n_i, n)
+    s = broadcast_rows(setpoints, n_g, n)
     inc_r = _incidence(network.resistor_ends, n_nodes)[1:]
     inc_v = _incidence(network.vsource_ends, n_nodes)[1:]
     inc_i = _incidence(network.isource_ends, n_nodes)[1:]
@@ -141,7 +135,7 @@ def nodal_solve(
     rhs[:, :m] = -(fixed_j @ inc_i.T)
     rhs[:, m:m + n_v] = e
     rhs[:, m + n_v:] = s
-    gain = _rows(gains if gains is not None else [c.gain for c in network.controlled],
+    gain = broadcast_rows(gains if gains is not None else [c.gain for c in network.controlled],
                  len(network.controlled), n)
     for k, c in enumerate(network.controlled):
         coeff, const = _control_row(network, c, r, j, m, size)

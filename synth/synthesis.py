@@ -19,7 +19,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from synth.analysis import CheckResult, PartReport, TargetReport, check
+from synth.analysis import CheckResult, PartReport, TargetReport, check, stress_problems
 from synth.candidates import Choices, choices_for, coarsest_series, combination_count
 from synth.design import Design
 from synth.errors import DesignError
@@ -192,12 +192,7 @@ def _candidate(design: Design, choices: list[Choices], indices: np.ndarray, rank
             parts.extend(pieces)
             problems = [p for p in problems if not p.startswith(f"{part.ref} ")]
             for piece in pieces:
-                if piece.utilization is not None and piece.utilization > 1:
-                    problems.append(f"{piece.ref} dissipates {piece.power:.4g} W, over its "
-                                    f"allowed {piece.allowed_power:.4g} W")
-                if piece.voltage_utilization is not None and piece.voltage_utilization > 1:
-                    problems.append(f"{piece.ref} sees {piece.voltage:.4g} V, over its "
-                                    f"allowed {piece.allowed_voltage:.4g} V")
+                problems.extend(stress_problems(piece))
         else:
             parts.append(part)
     all_positions = dict(result.values)
