@@ -52,7 +52,7 @@ def test_adjust_formula():
     for c in result.candidates:
         rt, rb = c.values["RTOP"], c.values["RBOT"]
         assert c.targets[0].value == pytest.approx(1.25 * (1 + rb / rt) + 50e-6 * rb, rel=1e-12)
-        assert 1.25 / rt >= 5e-3
+        assert rt <= 1.25 / 5e-3  # at least 5 mA in the top resistor
     pair = next(c for c in result.candidates if c.values == {"RTOP": 240.0, "RBOT": 390.0})
     assert pair.targets[0].value == pytest.approx(3.30075, rel=1e-12)
 
