@@ -59,7 +59,7 @@ def measure(loops: int, rng: np.random.Generator, n_batch: int, n_loop: int) -> 
     n_r = len(net.resistor_refs)
     r = 10 ** rng.uniform(2, 5, size=(n_batch, n_r))
     e = np.array([5.0])
-    chunk = 1 << 15
+    chunk = solver.preferred_chunk
     r_t = [np.ascontiguousarray(r[s:s + chunk].T) for s in range(0, n_batch, chunk)]
     e_t = np.broadcast_to(e[:, None], (1, chunk)).copy()
     empty = np.zeros((0, chunk))

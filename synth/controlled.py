@@ -23,7 +23,7 @@ __all__ = ["ControlledSolver"]
 import numpy as np
 from numpy.typing import ArrayLike
 
-from synth.mesh import DEFAULT_CHUNK, MeshSolution, MeshSolver, broadcast_rows
+from synth.mesh import MeshSolution, MeshSolver, broadcast_rows
 from synth.network import Network
 
 
@@ -73,7 +73,7 @@ class ControlledSolver:
         voltages: ArrayLike | None = None,
         currents: ArrayLike | None = None,
         setpoints: ArrayLike | None = None,
-        chunk: int = DEFAULT_CHUNK,
+        chunk: int | None = None,
         gains: ArrayLike | None = None,
     ) -> MeshSolution:
         """Solve every candidate.

@@ -190,6 +190,8 @@ class MeshSolver:
             adjacency[a].append((c, b))
             adjacency[c].append((a, b))
         seen, stack = {0}, [0]
+        # the tree walk, parents before children: V(child) = V(parent) + sign * v_branch
+        self._walk: list[tuple[int, int, int, float]] = []
         while stack:
             parent = stack.pop()
             for child, b in adjacency[parent]:
@@ -199,6 +201,7 @@ class MeshSolver:
                 sign = 1.0 if ends[b, 0] == child else -1.0
                 path[child] = path[parent]
                 path[child, b] += sign
+                self._walk.append((child, parent, b, sign))
                 stack.append(child)
         self.path = path
 
@@ -223,9 +226,6 @@ class MeshSolver:
         self._pair_matrix = np.array(
             [self._b_ur[u] * self._b_ur[w] for u, w in self._pairs]
         ).reshape(len(self._pairs), self.n_r)
-        self._path_r = path[:, r_slice]
-        self._path_v = path[:, v_slice]
-        self._path_g = path[:, g_slice]
         sense = network.regulator_sense
         diff = path[sense[:, 0]] - path[sense[:, 1]] if self.n_g else np.zeros((0, n_b))
         self._d_r, self._d_v, self._d_g = diff[:, r_slice], diff[:, v_slice], diff[:, g_slice]
@@ -242,9 +242,6 @@ class MeshSolver:
         self._map_kr_t = _SparseMap(self._b_kr.T)
         self._map_u_t = _SparseMap(self._b_u.T)
         self._map_k_t = _SparseMap(self._b_k.T)
-        self._map_path_r = _SparseMap(self._path_r)
-        self._map_neg_path_v = _SparseMap(-self._path_v)
-        self._map_neg_path_g = _SparseMap(-self._path_g)
         self._work: dict[str, np.ndarray] = {}
         self._work_size = -1
         self.tree_branches = tuple(network.branch_refs[b] for b in np.flatnonzero(in_tree))
@@ -254,13 +251,19 @@ class MeshSolver:
         """Number of unknown loop currents (independent loops closed by resistors)."""
         return self.n_u
 
+    @property
+    def preferred_chunk(self) -> int:
+        """Block size that keeps a block's work arrays near the cache (measured: larger
+        networks have more work arrays and do better with smaller blocks)."""
+        return DEFAULT_CHUNK if self.n_u <= 4 else DEFAULT_CHUNK // 2
+
     def solve(
         self,
         resistances: ArrayLike,
         voltages: ArrayLike | None = None,
         currents: ArrayLike | None = None,
         setpoints: ArrayLike | None = None,
-        chunk: int = DEFAULT_CHUNK,
+        chunk: int | None = None,
     ) -> MeshSolution:
         """Solve every candidate; the whole batch is returned at once.
 
@@ -274,8 +277,9 @@ class MeshSolver:
             Current source values, A, shaped likewise.
         setpoints : array_like, optional
             Regulating element setpoints, V, shaped likewise.
-        chunk : int
-            Candidates per block (memory use grows with it, not with N).
+        chunk : int, optional
+            Candidates per block (memory use grows with it, not with N);
+            :attr:`preferred_chunk` by default.
 
         Returns
         -------
@@ -306,7 +310,7 @@ class MeshSolver:
         voltages: ArrayLike | None = None,
         currents: ArrayLike | None = None,
         setpoints: ArrayLike | None = None,
-        chunk: int = DEFAULT_CHUNK,
+        chunk: int | None = None,
     ) -> Iterator[MeshSolution]:
         """Solve block by block, yielding one :class:`MeshSolution` per block.
 
@@ -315,6 +319,7 @@ class MeshSolver:
         views of the solver's work arrays: it is valid until the next block is
         requested, so copy what must outlive that.
         """
+        chunk = chunk or self.preferred_chunk
         r_all = np.asarray(resistances, dtype=float)
         if r_all.ndim == 1:
             r_all = r_all[None, :]
@@ -390,11 +395,18 @@ class MeshSolver:
         if self.n_i:
             self._map_k_t.apply(j, out=currents, accumulate=True)
         drops = np.multiply(r, currents[: self.n_r], out=work["drops"])
-        self._map_path_r.apply(drops, out=voltages)
-        if self.n_v:
-            self._map_neg_path_v.apply(e, out=voltages, accumulate=True)
-        if self.n_g:
-            self._map_neg_path_g.apply(outputs, out=voltages, accumulate=True)
+        # node voltages down the spanning tree: one operation per node (the path matrix
+        # would cost the sum of all path lengths); a source's branch voltage is -E
+        voltages[0].fill(0.0)
+        n_r, n_rv = self.n_r, self.n_r + self.n_v
+        for child, parent, b, sign in self._walk:
+            if b < n_r:
+                branch, sign_v = drops[b], sign
+            elif b < n_rv:
+                branch, sign_v = e[b - n_r], -sign
+            else:
+                branch, sign_v = outputs[b - n_rv - self.n_i], -sign
+            (np.add if sign_v > 0 else np.subtract)(voltages[parent], branch, out=voltages[child])
         return voltages, currents, outputs
 
     def _workspace(self, m: int) -> dict[str, np.ndarray]:
