@@ -9,7 +9,7 @@ The library API a notebook uses::
 
 from __future__ import annotations
 
-__version__ = "0.1.0"
+__version__ = "0.2.0"
 
 from synth.analysis import CheckResult, PartReport, TargetReport, check
 from synth.catalogs import (
