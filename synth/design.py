@@ -444,7 +444,7 @@ def _read_design_table(origin: str, raw: Any) -> dict[str, Any]:
         span = reader.table["temperature"]
         if not (isinstance(span, list) and len(span) == 2):
             reader.fail('temperature must be a pair such as ["-20 C", "60 C"]')
-        low, high = (parse_temperature_or_fail(reader, t) for t in span)
+        low, high = (_temperature_end(reader, t) for t in span)
         if high < low:
             reader.fail(f"temperature range {span[0]!r}..{span[1]!r} is empty; "
                         "give the low end first")
@@ -460,7 +460,7 @@ def _read_design_table(origin: str, raw: Any) -> dict[str, Any]:
     return settings
 
 
-def parse_temperature_or_fail(reader: _Reader, raw: Any) -> float:
+def _temperature_end(reader: _Reader, raw: Any) -> float:
     """Read one end of a temperature range, phrasing errors for the item."""
     try:
         return parse_temperature(raw)
@@ -546,7 +546,7 @@ def _read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
             ends = raw["range"]
             if not (isinstance(ends, list) and len(ends) == 2):
                 reader.fail('range must be a pair such as ["1k", "100k"]')
-            low, high = (reader_value(reader, "range", e) for e in ends)
+            low, high = (_range_end(reader, "range", e) for e in ends)
             if low <= 0 or high <= 0:
                 reader.fail(f"range {ends[0]!r}..{ends[1]!r} must be positive")
             if high < low:
@@ -579,7 +579,7 @@ def _read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
     )
 
 
-def reader_value(reader: _Reader, key: str, raw: Any) -> float:
+def _range_end(reader: _Reader, key: str, raw: Any) -> float:
     """Read one resistance inside a list, phrasing errors for the item."""
     try:
         return parse_resistance(raw)
