@@ -23,6 +23,7 @@ os.environ.setdefault("OMP_NUM_THREADS", "1")
 os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 
 import numpy as np
+from ladders import ladder_tables
 
 from synth.design import design_from_dict
 from synth.mesh import MeshSolver
@@ -30,16 +31,7 @@ from synth.network import build_network
 
 
 def ladder(loops: int):
-    nodes = ["in"] + [f"n{k}" for k in range(1, loops + 1)]
-    resistors = []
-    for k in range(loops):
-        resistors.append({"ref": f"RS{k}", "nodes": [nodes[k], nodes[k + 1]], "value": "1k"})
-        resistors.append({"ref": f"RP{k}", "nodes": [nodes[k + 1], "gnd"], "value": "2k"})
-    design = design_from_dict({
-        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd", "value": "5 V"}],
-        "resistor": resistors,
-    })
-    return build_network(design)
+    return build_network(design_from_dict(ladder_tables(loops)))
 
 
 def best_of(fn, repeats=3):

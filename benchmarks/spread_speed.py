@@ -17,24 +17,20 @@ import time
 os.environ.setdefault("OMP_NUM_THREADS", "1")
 os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 
+from ladders import ladder_tables
+
 from synth.design import design_from_dict
 from synth.spread import SpreadSettings, analyse_spread
 
 
 def ladder(loops: int):
-    nodes = ["in"] + [f"n{k}" for k in range(1, loops + 1)]
-    resistors = []
-    for k in range(loops):
-        resistors.append({"ref": f"RS{k}", "nodes": [nodes[k], nodes[k + 1]], "value": "1k",
-                          "tolerance": "1%", "package": "0603"})
-        resistors.append({"ref": f"RP{k}", "nodes": [nodes[k + 1], "gnd"], "value": "2k",
-                          "tolerance": "1%", "package": "0603"})
+    tables = ladder_tables(loops, tolerance="1%", package="0603")
+    tables["source"][0]["tolerance"] = "2%"
+    last = f"n{loops}"
     return design_from_dict({
         "design": {"temperature": ["-20 C", "70 C"]},
-        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
-                    "value": "5 V", "tolerance": "2%"}],
-        "resistor": resistors,
-        "target": [{"voltage": nodes[-1], "equals": "0.93 V" if loops == 3 else "0.117 V",
+        **tables,
+        "target": [{"voltage": last, "equals": "0.93 V" if loops == 3 else "0.117 V",
                     "within": "3%"},
                    {"current": "V1", "at_most": "5 mA"}],
     })
