@@ -17,9 +17,9 @@ import time
 
 import numpy as np
 
-from synth.bom import _bom_parts
-from synth.consolidate import Pool, consolidate
-from synth.design import design_from_dict
+from synth.bom.build import bom_parts
+from synth.bom.consolidate import Pool, consolidate
+from synth.design.reader import design_from_dict
 from synth.synthesis import synthesize
 
 
@@ -45,7 +45,7 @@ def main(time_limit: float) -> None:
         vout = float(rng.uniform(0.1, 0.9)) * vin
         design = divider(vin, vout)
         result = synthesize(design, top=200)
-        lines = [frozenset(k for _, k in _bom_parts(design, c.values)) for c in result.candidates]
+        lines = [frozenset(k for _, k in bom_parts(design, c.values)) for c in result.candidates]
         pools.append(Pool(lines, [c.objective for c in result.candidates]))
     design_s = time.perf_counter() - start
     sizes = [len(p.lines) for p in pools]

@@ -25,9 +25,9 @@ os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 import numpy as np
 from ladders import ladder_tables
 
-from synth.design import design_from_dict
-from synth.mesh import MeshSolver
-from synth.network import build_network
+from synth.circuit.mesh import MeshSolver
+from synth.circuit.network import build_network
+from synth.design.reader import design_from_dict
 
 
 def ladder(loops: int):

@@ -22,10 +22,10 @@ os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 
 import numpy as np
 
-from synth.candidates import choices_for
-from synth.design import design_from_dict
-from synth.evaluate import Evaluator
-from synth.search import _Problem
+from synth.circuit.measure import Evaluator
+from synth.design.reader import design_from_dict
+from synth.search.choices import choices_for
+from synth.search.problem import SearchProblem
 from synth.synthesis import synthesize
 
 TAPS = ["9.1 V", "6.2 V", "3.9 V", "2.2 V", "1.1 V"]
@@ -50,7 +50,7 @@ def exhaustive(design, limit: int):
     """Best objective over every candidate (or a timed sample), and the seconds it took."""
     ev = Evaluator(design)
     choices = [choices_for(r) for r in design.free_resistors]
-    problem = _Problem(design, ev, choices, relaxed=False)
+    problem = SearchProblem(design, ev, choices, relaxed=False)
     sizes = [len(c) for c in choices]
     total = int(np.prod(sizes, dtype=float))
     count = min(total, limit)

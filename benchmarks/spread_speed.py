@@ -19,8 +19,9 @@ os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 
 from ladders import ladder_tables
 
-from synth.design import design_from_dict
-from synth.spread import SpreadSettings, analyse_spread
+from synth.design.reader import design_from_dict
+from synth.spread.analyse import analyse_spread
+from synth.spread.records import SpreadSettings
 
 
 def ladder(loops: int):

@@ -11,25 +11,22 @@ from __future__ import annotations
 
 __version__ = "0.2.0"
 
-from synth.analysis import CheckResult, PartReport, TargetReport, check
-from synth.catalogs import (
-    PackageRating,
-    Series,
-    load_package_table,
-    load_series,
-    nearest_value,
-    series_names,
-    series_values,
-)
-from synth.derating import allowed_power, derating_factor
-from synth.design import Design, Regulator, Resistor, Source, Target, design_from_dict, load_design
+from synth.catalog.packages import PackageRating, load_package_table
+from synth.catalog.series import Series, load_series, nearest_value, series_names, series_values
+from synth.checking import check
+from synth.circuit.measure import Evaluation, Evaluator
+from synth.circuit.mesh import MeshSolution, MeshSolver
+from synth.circuit.network import Network, build_network
+from synth.circuit.nodal import nodal_solve
+from synth.design.load import load_design
+from synth.design.model import Design, Regulator, Resistor, Source, Target
+from synth.design.reader import design_from_dict
 from synth.errors import DesignError, InfeasibleError, RnsynthError
-from synth.evaluate import Evaluation, Evaluator
-from synth.mesh import MeshSolution, MeshSolver
-from synth.network import Network, build_network
-from synth.nodal import nodal_solve
-from synth.spread import SpreadResult, SpreadSettings, analyse_spread
-from synth.synthesis import Candidate, SynthesisResult, synthesize
+from synth.rating import allowed_power, derating_factor
+from synth.results import Candidate, CheckResult, PartReport, SynthesisResult, TargetReport
+from synth.spread.analyse import analyse_spread
+from synth.spread.records import SpreadResult, SpreadSettings
+from synth.synthesis import synthesize
 from synth.units import (
     format_eng,
     format_rkm,

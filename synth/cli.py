@@ -20,20 +20,28 @@ import click
 import tomli_w
 
 from synth import __version__
-from synth.analysis import check as run_check
-from synth.board import load_board
-from synth.bom import build_bom
-from synth.bom_report import bom_summary, render_bom
-from synth.catalogs import nearest_value, series_names, series_values
-from synth.design import Design, design_from_dict, load_design
-from synth.design_report import design_json, design_text
+from synth.bom.build import build_bom
+from synth.catalog.series import nearest_value, series_names, series_values
+from synth.checking import check as run_check
+from synth.design.board import load_board
+from synth.design.load import load_design
+from synth.design.model import Design
+from synth.design.reader import design_from_dict
 from synth.errors import DesignError, InfeasibleError, RnsynthError
-from synth.outputs import write_atomic
-from synth.quick import QuickSettings, divider_tables, led_tables, pad_tables, regulator_tables
-from synth.quick_active import bias_rules, bias_tables, gain_tables
-from synth.report import check_json, check_text
-from synth.spread import SpreadSettings
+from synth.files import write_atomic
+from synth.report.bom import bom_summary, render_bom
+from synth.report.check import check_json, check_text
+from synth.report.synthesis import design_json, design_text
+from synth.spread.records import SpreadSettings
 from synth.synthesis import RANKINGS, synthesize
+from synth.templates.active import bias_rules, bias_tables, gain_tables
+from synth.templates.passive import (
+    QuickSettings,
+    divider_tables,
+    led_tables,
+    pad_tables,
+    regulator_tables,
+)
 from synth.units import format_eng, format_rkm, parse_quantity, parse_resistance
 
 F = TypeVar("F", bound=Callable[..., Any])
@@ -147,7 +155,7 @@ def check_command(design_file: str, as_json: bool, verify: bool, samples: int,
     else:
         click.echo(check_text(result))
     if plots and result.spread is not None:
-        from synth.plots import target_histograms
+        from synth.report.plots import target_histograms
 
         _write_plots(target_histograms(design, result.spread, plots), as_json)
     if not result.ok:
@@ -215,7 +223,7 @@ def _run_design(design: Design, top: int, time_limit: float | None, as_json: boo
             for line in rules(result.candidates[0]):
                 click.echo(f"  {line}")
     if spread["plots"] and result.candidates:
-        from synth.plots import candidate_scatter, target_histograms
+        from synth.report.plots import candidate_scatter, target_histograms
 
         best = result.candidates[0]
         paths = candidate_scatter(result, spread["plots"], cost=spread["cost"])

@@ -11,118 +11,26 @@ limit.
 
 from __future__ import annotations
 
-__all__ = ["Candidate", "SynthesisResult", "synthesize"]
+__all__ = ["RANKINGS", "synthesize"]
 
 import math
 from collections.abc import Callable
-from dataclasses import dataclass, replace
+from dataclasses import replace
 
 import numpy as np
 
-from synth.analysis import CheckResult, PartReport, TargetReport, check, stress_problems
-from synth.candidates import Choices, choices_for, coarsest_series, combination_count
-from synth.design import Design
+from synth.catalog.series import coarsest_series
+from synth.checking import check, stress_problems
+from synth.circuit.measure import Evaluator
+from synth.design.model import Design
 from synth.errors import DesignError
-from synth.evaluate import Evaluator
-from synth.ideal import ideal_values
-from synth.search import SearchOutcome, search
-from synth.spread import SpreadResult, SpreadSettings, WorstCase, analyse_spread
-
-
-@dataclass(frozen=True)
-class Candidate:
-    """One ranked design.
-
-    Attributes
-    ----------
-    rank : int
-        1 for the best.
-    values : dict of str to float
-        Ohm by physical part reference (a combined position ``R1`` gives
-        ``R1A`` and ``R1B``); free parts only.
-    positions : dict of str to float
-        Effective ohm of every resistor position, fixed ones included.
-    series : dict of str to str
-        The coarsest series holding each free part's value (``"E24"``), or
-        the stock file it came from.
-    objective : float
-        Largest relative error over the ``equals`` targets at nominal values.
-    targets : tuple of TargetReport
-    parts : tuple of PartReport
-        Every physical resistor, then the sources and regulators.
-    supply_current : float
-        A.
-    feasible : bool
-        Every window and limit met.
-    problems : tuple of str
-        What fails, when not feasible.
-    check : CheckResult
-        The full re-check of the candidate.
-    spread : SpreadResult or None
-        Tolerance, temperature and supply spread, when asked for.
-    """
-
-    rank: int
-    values: dict[str, float]
-    positions: dict[str, float]
-    series: dict[str, str]
-    objective: float
-    targets: tuple[TargetReport, ...]
-    parts: tuple[PartReport, ...]
-    supply_current: float
-    feasible: bool
-    problems: tuple[str, ...]
-    check: CheckResult
-    spread: SpreadResult | None = None
-
-    @property
-    def hottest(self) -> PartReport | None:
-        """The resistor using the largest share of its allowed dissipation."""
-        rated = [p for p in self.parts if p.kind == "resistor" and p.utilization is not None]
-        return max(rated, key=lambda p: p.utilization or 0.0) if rated else None
-
-
-@dataclass(frozen=True)
-class SynthesisResult:
-    """Result of :func:`synthesize`.
-
-    Attributes
-    ----------
-    design : Design
-    ideal : dict of str to float
-        Ideal continuous value of each free position, ohm.
-    candidates : tuple of Candidate
-        Best first.  When none is feasible these are the nearest designs.
-    proven_optimal : bool
-        The search finished: the best candidate is provably the best over
-        the whole catalogue product (same objective as an exhaustive search);
-        for an infeasible design, that none meets everything and the nearest
-        designs are the nearest.
-    feasible : bool
-        The best candidate meets every window and limit.
-    binding : str or None
-        When infeasible: the target or limit the nearest design breaks most.
-    evaluated : int
-        Candidate value sets solved during the search.
-    combinations : int
-        Size of the catalogue product.
-    elapsed_s : float
-        Search time, s.
-    rank_by : str
-        ``"nominal"``, ``"worst-case"`` or ``"yield"``: what ordered the candidates.
-    """
-
-    design: Design
-    ideal: dict[str, float]
-    candidates: tuple[Candidate, ...]
-    proven_optimal: bool
-    feasible: bool
-    binding: str | None
-    evaluated: int
-    combinations: int
-    elapsed_s: float
-    rank_by: str = "nominal"
-
+from synth.results import Candidate, PartReport, SynthesisResult, TargetReport
+from synth.search.branch_and_bound import SearchOutcome, search
+from synth.search.choices import Choices, choices_for, combination_count
+from synth.search.ideal import ideal_values
+from synth.spread.analyse import analyse_spread
+from synth.spread.records import SpreadSettings
+from synth.spread.worst_case import WorstCase
 
 RANKINGS = ("nominal", "worst-case", "yield")
 
@@ -274,7 +182,7 @@ def synthesize(
 
     Examples
     --------
-    >>> from synth.design import design_from_dict
+    >>> from synth.design.reader import design_from_dict
     >>> d = design_from_dict({
     ...     "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
     ...                 "value": "12 V"}],
@@ -297,12 +205,12 @@ def synthesize(
         raise DesignError(f"rank_by {rank_by!r} is not known; use one of {', '.join(RANKINGS)}")
     choices = [choices_for(r, design.origin) for r in design.free_resistors]
     evaluator = Evaluator(design)
-    worst_case = WorstCase(design, evaluator) if rank_by == "worst-case" else None
+    ranges = WorstCase(design, evaluator).ranges if rank_by == "worst-case" else None
     ideal = ideal_values(design, evaluator)
     seeds = _seeds(choices, ideal)
     outcome: SearchOutcome = search(design, evaluator, choices, top=top,
                                     time_limit_s=time_limit_s, seeds=seeds, progress=progress,
-                                    worst_case=worst_case)
+                                    target_ranges=ranges)
     feasible = len(outcome.ranked.objective) > 0
     binding = None
     if not feasible:

@@ -10,10 +10,10 @@ from __future__ import annotations
 
 import numpy as np
 
-from synth.catalogs import series_values
-from synth.design import Design
-from synth.network import build_network
-from synth.nodal import nodal_solve
+from synth.catalog.series import series_values
+from synth.circuit.network import build_network
+from synth.circuit.nodal import nodal_solve
+from synth.design.model import Design
 
 
 def _choices(resistor):

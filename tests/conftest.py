@@ -6,7 +6,7 @@ from pathlib import Path
 
 import pytest
 
-from synth.design import design_from_dict
+from synth.design.reader import design_from_dict
 
 ROOT = Path(__file__).resolve().parent.parent
 EXAMPLES = sorted(p for p in (ROOT / "examples").glob("*.toml") if not p.stem.endswith("board"))

@@ -8,7 +8,7 @@ import pytest
 from click.testing import CliRunner
 
 from synth.cli import cli
-from synth.design import design_from_dict
+from synth.design.reader import design_from_dict
 from synth.synthesis import synthesize
 
 from conftest import EXAMPLES

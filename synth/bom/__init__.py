@@ -1,0 +1,4 @@
+"""The bill of materials of a board: CP-SAT value consolidation and BOM lines.
+"""
+
+__all__: list[str] = []

@@ -1,0 +1,195 @@
+"""Bill of materials for a whole board: design every network, consolidate values, list parts.
+
+Every network is designed (its pool: the best feasible candidates, up to the
+board's ``pool``), then :func:`synth.consolidate.consolidate` picks one
+candidate per network with the fewest distinct BOM lines.  A BOM line is one
+orderable part: value, package, tolerance and TCR.  Reference designators
+that clash across networks (or copies of one network) are renumbered: the
+first network keeps its designators, later ones that clash take the next
+free number with the same letters, in board order.
+"""
+
+from __future__ import annotations
+
+__all__ = ["bom_parts", "build_bom"]
+
+from collections import defaultdict
+from collections.abc import Callable, Mapping
+from typing import cast
+
+from synth.bom.consolidate import Pool, consolidate
+from synth.bom.lines import BomLine, BomResult, LineKey, NetworkChoice, natural_order
+from synth.catalog.packages import PackageRating
+from synth.catalog.series import coarsest_series
+from synth.catalog.stock import StockItem, load_stock
+from synth.checking import check
+from synth.design.board import Board
+from synth.design.model import Design, Resistor
+from synth.errors import InfeasibleError
+from synth.synthesis import synthesize
+
+
+def _spec(design: Design, ref: str) -> Resistor | None:
+    for resistor in design.resistors:
+        if resistor.ref == ref or (resistor.combine and ref[:-1] == resistor.ref
+                                   and ref[-1] in "AB"):
+            return resistor
+    return None
+
+
+def _key(value: float, resistor: Resistor) -> LineKey:
+    return LineKey(value=float(f"{value:.9g}"), package=resistor.package or "",
+                   tolerance=resistor.tolerance, tcr=resistor.tcr)
+
+
+def bom_parts(design: Design, values: dict[str, float]) -> list[tuple[str, LineKey]]:
+    """(reference, line) of every BOM part of one network for physical part values."""
+    out = []
+    for ref, value in values.items():
+        spec = _spec(design, ref)
+        if spec is not None and spec.bom:
+            out.append((ref, _key(value, spec)))
+    return out
+
+
+def _stock_match(key: LineKey, stock: list[StockItem], packages: Mapping[str, PackageRating]
+                 ) -> list[StockItem]:
+    def same_package(item: StockItem) -> bool:
+        if item.package is None or not key.package:
+            return True
+        a, b = packages.get(item.package), packages.get(key.package)
+        return item.package == key.package or (a is not None and a is b)
+
+    return [item for item in stock
+            if abs(item.value - key.value) <= 1e-9 * key.value and same_package(item)
+            and (item.tolerance is None or item.tolerance <= key.tolerance + 1e-12)]
+
+
+def _renumber(refs: list[str], used: set[str], highest: dict[str, int]) -> dict[str, str]:
+    mapping = {}
+    for ref in refs:
+        if ref not in used:
+            new = ref
+        else:
+            letters, _, rest = natural_order(ref)
+            highest[letters] = highest.get(letters, 0) + 1
+            new = f"{letters}{highest[letters]}{rest}"
+            while new in used:
+                highest[letters] += 1
+                new = f"{letters}{highest[letters]}{rest}"
+            mapping[ref] = new
+        used.add(new)
+        letters, number, _ = natural_order(new)
+        highest[letters] = max(highest.get(letters, 0), number)
+    return mapping
+
+
+def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0,
+              progress: Callable[[str], None] | None = None) -> BomResult:
+    """Design every network of a board, consolidate values and list the parts.
+
+    Parameters
+    ----------
+    board : Board
+    stock_only : bool
+        Keep only candidates whose chosen parts are all in the stock list.
+    time_limit_s : float
+        Time limit of the consolidation, s.
+    progress : callable, optional
+        Called with each network's name as it is designed.
+
+    Returns
+    -------
+    BomResult
+
+    Raises
+    ------
+    InfeasibleError
+        When a network has no feasible design (or none from stock with ``stock_only``).
+    DesignError
+        On a malformed stock list.
+    """
+    stock = load_stock(board.stock_path) if board.stock_path else []
+    pools, options, notes = [], [], []
+    for net in board.networks:
+        if progress is not None:
+            progress(net.name)
+        design = net.design
+        if design.free_resistors:
+            result = synthesize(design, top=board.pool)
+            if not result.feasible:
+                raise InfeasibleError(f"{design.origin}: network {net.name!r} has no standard "
+                                      f"values meeting every window and limit; binding: "
+                                      f"{result.binding}")
+            candidates = [(c.rank, c.values | {r.ref: r.value for r in design.resistors
+                                                if not r.free and r.value is not None},
+                           c.objective) for c in result.candidates]
+            if not result.proven_optimal:
+                notes.append(f"network {net.name}: search not proven optimal")
+        else:
+            checked = check(design)
+            if not checked.ok:
+                raise InfeasibleError(f"{design.origin}: network {net.name!r} fails: "
+                                      + "; ".join(checked.problems))
+            objective = max((abs(t.error) for t in checked.targets if t.error is not None),
+                            default=0.0)
+            candidates = [(1, dict(checked.values), objective)]
+        free_refs = {r.ref for r in design.free_resistors}
+        if stock_only and stock:
+            def from_stock(values: dict[str, float], d: Design = design,
+                           free: set[str] = free_refs) -> bool:
+                return all(_stock_match(key, stock, d.packages) for ref, key in
+                           bom_parts(d, values) if ref in free or ref[:-1] in free)
+            candidates = [c for c in candidates if from_stock(c[1])]
+            if not candidates:
+                raise InfeasibleError(f"{design.origin}: network {net.name!r} has no feasible "
+                                      "candidate built from stock values alone; allow buying "
+                                      "(drop --stock-only) or widen the pool")
+        options.append(candidates)
+        pools.append(Pool(lines=[frozenset(k for _, k in bom_parts(design, c[1]))
+                                 for c in candidates],
+                          errors=[c[2] for c in candidates]))
+    all_keys = {cast(LineKey, k) for p in pools for s in p.lines for k in s}
+    in_stock = (frozenset(k for k in all_keys
+                          if _stock_match(k, stock, board.networks[0].design.packages))
+                if stock else None)
+    outcome = consolidate(pools, in_stock=in_stock, time_limit_s=time_limit_s)
+    before = len(set().union(*(p.lines[0] for p in pools)))
+
+    used: set[str] = set()
+    highest: dict[str, int] = {}
+    renumbered: dict[str, dict[str, str]] = {}
+    refs_by_key: dict[LineKey, list[str]] = defaultdict(list)
+    chosen = []
+    for net, pick, candidates in zip(board.networks, outcome.choice, options, strict=True):
+        rank, values, objective = candidates[pick]
+        parts = bom_parts(net.design, values)
+        chosen.append(NetworkChoice(name=net.name, count=net.count, rank=rank, values=values,
+                                    objective=objective, pool_size=len(candidates)))
+        for copy in range(net.count):
+            mapping = _renumber([ref for ref, _ in parts], used, highest)
+            label = net.name if net.count == 1 else f"{net.name} #{copy + 1}"
+            if mapping:
+                renumbered[label] = mapping
+            for ref, key in parts:
+                refs_by_key[key].append(mapping.get(ref, ref))
+    packages = board.networks[0].design.packages
+    lines = []
+    for number, key in enumerate(sorted(refs_by_key, key=lambda k: (k.value, k.package,
+                                                                     k.tolerance, k.tcr)), 1):
+        refs = sorted(refs_by_key[key], key=natural_order)
+        matches = _stock_match(key, stock, packages) if stock else []
+        quantities = [m.quantity for m in matches]
+        on_hand = (sum(q for q in quantities if q is not None)
+                   if matches and any(q is not None for q in quantities) else None)
+        need = len(refs)
+        shortfall = need if not matches else max(need - on_hand, 0) if on_hand is not None else 0
+        lines.append(BomLine(
+            number=number, key=key, series=coarsest_series(key.value) or "-",
+            rating=packages.get(key.package) if key.package else None, quantity=need,
+            references=tuple(refs), on_hand=on_hand, in_stock=bool(matches),
+            shortfall=shortfall,
+        ))
+    return BomResult(board=board, lines=tuple(lines), networks=tuple(chosen),
+                     renumbered=renumbered, consolidation=outcome, lines_before=before,
+                     notes=tuple(notes))

@@ -1,0 +1,140 @@
+"""Bill-of-materials records: line keys, lines, network choices and designator ranges.
+"""
+
+from __future__ import annotations
+
+__all__ = [
+    "BomLine", "BomResult", "LineKey", "NetworkChoice", "collapse_references", "natural_order",
+]
+
+import re
+from dataclasses import dataclass, field
+
+from synth.bom.consolidate import Consolidation
+from synth.catalog.packages import PackageRating
+from synth.design.board import Board
+
+_REF = re.compile(r"^([A-Za-z]+)(\d+)(.*)$")
+
+
+@dataclass(frozen=True, order=True)
+class LineKey:
+    """What makes two parts the same orderable line."""
+
+    value: float
+    package: str
+    tolerance: float
+    tcr: float
+
+
+@dataclass(frozen=True)
+class BomLine:
+    """One line of the bill of materials.
+
+    Attributes
+    ----------
+    number : int
+    key : LineKey
+    series : str
+        Coarsest IEC 60063 series holding the value ("-" when none).
+    rating : PackageRating or None
+    quantity : int
+    references : tuple of str
+    on_hand : int or None
+        Parts in stock (None: not in stock, or quantity not given).
+    in_stock : bool
+    shortfall : int
+        Parts to buy beyond what is on hand (all of them when not in stock).
+    """
+
+    number: int
+    key: LineKey
+    series: str
+    rating: PackageRating | None
+    quantity: int
+    references: tuple[str, ...]
+    on_hand: int | None
+    in_stock: bool
+    shortfall: int
+
+
+@dataclass(frozen=True)
+class NetworkChoice:
+    """The design picked for one network."""
+
+    name: str
+    count: int
+    rank: int
+    values: dict[str, float]
+    objective: float
+    pool_size: int
+
+
+@dataclass(frozen=True)
+class BomResult:
+    """Result of :func:`build_bom`.
+
+    Attributes
+    ----------
+    board : Board
+    lines : tuple of BomLine
+    networks : tuple of NetworkChoice
+    renumbered : dict of str to dict of str to str
+        Per network instance, the designators that changed (old to new).
+    consolidation : Consolidation
+    lines_before : int
+        Distinct lines with every network at its own best candidate.
+    """
+
+    board: Board
+    lines: tuple[BomLine, ...]
+    networks: tuple[NetworkChoice, ...]
+    renumbered: dict[str, dict[str, str]]
+    consolidation: Consolidation
+    lines_before: int
+    notes: tuple[str, ...] = field(default=())
+
+    @property
+    def parts(self) -> int:
+        """Parts on the board."""
+        return sum(line.quantity for line in self.lines)
+
+
+def natural_order(ref: str) -> tuple[str, int, str]:
+    match = _REF.match(ref)
+    return (match[1], int(match[2]), match[3]) if match else (ref, 0, "")
+
+
+def collapse_references(refs: list[str]) -> str:
+    """Designators as ranges: ``R1, R2, R3, R4, R7`` becomes ``R1–R4, R7``.
+
+    Examples
+    --------
+    >>> collapse_references(["R7", "R2", "R1", "R3", "R4", "C1", "R10A"])
+    'C1, R1–R4, R7, R10A'
+    """
+    ordered = sorted(set(refs), key=natural_order)
+    out: list[str] = []
+    run: list[tuple[str, int]] = []
+
+    def flush() -> None:
+        if not run:
+            return
+        letters = run[0][0]
+        if len(run) >= 3:
+            out.append(f"{letters}{run[0][1]}–{letters}{run[-1][1]}")
+        else:
+            out.extend(f"{letters}{n}" for _, n in run)
+        run.clear()
+
+    for ref in ordered:
+        letters, number, rest = natural_order(ref)
+        if _REF.match(ref) and not rest:
+            if run and (run[-1][0] != letters or run[-1][1] + 1 != number):
+                flush()
+            run.append((letters, number))
+        else:
+            flush()
+            out.append(ref)
+    flush()
+    return ", ".join(out)

@@ -1,0 +1,168 @@
+"""The package table: each package's rated dissipation, rated ambient, zero-power temperature and
+limiting element voltage.
+"""
+
+from __future__ import annotations
+
+__all__ = ["PackageRating", "load_package_table", "read_csv_rows"]
+
+import csv
+import functools
+import math
+from collections.abc import Iterator
+from dataclasses import dataclass
+from pathlib import Path
+
+from synth.catalog.series import catalog_dir
+from synth.errors import DesignError
+
+
+@dataclass(frozen=True)
+class PackageRating:
+    """Ratings of one resistor package.
+
+    Attributes
+    ----------
+    name : str
+        The name a design file uses (imperial code for chips, e.g. ``"0603"``).
+    mount : str
+        ``"chip"`` or ``"through-hole"``.
+    imperial, metric : str
+        Size names in both systems (empty for through-hole parts).
+    rated_power_w : float
+        Rated dissipation at the rated ambient, W.
+    rated_ambient_c : float
+        Ambient up to which the full rating applies, °C (usually 70).
+    zero_power_c : float
+        Ambient at which the allowed dissipation reaches zero, °C (usually 155).
+    limiting_voltage_v : float
+        Limiting element voltage, V.
+    source : str
+        Where the row comes from ("common practice", "from memory", a standard).
+    """
+
+    name: str
+    mount: str
+    imperial: str
+    metric: str
+    rated_power_w: float
+    rated_ambient_c: float
+    zero_power_c: float
+    limiting_voltage_v: float
+    source: str
+
+
+_PACKAGE_COLUMNS = (
+    "name",
+    "mount",
+    "imperial",
+    "metric",
+    "rated_power_w",
+    "rated_ambient_c",
+    "zero_power_c",
+    "limiting_voltage_v",
+    "source",
+)
+
+
+def read_csv_rows(path: Path) -> Iterator[tuple[int, dict[str, str]]]:
+    """Yield ``(line_number, row)`` from a CSV file, skipping ``#`` comment lines.
+
+    Raises
+    ------
+    DesignError
+        When the file cannot be read.
+    """
+    try:
+        text = path.read_text(encoding="utf-8-sig")
+    except OSError as exc:
+        raise DesignError(f"{path}: cannot be read ({exc.strerror}); check the path") from None
+    numbered = [
+        (number, line)
+        for number, line in enumerate(text.splitlines(), start=1)
+        if line.strip() and not line.lstrip().startswith("#")
+    ]
+    if not numbered:
+        raise DesignError(f"{path}: the file has no header row; add one naming the columns")
+    reader = csv.DictReader(line for _, line in numbered)
+    for (number, _), row in zip(numbered[1:], reader, strict=False):
+        yield number, {(k or "").strip(): (v or "").strip() for k, v in row.items()}
+
+
+def _package_row(path: Path, number: int, row: dict[str, str]) -> PackageRating:
+    missing = [c for c in _PACKAGE_COLUMNS if c not in row]
+    if missing:
+        raise DesignError(f"{path}, line {number}: column {missing[0]!r} is missing; "
+                          f"the header must name {', '.join(_PACKAGE_COLUMNS)}")
+    numbers = {}
+    for column in ("rated_power_w", "rated_ambient_c", "zero_power_c", "limiting_voltage_v"):
+        try:
+            numbers[column] = float(row[column])
+        except ValueError:
+            raise DesignError(
+                f"{path}, line {number}: {column} {row[column]!r} is not a number; "
+                "write a plain number in the column's unit"
+            ) from None
+        if not math.isfinite(numbers[column]):
+            raise DesignError(f"{path}, line {number}: {column} must be finite")
+    if numbers["rated_power_w"] <= 0 or numbers["limiting_voltage_v"] <= 0:
+        raise DesignError(
+            f"{path}, line {number}: rated_power_w and limiting_voltage_v must be positive"
+        )
+    if numbers["zero_power_c"] <= numbers["rated_ambient_c"]:
+        raise DesignError(
+            f"{path}, line {number}: zero_power_c must lie above rated_ambient_c"
+        )
+    if not row["name"]:
+        raise DesignError(f"{path}, line {number}: the package name is empty; name it")
+    return PackageRating(
+        name=row["name"],
+        mount=row["mount"],
+        imperial=row["imperial"],
+        metric=row["metric"],
+        source=row["source"],
+        **numbers,
+    )
+
+
+@functools.cache
+def _cached_package_table(path: Path, _mtime_ns: int) -> dict[str, PackageRating]:
+    table: dict[str, PackageRating] = {}
+    for number, row in read_csv_rows(path):
+        rating = _package_row(path, number, row)
+        if rating.name in table:
+            raise DesignError(f"{path}, line {number}: package {rating.name!r} is listed twice")
+        table[rating.name] = rating
+    return table
+
+
+def load_package_table(path: str | Path | None = None) -> dict[str, PackageRating]:
+    """Read a package rating table, keyed by package name.
+
+    Parameters
+    ----------
+    path : str or Path, optional
+        A CSV with the columns of ``catalogs/packages.csv``; the bundled table
+        when omitted.
+
+    Returns
+    -------
+    dict of str to PackageRating
+        Chip packages are also reachable by their metric name (``"1608M"``).
+
+    Examples
+    --------
+    >>> load_package_table()["0603"].rated_power_w
+    0.1
+    """
+    source = Path(path) if path is not None else catalog_dir() / "packages.csv"
+    resolved = source.resolve()
+    try:
+        stamp = resolved.stat().st_mtime_ns
+    except OSError:
+        raise DesignError(f"{source}: package table not found; check the path") from None
+    table = dict(_cached_package_table(resolved, stamp))
+    for rating in list(table.values()):
+        if rating.metric and rating.metric not in table:
+            table[rating.metric] = rating
+    return table

@@ -1,0 +1,245 @@
+"""Targets and part stresses of many candidate value sets at once.
+
+An :class:`Evaluator` binds a design to its network and solvers, then turns a
+block of candidate resistances ``(N, resistors)`` into arrays of target
+values, part currents, voltages and dissipations, all vectorised over
+candidates.  Both ``check`` (one candidate) and the search use it.
+"""
+
+from __future__ import annotations
+
+__all__ = ["Evaluation", "Evaluator", "SourceValues"]
+
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import ArrayLike
+
+from synth.circuit.controlled import ControlledSolver
+from synth.circuit.mesh import MeshSolution, MeshSolver
+from synth.circuit.network import Network, build_network
+from synth.design.model import Design, Target
+from synth.errors import DesignError
+from synth.rating import allowed_power
+
+
+@dataclass(frozen=True)
+class SourceValues:
+    """Values of the independent sources and setpoints, shared or per candidate.
+
+    Attributes
+    ----------
+    voltages : numpy.ndarray
+        Voltage sources, V, ``(count,)`` or ``(N, count)``.
+    currents : numpy.ndarray
+        Current sources, A.
+    setpoints : numpy.ndarray
+        Regulating element setpoints, V.
+    gains : numpy.ndarray or None
+        Controlled sources' gains, ``(count,)`` or ``(N, count)`` (None: nominal).
+    """
+
+    voltages: np.ndarray
+    currents: np.ndarray
+    setpoints: np.ndarray
+    gains: np.ndarray | None = None
+
+
+@dataclass(frozen=True)
+class Evaluation:
+    """Everything a candidate block produces (candidate axis first).
+
+    Attributes
+    ----------
+    solution : MeshSolution
+        Node voltages and branch currents.
+    targets : numpy.ndarray
+        ``(N, targets)`` in the design's target order (V, A, W, ohm or ratio).
+    resistor_power : numpy.ndarray
+        ``(N, resistors)`` W.
+    resistor_voltage : numpy.ndarray
+        ``(N, resistors)`` V across each resistor (absolute).
+    supply_current : numpy.ndarray
+        ``(N,)`` A: sum of the currents delivered by voltage sources and
+        regulating elements (a source that absorbs current, such as a
+        forward-biased LED modelled as a voltage drop, counts zero).
+    """
+
+    solution: MeshSolution
+    targets: np.ndarray
+    resistor_power: np.ndarray
+    resistor_voltage: np.ndarray
+    supply_current: np.ndarray
+
+
+class Evaluator:
+    """Solve and measure candidates of one design.
+
+    Parameters
+    ----------
+    design : Design
+        A validated design.
+    typical_resistances : array_like, optional
+        Typical value of each resistor (ohm), to choose a well-conditioned
+        spanning tree; defaults to given values or the geometric middle of
+        each free part's range.
+    """
+
+    def __init__(self, design: Design, typical_resistances: ArrayLike | None = None):
+        self.design = design
+        self.network: Network = build_network(design)
+        if typical_resistances is None:
+            typical_resistances = [_typical(r) for r in design.resistors]
+        self.weights = np.asarray(typical_resistances, dtype=float)
+        self.solver: MeshSolver | ControlledSolver = (
+            ControlledSolver(self.network, self.weights) if self.network.controlled
+            else MeshSolver(self.network, self.weights))
+        self._seen: dict[tuple[str, str], MeshSolver | ControlledSolver] = {}
+        index = {n: i for i, n in enumerate(self.network.nodes)}
+        self.node_index = index
+        refs = self.network.branch_refs
+        self.branch_index = {ref: k for k, ref in enumerate(refs)}
+        self.resistor_index = {r.ref: k for k, r in enumerate(design.resistors)}
+        rated = [design.rating(r) for r in design.resistors]
+        self.allowed_power = np.array(
+            [np.nan if p is None else float(allowed_power(p, design.ambient_c, design.margin_frac))
+             for p in rated]
+        )
+        self.allowed_voltage = np.array(
+            [np.nan if p is None else p.limiting_voltage_v * design.voltage_margin_frac
+             for p in rated]
+        )
+        n_cv = sum(1 for c in design.controlled if c.voltage_output)
+        n_ci = len(design.controlled) - n_cv
+        self.nominal_sources = SourceValues(
+            voltages=np.array([s.value for s in design.sources if s.kind == "voltage"]
+                              + [0.0] * n_cv),
+            currents=np.array([s.value for s in design.sources if s.kind == "current"]
+                              + [0.0] * n_ci),
+            setpoints=np.array([g.setpoint for g in design.regulators]),
+            gains=np.array([c.gain for c in design.controlled]) if design.controlled else None,
+        )
+        self._supply_columns = np.array(
+            [self.branch_index[ref]
+             for ref in (*self.network.vsource_refs, *self.network.regulator_refs)],
+            dtype=int,
+        )
+
+    def _seen_solver(self, plus: str, minus: str) -> MeshSolver | ControlledSolver:
+        key = (plus, minus)
+        if key not in self._seen:
+            network = self.network.with_test_source(plus, minus)
+            self._seen[key] = (ControlledSolver(network, self.weights) if network.controlled
+                               else MeshSolver(network, self.weights))
+        return self._seen[key]
+
+    def _solve(self, solver: MeshSolver | ControlledSolver, r: np.ndarray,
+               voltages: np.ndarray, currents: np.ndarray, setpoints: np.ndarray,
+               gains: np.ndarray | None) -> MeshSolution:
+        if isinstance(solver, ControlledSolver):
+            return solver.solve(r, voltages, currents, setpoints, gains=gains)
+        return solver.solve(r, voltages, currents, setpoints)
+
+    def seen_resistance(self, resistances: np.ndarray, plus: str, minus: str,
+                        gains: np.ndarray | None = None) -> np.ndarray:
+        """Resistance between two nodes with independent sources zeroed, ohm, ``(N,)``.
+
+        Voltage sources are shorted and current sources opened; regulating
+        elements keep regulating (their setpoint is zeroed, their loop stays).
+        A 1 A test current is driven into ``plus`` and the voltage read.
+        """
+        solver = self._seen_solver(plus, minus)
+        n_i = len(self.network.isource_refs)
+        test = np.zeros(n_i + 1)
+        test[-1] = 1.0
+        sol = self._solve(solver, resistances, np.zeros(len(self.network.vsource_refs)), test,
+                          np.zeros(len(self.network.regulator_refs)), gains)
+        v = sol.node_voltages
+        return v[:, self.node_index[plus]] - v[:, self.node_index[minus]]
+
+    def evaluate(self, resistances: ArrayLike, sources: SourceValues | None = None) -> Evaluation:
+        """Solve a block of candidates and measure every target and part.
+
+        Parameters
+        ----------
+        resistances : array_like
+            ``(N, resistors)`` ohm, in the design's resistor order.
+        sources : SourceValues, optional
+            Source values; the design's nominal values by default.
+
+        Returns
+        -------
+        Evaluation
+        """
+        r = np.atleast_2d(np.asarray(resistances, dtype=float))
+        src = sources or self.nominal_sources
+        gains = src.gains if src.gains is not None else self.nominal_sources.gains
+        sol = self._solve(self.solver, r, src.voltages, src.currents, src.setpoints, gains)
+        n_r = len(self.network.resistor_refs)
+        i_r = sol.branch_currents[:, :n_r]
+        power = i_r * i_r * r
+        ends = self.network.resistor_ends
+        across = np.abs(sol.node_voltages[:, ends[:, 0]] - sol.node_voltages[:, ends[:, 1]])
+        targets = np.column_stack(
+            [self._target_values(t, r, sol, power, gains) for t in self.design.targets]
+        ) if self.design.targets else np.zeros((len(r), 0))
+        supply = np.clip(sol.branch_currents[:, self._supply_columns], 0.0, None).sum(axis=1)
+        return Evaluation(solution=sol, targets=targets, resistor_power=power,
+                          resistor_voltage=across, supply_current=supply)
+
+    def _target_values(self, target: Target, r: np.ndarray, sol: MeshSolution,
+                       power: np.ndarray, gains: np.ndarray | None = None) -> np.ndarray:
+        v = sol.node_voltages
+        idx = self.node_index
+        if target.kind == "voltage":
+            a, b = target.nodes
+            return v[:, idx[a]] - v[:, idx[b]]
+        if target.kind == "ratio":
+            a, b, c, d = target.nodes
+            with np.errstate(divide="ignore", invalid="ignore"):
+                return (v[:, idx[a]] - v[:, idx[b]]) / (v[:, idx[c]] - v[:, idx[d]])
+        if target.kind == "current":
+            return sol.branch_currents[:, self.branch_index[target.ref or ""]]
+        if target.kind == "power":
+            return power[:, self.resistor_index[target.ref or ""]]
+        a, b = target.nodes
+        return self.seen_resistance(r, a, b, gains)
+
+    def check_regulators(self, resistances: np.ndarray) -> None:
+        """Refuse a design whose regulating element cannot move its sense node.
+
+        Raises
+        ------
+        DesignError
+            When the output voltage of a regulating element comes out
+            undefined (its sense node does not depend on its output).
+        """
+        if not self.network.regulator_refs and not self.network.controlled:
+            return
+        src = self.nominal_sources
+        sol = self._solve(self.solver, np.atleast_2d(resistances), src.voltages, src.currents,
+                          src.setpoints, src.gains)
+        if self.network.controlled and not np.all(np.isfinite(sol.node_voltages)):
+            raise DesignError(
+                f"{self.design.origin}: the controlled sources leave the circuit without a "
+                "unique solution (their loop gain is exactly one); check their gains and "
+                "control connections"
+            )
+        for k, ref in enumerate(self.network.regulator_refs):
+            out = sol.regulator_outputs[:, k]
+            if not np.all(np.isfinite(out)) or np.any(np.abs(out) > 1e12):
+                raise DesignError(
+                    f"{self.design.origin}, regulator {ref}: its output cannot move its sense "
+                    "node, so nothing sets its voltage; connect the sense node to the output "
+                    "through the feedback network"
+                )
+
+
+def _typical(resistor: object) -> float:
+    value = getattr(resistor, "value", None)
+    if value is not None:
+        return float(value)
+    span = getattr(resistor, "range", None)
+    if span is not None:
+        return float(np.sqrt(span[0] * span[1]))
+    return 1e3

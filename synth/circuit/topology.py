@@ -1,0 +1,80 @@
+"""Topology rules a solvable DC network obeys: every node reaches ground, no loop of voltage-defined
+branches, no cut of current sources.
+"""
+
+from __future__ import annotations
+
+__all__ = ["UnionFind", "check_topology"]
+
+from typing import TYPE_CHECKING
+
+from synth.errors import DesignError
+
+if TYPE_CHECKING:  # network.py imports this module
+    from synth.circuit.network import Network
+
+
+class UnionFind:
+    """Disjoint sets over ``0 .. n-1`` (path halving, union by size)."""
+
+    def __init__(self, n: int):
+        self.parent = list(range(n))
+        self.size = [1] * n
+
+    def find(self, x: int) -> int:
+        while self.parent[x] != x:
+            self.parent[x] = self.parent[self.parent[x]]
+            x = self.parent[x]
+        return x
+
+    def union(self, a: int, b: int) -> bool:
+        """Join the sets of ``a`` and ``b``; False when they were already one."""
+        ra, rb = self.find(a), self.find(b)
+        if ra == rb:
+            return False
+        if self.size[ra] < self.size[rb]:
+            ra, rb = rb, ra
+        self.parent[rb] = ra
+        self.size[ra] += self.size[rb]
+        return True
+
+
+def check_topology(network: Network) -> None:
+    """Refuse a network without a unique DC solution (see :func:`build_network`)."""
+    n = len(network.nodes)
+    refs, ends = network.branch_refs, network.branch_ends
+    origin, names = network.origin, network.nodes
+    kinds = (["resistor"] * len(network.resistor_refs) + ["voltage"] * len(network.vsource_refs)
+             + ["current"] * len(network.isource_refs) + ["voltage"] * len(network.regulator_refs))
+
+    every = UnionFind(n)
+    for a, b in ends:
+        every.union(int(a), int(b))
+    stranded = [i for i in range(n) if every.find(i) != every.find(0)]
+    if stranded:
+        island = [names[i] for i in stranded]
+        parts = sorted({refs[k] for k, (a, b) in enumerate(ends) if a in stranded or b in stranded})
+        raise DesignError(f"{origin}: node(s) {', '.join(island)} (parts {', '.join(parts)}) "
+                          f"have no path to ground {names[0]!r}; connect them to the rest")
+
+    voltage_defined = UnionFind(n)
+    for k, (a, b) in enumerate(ends):
+        if kinds[k] == "voltage" and not voltage_defined.union(int(a), int(b)):
+            loop = [refs[j] for j in range(k + 1) if kinds[j] == "voltage"]
+            raise DesignError(f"{origin}, {refs[k]}: voltage sources and regulator outputs "
+                              f"{', '.join(loop)} close a "
+                              f"loop through nodes {names[a]!r} and {names[b]!r} with no "
+                              "resistor in it; remove one or add a resistor in series")
+
+    without_current = UnionFind(n)
+    for k, (a, b) in enumerate(ends):
+        if kinds[k] != "current":
+            without_current.union(int(a), int(b))
+    fed = [i for i in range(n) if without_current.find(i) != without_current.find(0)]
+    if fed:
+        cut = [names[i] for i in fed]
+        sources = sorted({refs[k] for k, (a, b) in enumerate(ends)
+                          if kinds[k] == "current" and ((a in fed) != (b in fed))})
+        raise DesignError(f"{origin}: node(s) {', '.join(cut)} are reached only through current "
+                          f"source(s) {', '.join(sources)}, a cut of current sources with no "
+                          "defined voltage; add a resistor from them to the rest")

@@ -1,0 +1,189 @@
+"""Boards: several networks designed together for one bill of materials.
+
+A board file is TOML with a ``[board]`` table and ``[[network]]`` tables::
+
+    [board]
+    title = "Greenhouse controller"
+    stock = "shelf.csv"        # optional house stock list
+    pool = 200                 # candidates kept per network for consolidation
+
+    [[network]]
+    file = "probe.toml"        # a design file, relative to the board file
+    name = "probe"             # optional; default: the file's stem
+    count = 2                  # optional; copies of this network on the board
+
+Design files can also be given directly; each is then one network.
+"""
+
+from __future__ import annotations
+
+__all__ = ["DEFAULT_POOL", "Board", "BoardNetwork", "load_board"]
+
+import tomllib
+from collections.abc import Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from synth.design.load import load_design
+from synth.design.model import Design
+from synth.errors import DesignError, nearest_name
+
+_BOARD_KEYS = ("title", "stock", "pool", "notes")
+
+
+_NETWORK_KEYS = ("file", "name", "count", "note")
+
+
+DEFAULT_POOL = 200
+
+
+@dataclass(frozen=True)
+class BoardNetwork:
+    """One network of a board.
+
+    Attributes
+    ----------
+    name : str
+        Unique name (reports and reference renumbering use it).
+    design : Design
+    count : int
+        Copies of this network on the board.
+    """
+
+    name: str
+    design: Design
+    count: int
+
+
+@dataclass(frozen=True)
+class Board:
+    """A board: its networks, stock list and pool size.
+
+    Attributes
+    ----------
+    title : str
+    networks : tuple of BoardNetwork
+    stock_path : Path or None
+    pool : int
+        Feasible candidates kept per network (the consolidation's room).
+    """
+
+    title: str
+    networks: tuple[BoardNetwork, ...]
+    stock_path: Path | None
+    pool: int
+
+
+def _read_toml(path: Path) -> dict[str, Any]:
+    try:
+        with path.open("rb") as handle:
+            return tomllib.load(handle)
+    except FileNotFoundError:
+        raise DesignError(f"{path}: no such file; check the path") from None
+    except IsADirectoryError:
+        raise DesignError(f"{path}: is a folder; name a design or board file") from None
+    except tomllib.TOMLDecodeError as exc:
+        raise DesignError(f"{path}: not valid TOML ({exc}); fix the syntax there") from None
+    except OSError as exc:
+        raise DesignError(f"{path}: cannot be read ({exc.strerror})") from None
+
+
+def _board_file(path: Path, data: dict[str, Any]) -> tuple[str, list[BoardNetwork],
+                                                          Path | None, int]:
+    for key in data:
+        if key not in ("board", "network"):
+            raise DesignError(f"{path}: unknown table {key!r}"
+                              f"{nearest_name(key, ('board', 'network'))}; a board file has "
+                              "[board] and [[network]] tables")
+    board = data.get("board", {})
+    for key in board:
+        if key not in _BOARD_KEYS:
+            raise DesignError(f"{path}, [board]: unknown key {key!r}"
+                              f"{nearest_name(key, _BOARD_KEYS)} (allowed: "
+                              f"{', '.join(_BOARD_KEYS)})")
+    pool = board.get("pool", DEFAULT_POOL)
+    if not isinstance(pool, int) or isinstance(pool, bool) or pool < 1:
+        raise DesignError(f"{path}, [board]: pool {pool!r} must be a whole number of at least 1")
+    stock = None
+    if "stock" in board:
+        stock = path.parent / str(board["stock"])
+        if not stock.is_file():
+            raise DesignError(f"{path}, [board]: stock file {board['stock']!r} was not found; "
+                              "check the path")
+    networks = []
+    entries = data.get("network", [])
+    if not isinstance(entries, list) or not entries:
+        raise DesignError(f"{path}: the board lists no networks; add [[network]] tables with "
+                          "file = \"design.toml\"")
+    for index, entry in enumerate(entries, start=1):
+        item = f"{path}, network #{index}"
+        if not isinstance(entry, dict):
+            raise DesignError(f"{item}: write it as a [[network]] table")
+        for key in entry:
+            if key not in _NETWORK_KEYS:
+                raise DesignError(f"{item}: unknown key {key!r}{nearest_name(key, _NETWORK_KEYS)}"
+                                  f" (allowed: {', '.join(_NETWORK_KEYS)})")
+        if not isinstance(entry.get("file"), str):
+            raise DesignError(f"{item}: file is missing; add file = \"design.toml\"")
+        design_path = path.parent / entry["file"]
+        if not design_path.is_file():
+            raise DesignError(f"{item}: design file {entry['file']!r} was not found; check the "
+                              "path (it is read relative to the board file)")
+        count = entry.get("count", 1)
+        if not isinstance(count, int) or isinstance(count, bool) or count < 1:
+            raise DesignError(f"{item}: count {count!r} must be a whole number of at least 1")
+        name = entry.get("name", design_path.stem)
+        if not isinstance(name, str) or not name.strip():
+            raise DesignError(f"{item}: name must be a non-empty text")
+        networks.append(BoardNetwork(name=name.strip(), design=load_design(design_path),
+                                     count=count))
+    return str(board.get("title", path.stem)), networks, stock, pool
+
+
+def load_board(paths: Sequence[str | Path], stock: str | Path | None = None,
+               pool: int | None = None) -> Board:
+    """Read a board from board files and design files.
+
+    Parameters
+    ----------
+    paths : sequence of str or Path
+        Board files (with a ``[board]`` or ``[[network]]`` table) and design files.
+    stock : str or Path, optional
+        A house stock list; overrides a board file's ``stock``.
+    pool : int, optional
+        Candidates kept per network; overrides a board file's ``pool``.
+
+    Raises
+    ------
+    DesignError
+        On a missing or malformed file, or two networks with the same name.
+    """
+    if not paths:
+        raise DesignError("no design or board file given; name at least one")
+    title, networks, stock_path, board_pool = "", [], None, DEFAULT_POOL
+    for raw in paths:
+        path = Path(raw)
+        data = _read_toml(path)
+        if "board" in data or "network" in data:
+            t, nets, s, p = _board_file(path, data)
+            title = title or t
+            networks += nets
+            stock_path = stock_path or s
+            board_pool = p
+        else:
+            networks.append(BoardNetwork(name=path.stem, design=load_design(path), count=1))
+    seen: dict[str, int] = {}
+    for net in networks:
+        if net.name in seen:
+            raise DesignError(f"{net.design.origin}: network name {net.name!r} is used twice on "
+                              "the board; give each network its own name")
+        seen[net.name] = 1
+    if stock is not None:
+        stock_path = Path(stock)
+        if not stock_path.is_file():
+            raise DesignError(f"{stock_path}: stock file not found; check the path")
+    if pool is not None and pool < 1:
+        raise DesignError(f"--pool {pool} must be at least 1")
+    return Board(title=title or "board", networks=tuple(networks), stock_path=stock_path,
+                 pool=pool or board_pool)

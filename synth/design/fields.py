@@ -1,0 +1,112 @@
+"""Reading one item of a design file: typed keys, one-line errors naming the file and item.
+"""
+
+from __future__ import annotations
+
+__all__ = ["ItemReader", "node_pair", "range_end", "read_ohms", "table_array", "temperature_end"]
+
+from collections.abc import Callable, Mapping, Sequence
+from typing import Any
+
+from synth.errors import DesignError, nearest_name
+from synth.units import parse_fraction, parse_resistance, parse_temperature
+
+
+class ItemReader:
+    """Reads one item of a design file and phrases errors about it."""
+
+    def __init__(self, origin: str, item: str, table: Mapping[str, Any], allowed: Sequence[str]):
+        self.origin, self.item, self.table = origin, item, table
+        if not isinstance(table, Mapping):
+            self.fail(f"is {type(table).__name__}, not a table; write it as [{item.split()[0]}]")
+        for key in table:
+            if key not in allowed:
+                self.fail(
+                    f"unknown key {key!r}{nearest_name(key, allowed)} "
+                    f"(allowed: {', '.join(allowed)})"
+                )
+
+    def fail(self, problem: str) -> None:
+        raise DesignError(f"{self.origin}, {self.item}: {problem}")
+
+    def has(self, key: str) -> bool:
+        return key in self.table
+
+    def text(self, key: str, default: str | None = None) -> str:
+        if key not in self.table:
+            if default is None:
+                self.fail(f"key {key!r} is missing; add {key} = \"...\"")
+            return default  # type: ignore[return-value]
+        value = self.table[key]
+        if not isinstance(value, str) or not value.strip():
+            self.fail(f"{key} must be a non-empty text in quotes, not {value!r}")
+        return value.strip()
+
+    def parsed(self, key: str, parse: Callable[[Any], float], default: Any = None) -> float:
+        raw = self.table.get(key, default)
+        if raw is None:
+            self.fail(f"key {key!r} is missing; add it")
+        try:
+            return parse(raw)
+        except DesignError as exc:
+            self.fail(f"{key}: {exc}")
+        raise AssertionError("unreachable")
+
+    def fraction(
+        self, key: str, default: str, *, upper: float = 1.0, strict: bool = False
+    ) -> float:
+        value = self.parsed(key, parse_fraction, default)
+        if value < 0 or value > upper or (strict and value == 0):
+            low = "above 0 %" if strict else "0 %"
+            self.fail(f"{key} {self.table.get(key, default)!r} must lie between {low} and "
+                      f"{upper * 100:g} %")
+        return value
+
+    def positive(self, key: str, parse: Callable[[Any], float], default: Any = None) -> float:
+        value = self.parsed(key, parse, default)
+        if value <= 0:
+            self.fail(f"{key} {self.table.get(key, default)!r} must be positive")
+        return value
+
+
+def read_ohms(raw: Any) -> float:
+    return parse_resistance(raw)
+
+
+def node_pair(reader: ItemReader, key: str, ground: str) -> tuple[str, str]:
+    raw = reader.table[key]
+    if isinstance(raw, str) and raw.strip():
+        return raw.strip(), ground
+    if (
+        isinstance(raw, list)
+        and len(raw) == 2
+        and all(isinstance(n, str) and n.strip() for n in raw)
+    ):
+        return raw[0].strip(), raw[1].strip()
+    reader.fail(f"{key} must be a node name or a pair of node names such as [\"out\", \"gnd\"]")
+    raise AssertionError("unreachable")
+
+
+def temperature_end(reader: ItemReader, raw: Any) -> float:
+    """Read one end of a temperature range, phrasing errors for the item."""
+    try:
+        return parse_temperature(raw)
+    except DesignError as exc:
+        reader.fail(f"temperature: {exc}")
+    raise AssertionError("unreachable")
+
+
+def range_end(reader: ItemReader, key: str, raw: Any) -> float:
+    """Read one resistance inside a list, phrasing errors for the item."""
+    try:
+        return parse_resistance(raw)
+    except DesignError as exc:
+        reader.fail(f"{key}: {exc}")
+    raise AssertionError("unreachable")
+
+
+def table_array(origin: str, data: Mapping[str, Any], key: str) -> list[Any]:
+    raw = data.get(key, [])
+    if not isinstance(raw, list):
+        raise DesignError(f"{origin}: {key} must be an array of tables; write each as [[{key}]]")
+    return raw

@@ -1,0 +1,315 @@
+"""The validated records of a design: sources, resistors, regulators, active parts, targets.
+"""
+
+from __future__ import annotations
+
+__all__ = [
+    "TARGET_KINDS", "TARGET_UNITS", "ControlledSource", "Design", "Regulator", "Resistor",
+    "Source", "Target", "Transistor",
+]
+
+import math
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from synth.catalog.packages import PackageRating
+
+TARGET_KINDS = ("voltage", "current", "ratio", "power", "resistance")
+TARGET_UNITS = {"voltage": "V", "current": "A", "power": "W", "resistance": "Ω", "ratio": ""}
+
+
+@dataclass(frozen=True)
+class Source:
+    """An independent source.
+
+    Attributes
+    ----------
+    ref : str
+        Reference designator.
+    kind : {"voltage", "current"}
+        A voltage source holds ``V(plus) - V(minus) = value`` (V); a current
+        source drives ``value`` amperes through itself from ``from`` to ``to``,
+        that is into node ``to``.
+    pos, neg : str
+        ``plus``/``minus`` for a voltage source, ``to``/``from`` for a current source.
+    value : float
+        V or A.
+    tolerance : float
+        Relative tolerance of the value (fraction).
+    """
+
+    ref: str
+    kind: str
+    pos: str
+    neg: str
+    value: float
+    tolerance: float
+
+
+@dataclass(frozen=True)
+class Resistor:
+    """A resistor, fixed (``value``) or free (``choose`` with ``range``).
+
+    Attributes
+    ----------
+    ref : str
+        Reference designator.
+    nodes : tuple of str
+        Its two nodes; its current is counted from ``nodes[0]`` to ``nodes[1]``.
+    value : float or None
+        Resistance, ohm (for a free part: the value ``check`` uses, if given).
+    choose : str or None
+        Series name (``"E96"``) or house stock file for a free part.
+    stock_path : Path or None
+        The stock file ``choose`` names, resolved.
+    range : tuple of float or None
+        Allowed values of a free part, ohm (low, high).
+    tolerance : float
+        Relative tolerance (fraction).
+    tcr : float
+        Temperature coefficient, fraction per kelvin.
+    package : str or None
+        Package name in the design's package table, or None (not rated).
+    combine : {None, "series", "parallel"}
+        Two parts from the same choice fill this position.
+    bom : bool
+        True when the part goes on the bill of materials; False for resistors
+        that model something else (a load, a sensor, an input resistance).
+    """
+
+    ref: str
+    nodes: tuple[str, str]
+    value: float | None
+    choose: str | None
+    stock_path: Path | None
+    range: tuple[float, float] | None
+    tolerance: float
+    tcr: float
+    package: str | None
+    combine: str | None
+    bom: bool = True
+
+    @property
+    def free(self) -> bool:
+        """True when the optimiser picks this part's value."""
+        return self.choose is not None
+
+
+@dataclass(frozen=True)
+class Regulator:
+    """An ideal regulating element (the control loop of a regulator or amplifier).
+
+    It drives node ``output`` from ground with whatever voltage makes
+    ``V(sense) - V(reference) = setpoint``, delivering any current needed.
+
+    Attributes
+    ----------
+    ref : str
+        Reference designator.
+    output, sense, reference : str
+        Node names.
+    setpoint : float
+        Regulated voltage, V (the reference voltage of the regulator).
+    tolerance : float
+        Relative tolerance of the setpoint (fraction).
+    """
+
+    ref: str
+    output: str
+    sense: str
+    reference: str
+    setpoint: float
+    tolerance: float
+
+
+@dataclass(frozen=True)
+class ControlledSource:
+    """A linear controlled source.
+
+    Attributes
+    ----------
+    ref : str
+    kind : {"vcvs", "vccs", "ccvs", "cccs"}
+        Voltage- or current-controlled, voltage or current output.
+    pos, neg : str
+        Output: ``plus``/``minus`` for a voltage output (V(plus) - V(minus) =
+        gain × control), ``to``/``from`` for a current output (gain × control
+        amperes through it from ``from`` to ``to``).
+    control_nodes : tuple of str or None
+        ``(a, b)``: the controlling voltage V(a) - V(b).
+    control_ref : str or None
+        The part whose current controls it (its current in its own sign convention).
+    gain : float
+        V/V, A/V (S), V/A (ohm) or A/A.
+    gain_low, gain_high : float
+        The range the gain may take (for spread); both equal ``gain`` when fixed.
+    """
+
+    ref: str
+    kind: str
+    pos: str
+    neg: str
+    control_nodes: tuple[str, str] | None
+    control_ref: str | None
+    gain: float
+    gain_low: float
+    gain_high: float
+
+    @property
+    def voltage_output(self) -> bool:
+        """True for a voltage output (a voltage-defined branch)."""
+        return self.kind in ("vcvs", "ccvs")
+
+
+@dataclass(frozen=True)
+class Transistor:
+    """A bipolar transistor in its forward-active region (DC model).
+
+    It is solved as a base-emitter drop (a voltage source ``REF.BE``) and a
+    collector current β × base current (a controlled source ``REF.C``); a
+    target ``REF active`` keeps the collector-emitter voltage above ``vce_sat``.
+
+    Attributes
+    ----------
+    ref, polarity : str
+        ``polarity`` is ``"npn"`` or ``"pnp"``.
+    collector, base, emitter : str
+    vbe : float
+        Base-emitter drop magnitude, V.
+    beta, beta_low, beta_high : float
+        Typical, least and greatest current gain.
+    vce_sat : float
+        Least collector-emitter voltage magnitude still counted as active, V.
+    """
+
+    ref: str
+    polarity: str
+    collector: str
+    base: str
+    emitter: str
+    vbe: float
+    beta: float
+    beta_low: float
+    beta_high: float
+    vce_sat: float
+
+
+@dataclass(frozen=True)
+class Target:
+    """One requirement on the network.
+
+    Attributes
+    ----------
+    label : str
+        Name shown in tables, e.g. ``"V(sense)"`` or the user's ``name``.
+    kind : {"voltage", "current", "ratio", "power", "resistance"}
+        What is measured.
+    nodes : tuple of str
+        ``(a, b)`` for a voltage or resistance, ``(a, b, c, d)`` for a ratio
+        ``(V(a) - V(b)) / (V(c) - V(d))``; empty for current and power.
+    ref : str or None
+        The part a current or power target names.
+    equals : float or None
+        Goal value (V, A, W, ohm, or a plain ratio).
+    within_abs, within_rel : float or None
+        Half-width of the hard window around ``equals`` (absolute, or relative).
+    at_least, at_most : float or None
+        Bounds.
+    unit : str
+        Unit symbol for display.
+    """
+
+    label: str
+    kind: str
+    nodes: tuple[str, ...]
+    ref: str | None
+    equals: float | None
+    within_abs: float | None
+    within_rel: float | None
+    at_least: float | None
+    at_most: float | None
+    unit: str
+
+    @property
+    def bounds(self) -> tuple[float, float]:
+        """The hard window ``(low, high)``: ``within`` and the bounds combined."""
+        low, high = -math.inf, math.inf
+        if self.equals is not None:
+            half = None
+            if self.within_abs is not None:
+                half = self.within_abs
+            elif self.within_rel is not None:
+                half = abs(self.equals) * self.within_rel
+            if half is not None:
+                low, high = self.equals - half, self.equals + half
+        if self.at_least is not None:
+            low = max(low, self.at_least)
+        if self.at_most is not None:
+            high = min(high, self.at_most)
+        return low, high
+
+
+@dataclass(frozen=True)
+class Design:
+    """A whole design, validated.
+
+    Attributes
+    ----------
+    origin : str
+        The file it came from (or a description for designs built in memory).
+    title : str
+        Free text.
+    ground : str
+        The reference node (0 V).
+    ambient_c : float
+        Ambient temperature for derating, °C.
+    margin_frac : float
+        Share of the derated power rating a part may use (0.5 = 50 %).
+    voltage_margin_frac : float
+        Share of the limiting element voltage a part may see (0.8 = 80 %).
+    temperature_c : tuple of float
+        Operating temperature range (low, high), °C, for TCR spread.
+    packages : dict of str to PackageRating
+        The package table in force.
+    sources, resistors, regulators, targets : tuple
+        The parts and requirements, in file order.
+    """
+
+    origin: str
+    title: str
+    ground: str
+    ambient_c: float
+    margin_frac: float
+    voltage_margin_frac: float
+    temperature_c: tuple[float, float]
+    sources: tuple[Source, ...]
+    resistors: tuple[Resistor, ...]
+    regulators: tuple[Regulator, ...]
+    targets: tuple[Target, ...]
+    packages: Mapping[str, PackageRating] = field(repr=False)
+    controlled: tuple[ControlledSource, ...] = ()
+    transistors: tuple[Transistor, ...] = ()
+
+    @property
+    def free_resistors(self) -> tuple[Resistor, ...]:
+        """The resistors whose value the optimiser picks."""
+        return tuple(r for r in self.resistors if r.free)
+
+    @property
+    def node_names(self) -> tuple[str, ...]:
+        """Every node the parts touch, ground first, then in order of appearance."""
+        names = [self.ground]
+        for s in self.sources:
+            names += [s.neg, s.pos]
+        for r in self.resistors:
+            names += list(r.nodes)
+        for g in self.regulators:
+            names += [g.output, g.sense, g.reference]
+        for c in self.controlled:
+            names += [c.neg, c.pos, *(c.control_nodes or ())]
+        return tuple(dict.fromkeys(names))
+
+    def rating(self, resistor: Resistor) -> PackageRating | None:
+        """The package rating of a resistor, or None when it names no package."""
+        return self.packages[resistor.package] if resistor.package else None

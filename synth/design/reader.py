@@ -1,0 +1,382 @@
+"""Design files: rnsynth's TOML structure, read and validated into frozen records.
+
+A design file has one ``[design]`` table and arrays of tables ``[[source]]``,
+``[[resistor]]``, ``[[regulator]]`` and ``[[target]]``.  Every key is listed in
+``docs/design-file.md``.  Values are written as engineers write them
+(``"4k7"``, ``"13.8 V"``, ``"1%"``) and read by :mod:`synth.units`.
+
+Everything a user can get wrong is caught here or in :mod:`synth.network` with
+a one-line :class:`~synth.errors.DesignError` naming the file, the item and the
+fix; nothing downstream has to re-check input.
+"""
+
+from __future__ import annotations
+
+__all__ = ["design_from_dict"]
+
+import math
+from collections.abc import Mapping
+from pathlib import Path
+from typing import Any
+
+from synth.catalog.packages import PackageRating, load_package_table
+from synth.catalog.series import catalog_dir, load_series
+from synth.design.active import read_active_parts
+from synth.design.checks import check_references
+from synth.design.fields import (
+    ItemReader,
+    node_pair,
+    range_end,
+    read_ohms,
+    table_array,
+    temperature_end,
+)
+from synth.design.model import (
+    TARGET_KINDS,
+    TARGET_UNITS,
+    Design,
+    Regulator,
+    Resistor,
+    Source,
+    Target,
+)
+from synth.errors import DesignError, nearest_name
+from synth.units import (
+    parse_quantity,
+    parse_resistance,
+    parse_tcr,
+    parse_temperature,
+)
+
+_TOP_KEYS = ("design", "source", "resistor", "regulator", "controlled", "transistor",
+             "amplifier", "target")
+
+
+_DESIGN_KEYS = (
+    "title", "ground", "ambient", "margin", "voltage_margin", "temperature",
+    "package", "packages", "tolerance", "tcr", "notes",
+)
+
+
+_SOURCE_KEYS = ("ref", "kind", "plus", "minus", "from", "to", "value", "tolerance", "note")
+
+
+_RESISTOR_KEYS = (
+    "ref", "nodes", "value", "choose", "range", "tolerance", "tcr", "package", "combine", "bom",
+    "note",
+)
+
+
+_REGULATOR_KEYS = ("ref", "output", "sense", "reference", "setpoint", "tolerance", "note")
+
+
+_TARGET_KEYS = (*TARGET_KINDS, "name", "equals", "within", "at_least", "at_most", "note")
+
+
+_DEFAULT_TOLERANCE = "1%"
+
+
+_DEFAULT_TCR = "100 ppm/C"
+
+
+def _read_design_table(origin: str, raw: Any) -> dict[str, Any]:
+    reader = ItemReader(origin, "[design]", raw if raw is not None else {}, _DESIGN_KEYS)
+    settings: dict[str, Any] = {}
+    settings["title"] = reader.text("title", "") if reader.has("title") else ""
+    settings["ground"] = reader.text("ground", "gnd")
+    settings["ambient_c"] = reader.parsed("ambient", parse_temperature, "25 C")
+    settings["margin_frac"] = reader.fraction("margin", "50%", strict=True)
+    settings["voltage_margin_frac"] = reader.fraction("voltage_margin", "80%", strict=True)
+    if reader.has("temperature"):
+        span = reader.table["temperature"]
+        if not (isinstance(span, list) and len(span) == 2):
+            reader.fail('temperature must be a pair such as ["-20 C", "60 C"]')
+        low, high = (temperature_end(reader, t) for t in span)
+        if high < low:
+            reader.fail(f"temperature range {span[0]!r}..{span[1]!r} is empty; "
+                        "give the low end first")
+        settings["temperature_c"] = (low, high)
+    else:
+        settings["temperature_c"] = (settings["ambient_c"], settings["ambient_c"])
+    settings["default_package"] = reader.text("package") if reader.has("package") else None
+    settings["packages_path"] = reader.text("packages") if reader.has("packages") else None
+    settings["default_tolerance"] = reader.fraction("tolerance", _DEFAULT_TOLERANCE, upper=0.99)
+    settings["default_tcr"] = reader.parsed("tcr", parse_tcr, _DEFAULT_TCR)
+    if reader.has("notes") and not isinstance(reader.table["notes"], str):
+        reader.fail("notes must be text")
+    return settings
+
+
+def _read_source(origin: str, index: int, raw: Any) -> Source:
+    label = f"source #{index}"
+    if isinstance(raw, Mapping) and isinstance(raw.get("ref"), str):
+        label = f"source {raw['ref']}"
+    reader = ItemReader(origin, label, raw, _SOURCE_KEYS)
+    ref = reader.text("ref")
+    kind = reader.text("kind")
+    if kind == "voltage":
+        for wrong in ("from", "to"):
+            if reader.has(wrong):
+                reader.fail(f"a voltage source takes plus and minus, not {wrong!r}")
+        pos, neg = reader.text("plus"), reader.text("minus")
+        value = reader.parsed("value", lambda t: parse_quantity(t, "V"))
+    elif kind == "current":
+        for wrong in ("plus", "minus"):
+            if reader.has(wrong):
+                reader.fail(f"a current source takes from and to, not {wrong!r}")
+        pos, neg = reader.text("to"), reader.text("from")
+        value = reader.parsed("value", lambda t: parse_quantity(t, "A"))
+    else:
+        reader.fail(f"kind {kind!r} is not known{nearest_name(kind, ('voltage', 'current'))}; "
+                    "use \"voltage\" or \"current\"")
+    if pos == neg:
+        reader.fail(f"both terminals are on node {pos!r}; connect it between two nodes")
+    tolerance = reader.fraction("tolerance", "0%", upper=0.99)
+    return Source(ref=ref, kind=kind, pos=pos, neg=neg, value=value, tolerance=tolerance)
+
+
+def _resolve_stock(origin: str, reader: ItemReader, choose: str) -> Path:
+    base = Path(origin).parent if origin and not origin.startswith("<") else Path.cwd()
+    for candidate in (base / choose, Path(choose), catalog_dir() / choose):
+        if candidate.is_file():
+            return candidate.resolve()
+    reader.fail(f"stock file {choose!r} was not found beside the design file or in catalogs/; "
+                "check the path")
+    raise AssertionError("unreachable")
+
+
+def _read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
+                   packages: Mapping[str, PackageRating]) -> Resistor:
+    label = f"resistor #{index}"
+    if isinstance(raw, Mapping) and isinstance(raw.get("ref"), str):
+        label = f"resistor {raw['ref']}"
+    reader = ItemReader(origin, label, raw, _RESISTOR_KEYS)
+    ref = reader.text("ref")
+    nodes = raw.get("nodes")
+    if not (isinstance(nodes, list) and len(nodes) == 2
+            and all(isinstance(n, str) and n.strip() for n in nodes)):
+        reader.fail('nodes must be a pair of node names such as ["in", "out"]')
+    a, b = nodes[0].strip(), nodes[1].strip()
+    if a == b:
+        reader.fail(f"both ends are on node {a!r}; connect it between two nodes")
+    value = reader.positive("value", read_ohms) if reader.has("value") else None
+    choose = reader.text("choose") if reader.has("choose") else None
+    stock_path: Path | None = None
+    span: tuple[float, float] | None = None
+    series_tolerance: float | None = None
+    if choose is None:
+        if value is None:
+            reader.fail('give a value (value = "10k") or let rnsynth choose one (choose = "E96")')
+        for key in ("range", "combine"):
+            if reader.has(key):
+                reader.fail(f"{key} applies only to a part rnsynth chooses; add choose = \"E96\"")
+    else:
+        if choose.lower().endswith(".csv"):
+            stock_path = _resolve_stock(origin, reader, choose)
+        else:
+            try:
+                series = load_series(choose)
+            except DesignError as exc:
+                reader.fail(f"choose: {exc}, or name a stock file ending in .csv")
+            choose = series.name
+            series_tolerance = series.tolerance
+        if reader.has("range"):
+            ends = raw["range"]
+            if not (isinstance(ends, list) and len(ends) == 2):
+                reader.fail('range must be a pair such as ["1k", "100k"]')
+            low, high = (range_end(reader, "range", e) for e in ends)
+            if low <= 0 or high <= 0:
+                reader.fail(f"range {ends[0]!r}..{ends[1]!r} must be positive")
+            if high < low:
+                reader.fail(f"range {ends[0]}..{ends[1]} is empty; give the low end first")
+            span = (low, high)
+        elif stock_path is None:
+            reader.fail('a part chosen from a series needs a range such as range = ["1k", "1M"]')
+        combine = raw.get("combine")
+        if combine is not None and combine not in ("series", "parallel"):
+            reader.fail(f"combine {combine!r} is not known; use \"series\" or \"parallel\"")
+    if reader.has("tolerance"):
+        tolerance = reader.fraction("tolerance", "0%", upper=0.99)
+    elif series_tolerance is not None:
+        tolerance = series_tolerance
+    else:
+        tolerance = settings["default_tolerance"]
+    tcr = reader.parsed("tcr", parse_tcr) if reader.has("tcr") else settings["default_tcr"]
+    package = reader.text("package") if reader.has("package") else settings["default_package"]
+    if package is not None and package not in packages:
+        hint = nearest_name(package, packages)
+        reader.fail(f"package {package!r} is not in the package table{hint}; "
+                    f"use one of {', '.join(sorted(packages))} or add a row to your table")
+    bom = raw.get("bom", True)
+    if not isinstance(bom, bool):
+        reader.fail(f"bom must be true or false, not {bom!r}")
+    return Resistor(
+        ref=ref, nodes=(a, b), value=value, choose=choose, stock_path=stock_path, range=span,
+        tolerance=tolerance, tcr=tcr, package=package,
+        combine=raw.get("combine") if choose is not None else None, bom=bom,
+    )
+
+
+def _read_regulator(origin: str, index: int, raw: Any) -> Regulator:
+    label = f"regulator #{index}"
+    if isinstance(raw, Mapping) and isinstance(raw.get("ref"), str):
+        label = f"regulator {raw['ref']}"
+    reader = ItemReader(origin, label, raw, _REGULATOR_KEYS)
+    ref = reader.text("ref")
+    output, sense, reference = reader.text("output"), reader.text("sense"), reader.text("reference")
+    if sense == reference:
+        reader.fail(f"sense and reference are both {sense!r}; the setpoint needs two nodes")
+    setpoint = reader.parsed("setpoint", lambda t: parse_quantity(t, "V"))
+    tolerance = reader.fraction("tolerance", "0%", upper=0.99)
+    return Regulator(ref=ref, output=output, sense=sense, reference=reference,
+                     setpoint=setpoint, tolerance=tolerance)
+
+
+def _target_quantity(reader: ItemReader, kind: str, key: str) -> float:
+    unit = TARGET_UNITS[kind]
+    if kind == "resistance":
+        return reader.parsed(key, parse_resistance)
+    if kind == "ratio":
+        return reader.parsed(key, _parse_ratio)
+    return reader.parsed(key, lambda t: parse_quantity(t, unit))
+
+
+def _parse_ratio(raw: Any) -> float:
+    if isinstance(raw, (int, float)) and not isinstance(raw, bool) and math.isfinite(raw):
+        return float(raw)
+    if isinstance(raw, str):
+        try:
+            value = float(raw)
+        except ValueError:
+            pass
+        else:
+            if math.isfinite(value):
+                return value
+    raise DesignError(f"{raw!r} is not a ratio; write a plain number such as 0.25")
+
+
+def _read_target(origin: str, index: int, raw: Any, ground: str) -> Target:
+    label = f"target #{index}"
+    if isinstance(raw, Mapping) and isinstance(raw.get("name"), str):
+        label = f"target {raw['name']!r}"
+    reader = ItemReader(origin, label, raw, _TARGET_KEYS)
+    kinds = [k for k in TARGET_KINDS if reader.has(k)]
+    if len(kinds) != 1:
+        reader.fail(f"name exactly one of {', '.join(TARGET_KINDS)} (found {len(kinds)})")
+    kind = kinds[0]
+    nodes: tuple[str, ...] = ()
+    ref: str | None = None
+    if kind in ("voltage", "resistance"):
+        nodes = node_pair(reader, kind, ground)
+        if nodes[0] == nodes[1]:
+            reader.fail(f"{kind} between {nodes[0]!r} and itself is always zero; name two nodes")
+        shown = f"V({nodes[0]})" if nodes[1] == ground else f"V({nodes[0]},{nodes[1]})"
+        default_label = shown if kind == "voltage" else f"R({nodes[0]},{nodes[1]})"
+    elif kind == "ratio":
+        pair = raw["ratio"]
+        if not (isinstance(pair, list) and len(pair) == 2):
+            reader.fail('ratio must be two voltages such as [["out", "gnd"], ["in", "gnd"]]')
+        sub = [node_pair(ItemReader(origin, label, {"ratio": p}, ("ratio",)), "ratio", ground)
+               for p in pair]
+        nodes = sub[0] + sub[1]
+        if sub[1][0] == sub[1][1]:
+            reader.fail("the ratio's denominator is a voltage between a node and itself")
+        default_label = f"V({nodes[0]})/V({nodes[2]})"
+    else:
+        ref = reader.text(kind)
+        default_label = f"I({ref})" if kind == "current" else f"P({ref})"
+    equals = _target_quantity(reader, kind, "equals") if reader.has("equals") else None
+    at_least = _target_quantity(reader, kind, "at_least") if reader.has("at_least") else None
+    at_most = _target_quantity(reader, kind, "at_most") if reader.has("at_most") else None
+    within_abs = within_rel = None
+    if reader.has("within"):
+        if equals is None:
+            reader.fail("within needs equals; give the goal the window is around")
+        text = raw["within"]
+        if isinstance(text, str) and text.strip().endswith(("%", "ppm")):
+            within_rel = reader.fraction("within", "0%", upper=10.0, strict=True)
+        else:
+            within_abs = abs(_target_quantity(reader, kind, "within"))
+            if within_abs == 0:
+                reader.fail("within must be wider than zero")
+    if equals is None and at_least is None and at_most is None:
+        reader.fail("give equals (with an optional within), at_least or at_most")
+    if equals is not None and (at_least is not None or at_most is not None):
+        reader.fail("use equals (with within) or at_least/at_most, not both")
+    if at_least is not None and at_most is not None and at_most < at_least:
+        reader.fail(f"at_least {raw['at_least']!r} lies above at_most {raw['at_most']!r}; "
+                    "swap them")
+    if equals is not None and equals == 0 and within_abs is None:
+        reader.fail("equals 0 has no relative error; give within as an absolute window")
+    name = reader.text("name") if reader.has("name") else default_label
+    return Target(label=name, kind=kind, nodes=nodes, ref=ref, equals=equals,
+                  within_abs=within_abs, within_rel=within_rel, at_least=at_least,
+                  at_most=at_most, unit=TARGET_UNITS[kind])
+
+
+def design_from_dict(data: Mapping[str, Any], origin: str = "<design>") -> Design:
+    """Validate a parsed design (the dict ``tomllib`` gives) into a :class:`Design`.
+
+    Parameters
+    ----------
+    data : mapping
+        Tables as in a design file.
+    origin : str
+        Named in error messages: the file path, or a description.
+
+    Raises
+    ------
+    DesignError
+        On any malformed, unknown or inconsistent item.
+
+    Examples
+    --------
+    >>> d = design_from_dict({
+    ...     "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+    ...                 "value": "10 V"}],
+    ...     "resistor": [{"ref": "R1", "nodes": ["in", "out"], "value": "10k"},
+    ...                  {"ref": "R2", "nodes": ["out", "gnd"], "value": "10k"}]})
+    >>> [r.value for r in d.resistors]
+    [10000.0, 10000.0]
+    """
+    for key in data:
+        if key not in _TOP_KEYS:
+            raise DesignError(f"{origin}: unknown table {key!r}{nearest_name(key, _TOP_KEYS)} "
+                              f"(allowed: {', '.join(_TOP_KEYS)})")
+    settings = _read_design_table(origin, data.get("design"))
+    if settings["packages_path"]:
+        base = Path(origin).parent if not origin.startswith("<") else Path.cwd()
+        path = base / settings["packages_path"]
+        if not path.is_file():
+            raise DesignError(f"{origin}, [design]: package table {settings['packages_path']!r} "
+                              "was not found; check the path")
+        packages = load_package_table(path)
+    else:
+        packages = load_package_table()
+    if settings["default_package"] and settings["default_package"] not in packages:
+        name = settings["default_package"]
+        raise DesignError(f"{origin}, [design]: package {name!r} is not in the package "
+                          f"table{nearest_name(name, packages)}; use one of "
+                          f"{', '.join(sorted(packages))}")
+    sources = tuple(_read_source(origin, i, s)
+                    for i, s in enumerate(table_array(origin, data, "source"), 1))
+    resistors = tuple(_read_resistor(origin, i, r, settings, packages)
+                      for i, r in enumerate(table_array(origin, data, "resistor"), 1))
+    regulators = tuple(_read_regulator(origin, i, g)
+                       for i, g in enumerate(table_array(origin, data, "regulator"), 1))
+    targets = tuple(_read_target(origin, i, t, settings["ground"])
+                    for i, t in enumerate(table_array(origin, data, "target"), 1))
+    active = read_active_parts(origin, data, settings["ground"])
+    sources += active.sources
+    regulators += active.regulators
+    targets += active.targets
+    design = Design(
+        origin=origin, title=settings["title"], ground=settings["ground"],
+        ambient_c=settings["ambient_c"], margin_frac=settings["margin_frac"],
+        voltage_margin_frac=settings["voltage_margin_frac"],
+        temperature_c=settings["temperature_c"], packages=packages,
+        sources=sources, resistors=resistors, regulators=regulators, targets=targets,
+        controlled=active.controlled, transistors=active.transistors,
+    )
+    check_references(design)
+    return design

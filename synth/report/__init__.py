@@ -1,0 +1,4 @@
+"""Rendering results as text, JSON, CSV and plots (no computation here).
+"""
+
+__all__: list[str] = []

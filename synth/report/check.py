@@ -1,0 +1,167 @@
+"""Text tables and JSON records of analysis results.
+
+Pure formatting: functions here take result records and return strings or
+JSON-ready dicts; printing and file writing stay in the command line.
+"""
+
+from __future__ import annotations
+
+__all__ = ["check_json", "check_text", "part_json", "target_json", "window_text"]
+
+import math
+from typing import Any
+
+from tabulate import tabulate
+
+from synth.report.numbers import json_number
+from synth.report.spread import spread_json, spread_text
+from synth.results import CheckResult, PartReport, TargetReport
+from synth.units import format_eng, format_rkm
+
+_UNIT_OF = {"voltage": "V", "current": "A", "power": "W", "resistance": "Ω", "ratio": ""}
+
+
+def _quantity(value: float, unit: str, digits: int = 5) -> str:
+    if unit == "":
+        return f"{value:.{digits}g}"
+    return format_eng(value, unit, digits)
+
+
+def _percent(value: float | None, signed: bool = False) -> str:
+    if value is None or not math.isfinite(value):
+        return "-"
+    return f"{value * 100:+.3g}%" if signed else f"{value * 100:.3g}%"
+
+
+def window_text(target: TargetReport) -> str:
+    """The hard window of a target as text (``"2.97 V .. 3.03 V"``, ``"<= 1 mA"``)."""
+    low, high = target.low, target.high
+    if math.isinf(low) and math.isinf(high):
+        return "-"
+    if math.isinf(low):
+        return f"<= {_quantity(high, target.unit)}"
+    if math.isinf(high):
+        return f">= {_quantity(low, target.unit)}"
+    return f"{_quantity(low, target.unit)} .. {_quantity(high, target.unit)}"
+
+
+def _part_row(part: PartReport) -> list[str]:
+    if part.kind == "resistor":
+        value = f"{format_eng(part.value, 'Ω')} ({format_rkm(part.value)})"
+    elif part.kind.startswith("controlled"):
+        value = f"gain {part.value:.6g}"
+    else:
+        value = _quantity(part.value, "A" if part.kind == "current source" else "V")
+    return [
+        part.ref,
+        part.kind,
+        value,
+        format_eng(part.current, "A"),
+        format_eng(part.voltage, "V"),
+        format_eng(part.power, "W"),
+        part.package or "-",
+        "-" if part.allowed_power is None else format_eng(part.allowed_power, "W"),
+        _percent(part.utilization),
+        _percent(part.voltage_utilization),
+    ]
+
+
+def _target_rows(targets: tuple[TargetReport, ...]) -> list[list[str]]:
+    return [
+        [
+            t.label,
+            _quantity(t.value, t.unit, 6),
+            "-" if t.goal is None else _quantity(t.goal, t.unit, 6),
+            _percent(t.error, signed=True) if t.goal not in (None, 0) else "-",
+            window_text(t),
+            "yes" if t.met else "NO",
+        ]
+        for t in targets
+    ]
+
+
+def check_text(result: CheckResult) -> str:
+    """The report ``rnsynth check`` prints."""
+    design = result.design
+    lines = [design.title or "(untitled design)", f"file: {design.origin}",
+             f"ambient {design.ambient_c:g} °C, power margin {design.margin_frac * 100:g} %, "
+             f"voltage margin {design.voltage_margin_frac * 100:g} %", ""]
+    lines.append(tabulate([[name, format_eng(v, "V", 6)] for name, v in result.nodes.items()],
+                          headers=["node", "voltage"], disable_numparse=True))
+    lines.append("")
+    lines.append(tabulate(
+        [_part_row(p) for p in result.parts],
+        headers=["part", "kind", "value", "current", "voltage", "power", "package",
+                 "allowed", "P use", "V use"],
+        disable_numparse=True,
+    ))
+    if result.targets:
+        lines.append("")
+        lines.append(tabulate(_target_rows(result.targets),
+                              headers=["target", "value", "goal", "error", "window", "met"],
+                              disable_numparse=True))
+    lines.append("")
+    for ref, value in result.filled.items():
+        lines.append(f"note: {ref} has no value; checked at its ideal value "
+                     f"{format_eng(value, 'Ω', 6)} (run rnsynth design to choose a standard one)")
+    lines.append(f"supply current: {format_eng(result.supply_current, 'A')}; "
+                 f"largest voltage in the circuit: {format_eng(result.max_voltage, 'V')}")
+    if any(p.kind == "resistor" and p.package is None for p in result.parts):
+        lines.append("note: parts without a package are not checked against a power rating")
+    if result.verify_difference is not None:
+        lines.append(f"verify: mesh and nodal solves differ by at most "
+                     f"{result.verify_difference:.2e} (relative)")
+    lines.append("result: " + ("all targets met, all parts within their allowance"
+                               if result.ok else "FAILS: " + "; ".join(result.problems)))
+    if result.spread is not None:
+        lines.append("")
+        lines.append(spread_text(result.spread, [t.unit for t in result.targets]))
+    lines.extend(result.cautions)
+    return "\n".join(lines)
+
+
+def target_json(target: TargetReport) -> dict[str, Any]:
+    """JSON record of one target."""
+    return {
+        "label": target.label, "kind": target.kind, "unit": target.unit,
+        "value": json_number(target.value), "goal": json_number(target.goal),
+        "low": json_number(target.low), "high": json_number(target.high),
+        "error": json_number(target.error), "met": target.met,
+    }
+
+
+def part_json(part: PartReport) -> dict[str, Any]:
+    """JSON record of one part."""
+    return {
+        "ref": part.ref, "kind": part.kind, "value": json_number(part.value),
+        "current": json_number(part.current), "voltage": json_number(part.voltage),
+        "power": json_number(part.power), "package": part.package,
+        "rated_power": json_number(part.rated_power),
+        "allowed_power": json_number(part.allowed_power),
+        "utilization": json_number(part.utilization),
+        "limiting_voltage": json_number(part.limiting_voltage),
+        "allowed_voltage": json_number(part.allowed_voltage),
+        "voltage_utilization": json_number(part.voltage_utilization),
+    }
+
+
+def check_json(result: CheckResult) -> dict[str, Any]:
+    """The JSON document ``rnsynth check --json`` prints."""
+    doc: dict[str, Any] = {
+        "file": result.design.origin,
+        "title": result.design.title,
+        "ok": result.ok,
+        "nodes": {k: json_number(v) for k, v in result.nodes.items()},
+        "parts": [part_json(p) for p in result.parts],
+        "targets": [target_json(t) for t in result.targets],
+        "supply_current": json_number(result.supply_current),
+        "max_voltage": json_number(result.max_voltage),
+        "problems": list(result.problems),
+        "cautions": list(result.cautions),
+        "filled": dict(result.filled),
+    }
+    if result.verify_difference is not None:
+        doc["verify"] = {"max_difference": result.verify_difference}
+    if result.spread is not None:
+        doc["spread"] = spread_json(result.spread)
+    return doc

@@ -1,0 +1,100 @@
+"""Text tables and JSON records of spread results."""
+
+from __future__ import annotations
+
+__all__ = ["spread_json", "spread_text"]
+
+from typing import Any
+
+from tabulate import tabulate
+
+from synth.report.numbers import json_number
+from synth.spread.records import SpreadResult
+from synth.units import format_eng
+
+
+def _corner(corner: dict[str, str]) -> str:
+    return " ".join(f"{name}{sign}" for name, sign in corner.items()) or "-"
+
+
+def _value(value: float | None, unit: str) -> str:
+    if value is None:
+        return "-"
+    return format_eng(value, unit, 5) if unit else f"{value:.6g}"
+
+
+def spread_text(spread: SpreadResult, units: list[str]) -> str:
+    """Spread section of a report: per-target spread, sensitivities, worst-case stress."""
+    low_c, high_c = spread.temperature_c
+    s = spread.settings
+    lines = [f"spread over tolerance, TCR ({low_c:g} to {high_c:g} °C, reference 25 °C) and "
+             f"supply: {len(spread.variables)} quantities vary"
+             + (f"; Monte Carlo {s.samples:,} {s.distribution} samples, seed {s.seed}"
+                if s.samples else "")]
+    if spread.targets and not spread.targets[0].exact:
+        lines.append("note: too many quantities vary to solve every corner; worst cases use "
+                     "the corners the sensitivity signs give (not exhaustive)")
+    rows = []
+    for t, unit in zip(spread.targets, units, strict=True):
+        rows.append([
+            t.label, _value(t.nominal, unit),
+            f"{_value(t.worst_low, unit)} ({_corner(t.low_corner)})",
+            f"{_value(t.worst_high, unit)} ({_corner(t.high_corner)})",
+            f"±{t.rss * 100:.3g}%", _value(t.mc_mean, unit), _value(t.mc_std, unit),
+            "-" if t.inside is None else f"{t.inside * 100:.4g}%",
+        ])
+    if rows:
+        lines.append(tabulate(rows, headers=["target", "nominal", "worst low (corner)",
+                                             "worst high (corner)", "RSS", "MC mean", "MC σ",
+                                             "in window"], disable_numparse=True))
+    if spread.yield_fraction is not None:
+        lines.append(f"yield (every window and limit met): {spread.yield_fraction * 100:.4g}%")
+    if spread.variables and spread.targets:
+        lines.append("")
+        lines.append("sensitivities (% change of the target per % change of each quantity)")
+        lines.append(tabulate(
+            [[t.label, *[f"{t.sensitivities[v]:+.3g}" for v in spread.variables]]
+             for t in spread.targets],
+            headers=["target", *spread.variables], disable_numparse=True))
+    lines.append("")
+    lines.append(f"worst-case dissipation against the derated rating at the hottest ambient "
+                 f"({max(high_c, low_c):g} °C)")
+    lines.append(tabulate(
+        [[p.ref, format_eng(p.nominal_power, "W"), format_eng(p.worst_power, "W"),
+          "n/a" if p.worst_power_bound == float("inf") else format_eng(p.worst_power_bound, "W"),
+          "-" if p.allowed_power_hot is None else format_eng(p.allowed_power_hot, "W"),
+          "-" if p.utilization is None else f"{p.utilization * 100:.3g}%",
+          format_eng(p.worst_voltage, "V")] for p in spread.parts],
+        headers=["part", "nominal", "worst", "bound", "allowed", "use", "worst voltage"],
+        disable_numparse=True))
+    return "\n".join(lines)
+
+
+def spread_json(spread: SpreadResult) -> dict[str, Any]:
+    """JSON record of a spread result (Monte Carlo samples themselves left out)."""
+    s = spread.settings
+    return {
+        "variables": list(spread.variables),
+        "temperature": list(spread.temperature_c),
+        "samples": s.samples, "distribution": s.distribution, "seed": s.seed,
+        "yield": json_number(spread.yield_fraction),
+        "worst_error": json_number(spread.worst_error),
+        "rss_error": json_number(spread.rss_error),
+        "targets": [{
+            "label": t.label, "goal": json_number(t.goal), "nominal": json_number(t.nominal),
+            "worst_low": json_number(t.worst_low), "worst_high": json_number(t.worst_high),
+            "low_corner": t.low_corner, "high_corner": t.high_corner, "exact": t.exact,
+            "rss": json_number(t.rss),
+            "sensitivities": {k: json_number(v) for k, v in t.sensitivities.items()},
+            "mc_mean": json_number(t.mc_mean), "mc_std": json_number(t.mc_std),
+            "inside": json_number(t.inside),
+        } for t in spread.targets],
+        "parts": [{
+            "ref": p.ref, "nominal_power": json_number(p.nominal_power),
+            "worst_power": json_number(p.worst_power),
+            "worst_power_bound": json_number(p.worst_power_bound),
+            "allowed_power_hot": json_number(p.allowed_power_hot),
+            "utilization": json_number(p.utilization),
+            "worst_voltage": json_number(p.worst_voltage),
+        } for p in spread.parts],
+    }

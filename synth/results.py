@@ -1,0 +1,233 @@
+"""Result records of the two top-level jobs: a checked design and ranked synthesis candidates.
+"""
+
+from __future__ import annotations
+
+__all__ = ["Candidate", "CheckResult", "PartReport", "SynthesisResult", "TargetReport"]
+
+from dataclasses import dataclass, field
+
+from synth.design.model import Design
+from synth.spread.records import SpreadResult
+
+
+@dataclass(frozen=True)
+class PartReport:
+    """Stress of one part.
+
+    Attributes
+    ----------
+    ref, kind : str
+        Reference designator; ``"resistor"``, ``"voltage source"``,
+        ``"current source"`` or ``"regulator"``.
+    value : float
+        Ohm, V or A (a regulator: the output voltage it drives).
+    current : float
+        A, in the part's sign convention.
+    voltage : float
+        V across the part (absolute for resistors).
+    power : float
+        W dissipated (resistors) or delivered (sources).
+    package : str or None
+        Package name.
+    rated_power, allowed_power : float or None
+        W: package rating at its rated ambient; what the design allows after
+        derating at the design ambient times the margin.
+    utilization : float or None
+        ``power / allowed_power``; above 1 the part is over its allowance.
+    limiting_voltage, allowed_voltage : float or None
+        V: the package's limiting element voltage, and that times the
+        design's voltage margin.
+    voltage_utilization : float or None
+        ``voltage / allowed_voltage``.
+    """
+
+    ref: str
+    kind: str
+    value: float
+    current: float
+    voltage: float
+    power: float
+    package: str | None = None
+    rated_power: float | None = None
+    allowed_power: float | None = None
+    utilization: float | None = None
+    limiting_voltage: float | None = None
+    allowed_voltage: float | None = None
+    voltage_utilization: float | None = None
+
+
+@dataclass(frozen=True)
+class TargetReport:
+    """How one target came out.
+
+    Attributes
+    ----------
+    label, kind, unit : str
+        As in the design.
+    value : float
+        Achieved value.
+    goal : float or None
+        The ``equals`` value.
+    low, high : float
+        The hard window (``-inf``/``inf`` where open).
+    error : float or None
+        ``(value - goal) / |goal|`` when there is a goal (absolute error when
+        the goal is zero).
+    met : bool
+        True when the value lies inside the window.
+    """
+
+    label: str
+    kind: str
+    unit: str
+    value: float
+    goal: float | None
+    low: float
+    high: float
+    error: float | None
+    met: bool
+
+
+@dataclass(frozen=True)
+class CheckResult:
+    """Result of :func:`check`.
+
+    Attributes
+    ----------
+    design : Design
+    values : dict of str to float
+        Resistance used for each resistor, ohm.
+    nodes : dict of str to float
+        Node voltages, V.
+    parts : tuple of PartReport
+    targets : tuple of TargetReport
+    supply_current : float
+        A delivered by voltage sources and regulating elements (those that
+        absorb current count zero).
+    max_voltage : float
+        Largest voltage between any two nodes, V.
+    cautions : tuple of str
+    problems : tuple of str
+        One line per part over its allowance or target missed.
+    verify_difference : float or None
+        Largest difference between mesh and nodal results, relative to the
+        largest voltage or current (None unless ``verify``).
+    filled : dict of str to float
+        Free parts that had no value and were checked at their ideal value, ohm.
+    spread : SpreadResult or None
+        Tolerance, temperature and supply spread, when asked for.
+    """
+
+    design: Design
+    values: dict[str, float]
+    nodes: dict[str, float]
+    parts: tuple[PartReport, ...]
+    targets: tuple[TargetReport, ...]
+    supply_current: float
+    max_voltage: float
+    cautions: tuple[str, ...]
+    problems: tuple[str, ...]
+    verify_difference: float | None
+    filled: dict[str, float] = field(default_factory=dict)
+    spread: SpreadResult | None = None
+
+    @property
+    def ok(self) -> bool:
+        """True when every target is met and every part is within its allowance."""
+        return not self.problems
+
+
+@dataclass(frozen=True)
+class Candidate:
+    """One ranked design.
+
+    Attributes
+    ----------
+    rank : int
+        1 for the best.
+    values : dict of str to float
+        Ohm by physical part reference (a combined position ``R1`` gives
+        ``R1A`` and ``R1B``); free parts only.
+    positions : dict of str to float
+        Effective ohm of every resistor position, fixed ones included.
+    series : dict of str to str
+        The coarsest series holding each free part's value (``"E24"``), or
+        the stock file it came from.
+    objective : float
+        Largest relative error over the ``equals`` targets at nominal values.
+    targets : tuple of TargetReport
+    parts : tuple of PartReport
+        Every physical resistor, then the sources and regulators.
+    supply_current : float
+        A.
+    feasible : bool
+        Every window and limit met.
+    problems : tuple of str
+        What fails, when not feasible.
+    check : CheckResult
+        The full re-check of the candidate.
+    spread : SpreadResult or None
+        Tolerance, temperature and supply spread, when asked for.
+    """
+
+    rank: int
+    values: dict[str, float]
+    positions: dict[str, float]
+    series: dict[str, str]
+    objective: float
+    targets: tuple[TargetReport, ...]
+    parts: tuple[PartReport, ...]
+    supply_current: float
+    feasible: bool
+    problems: tuple[str, ...]
+    check: CheckResult
+    spread: SpreadResult | None = None
+
+    @property
+    def hottest(self) -> PartReport | None:
+        """The resistor using the largest share of its allowed dissipation."""
+        rated = [p for p in self.parts if p.kind == "resistor" and p.utilization is not None]
+        return max(rated, key=lambda p: p.utilization or 0.0) if rated else None
+
+
+@dataclass(frozen=True)
+class SynthesisResult:
+    """Result of :func:`synthesize`.
+
+    Attributes
+    ----------
+    design : Design
+    ideal : dict of str to float
+        Ideal continuous value of each free position, ohm.
+    candidates : tuple of Candidate
+        Best first.  When none is feasible these are the nearest designs.
+    proven_optimal : bool
+        The search finished: the best candidate is provably the best over
+        the whole catalogue product (same objective as an exhaustive search);
+        for an infeasible design, that none meets everything and the nearest
+        designs are the nearest.
+    feasible : bool
+        The best candidate meets every window and limit.
+    binding : str or None
+        When infeasible: the target or limit the nearest design breaks most.
+    evaluated : int
+        Candidate value sets solved during the search.
+    combinations : int
+        Size of the catalogue product.
+    elapsed_s : float
+        Search time, s.
+    rank_by : str
+        ``"nominal"``, ``"worst-case"`` or ``"yield"``: what ordered the candidates.
+    """
+
+    design: Design
+    ideal: dict[str, float]
+    candidates: tuple[Candidate, ...]
+    proven_optimal: bool
+    feasible: bool
+    binding: str | None
+    evaluated: int
+    combinations: int
+    elapsed_s: float
+    rank_by: str = "nominal"

@@ -1,0 +1,68 @@
+"""Ranking of candidates: the objective, then the documented tie-break.
+"""
+
+from __future__ import annotations
+
+__all__ = ["TIE_TOLERANCE", "RankedCandidates"]
+
+from dataclasses import dataclass
+
+import numpy as np
+
+TIE_TOLERANCE = 1e-12
+"""Objectives closer than this (as fractions) are ties, ordered by the tie-break."""
+
+
+@dataclass(frozen=True)
+class RankedCandidates:
+    """The best candidates found, best first.
+
+    Attributes
+    ----------
+    indices : numpy.ndarray
+        ``(K, positions)`` index of each position's choice.
+    objective : numpy.ndarray
+        ``(K,)`` the ranking objective (largest relative error over ``equals``
+        targets; in relaxed mode the largest relative violation).
+    distinct : numpy.ndarray
+        ``(K,)`` number of distinct part values among the free parts.
+    coarseness : numpy.ndarray
+        ``(K,)`` sum of the series ranks of the free parts' values.
+    supply : numpy.ndarray
+        ``(K,)`` supply current, A.
+    """
+
+    indices: np.ndarray
+    objective: np.ndarray
+    distinct: np.ndarray
+    coarseness: np.ndarray
+    supply: np.ndarray
+
+    @staticmethod
+    def empty(positions: int) -> RankedCandidates:
+        return RankedCandidates(np.zeros((0, positions), dtype=np.int64), np.zeros(0),
+                                np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64),
+                                np.zeros(0))
+
+    def merged(self, other: RankedCandidates, top: int) -> RankedCandidates:
+        """Both sets ranked together, the best ``top`` kept (ties by the tie-break)."""
+        idx = np.concatenate([self.indices, other.indices])
+        obj = np.concatenate([self.objective, other.objective])
+        dis = np.concatenate([self.distinct, other.distinct])
+        coa = np.concatenate([self.coarseness, other.coarseness])
+        sup = np.concatenate([self.supply, other.supply])
+        if len(obj) == 0:
+            return self
+        quantised = np.floor(obj / TIE_TOLERANCE)
+        keys = [idx[:, c] for c in range(idx.shape[1] - 1, -1, -1)]
+        # duplicates only pair a row of self with one of other: the best top + len(self)
+        # rows hold the best top distinct ones
+        order = np.lexsort((*keys, sup, coa, dis, quantised))[: top + len(self.objective)]
+        if idx.shape[1]:
+            # the same candidate can arrive twice (a seed, then its box): keep it once
+            _, first = np.unique(idx[order], axis=0, return_index=True)
+            order = order[np.sort(first)]
+        else:
+            order = order[:1]
+        order = order[:top]
+        return RankedCandidates(idx[order], obj[order], dis[order], coa[order], sup[order])

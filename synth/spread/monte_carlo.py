@@ -1,0 +1,79 @@
+"""Seeded Monte Carlo of tolerances, TCR and ambient, with yield.
+"""
+
+from __future__ import annotations
+
+__all__ = ["monte_carlo"]
+
+import numpy as np
+
+from synth.circuit.measure import Evaluator, SourceValues
+from synth.design.model import Design
+from synth.rating import allowed_power
+from synth.spread.records import SpreadSettings, TargetSpread
+from synth.spread.variables import REFERENCE_C, SpreadVariables, inside_windows
+
+_MC_BLOCK = 1 << 15
+"""Samples drawn and solved per block: arrays stay in cache; the random stream is drawn
+block by block in a fixed order, so a seed gives the same samples every time."""
+
+
+def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, r0: np.ndarray,
+                 src: SourceValues, settings: SpreadSettings, targets: list[TargetSpread]
+                 ) -> tuple[list[TargetSpread], float]:
+    rng = np.random.default_rng(settings.seed)
+    total, n = settings.samples, len(var)
+    low_c, high_c = design.temperature_c
+    tcr = np.array([design.resistors[k].tcr if g == "resistor" else 0.0
+                    for g, k in var.kind])
+    ratings = [(k, rating) for k, r in enumerate(design.resistors)
+               if (rating := design.rating(r)) is not None]
+    gain_columns = [c for c, (group, _) in enumerate(var.kind) if group == "gain"]
+    values = np.empty((total, len(design.targets)))
+    inside = np.empty((total, len(design.targets)), dtype=bool)
+    ok = np.empty(total, dtype=bool)
+
+    def draw(m: int, width: np.ndarray) -> np.ndarray:
+        if settings.distribution == "normal":
+            out = rng.standard_normal((m, len(width)))
+            out *= width / 3
+        else:
+            out = rng.random((m, len(width)))
+            out *= 2 * width
+            out -= width
+        return out
+
+    for start in range(0, total, _MC_BLOCK):
+        m = min(_MC_BLOCK, total - start)
+        rows = slice(start, start + m)
+        temperature = (rng.uniform(low_c, high_c, m) if high_c > low_c
+                       else np.full(m, low_c))
+        factors = draw(m, var.tolerance)
+        factors += 1.0
+        for column in gain_columns:  # a gain range (a transistor's beta): uniform within it
+            factors[:, column] = rng.uniform(var.low[column], var.high[column], m)
+        if n:
+            # each part's temperature coefficient lies within its ±TCR (a normal spread
+            # reads the TCR limit as 3σ, like a tolerance)
+            drift = draw(m, tcr)
+            drift *= (temperature - REFERENCE_C)[:, None]
+            drift += 1.0
+            factors *= drift
+        r, s = var.apply(factors, r0, src)
+        result = ev.evaluate(r, s)
+        values[rows] = result.targets
+        inside[rows] = inside_windows(design, result.targets) & np.isfinite(result.targets)
+        good = inside[rows].all(axis=1)
+        for k, rating in ratings:
+            allowed = allowed_power(rating, temperature, design.margin_frac)
+            good &= result.resistor_power[:, k] <= allowed
+            good &= (result.resistor_voltage[:, k]
+                     <= rating.limiting_voltage_v * design.voltage_margin_frac)
+        ok[rows] = good
+    updated = []
+    for j, t in enumerate(targets):
+        drawn = values[:, j]
+        updated.append(TargetSpread(
+            **{**t.__dict__, "mc_mean": float(np.mean(drawn)), "mc_std": float(np.std(drawn)),
+               "mc_values": drawn, "inside": float(np.mean(inside[:, j]))}))
+    return updated, float(np.mean(ok))

@@ -1,0 +1,143 @@
+"""Settings and result records of the spread analysis.
+"""
+
+from __future__ import annotations
+
+__all__ = ["PartSpread", "SpreadResult", "SpreadSettings", "TargetSpread"]
+
+from dataclasses import dataclass
+
+import numpy as np
+
+
+@dataclass(frozen=True)
+class SpreadSettings:
+    """How to analyse spread.
+
+    Attributes
+    ----------
+    samples : int
+        Monte Carlo samples (0 skips Monte Carlo).
+    distribution : {"uniform", "normal"}
+        Shape of each tolerance; normal takes tolerance = 3σ.
+    seed : int
+        Seed of the random generator (results repeat for the same seed).
+    """
+
+    samples: int = 100_000
+    distribution: str = "uniform"
+    seed: int = 1
+
+
+@dataclass(frozen=True)
+class TargetSpread:
+    """Spread of one target.
+
+    Attributes
+    ----------
+    label : str
+    goal : float or None
+        The target's ``equals`` value.
+    nominal : float
+    worst_low, worst_high : float
+        Extremes over the tolerance box.
+    low_corner, high_corner : dict of str to str
+        Which end of each varying quantity gives each extreme (``"+"``/``"-"``).
+    exact : bool
+        True when every vertex was solved (else the corners come from the
+        sensitivity signs).
+    rss : float
+        Root-sum-square deviation, as a fraction of the nominal value.
+    sensitivities : dict of str to float
+        % change of the target per % change of each quantity.
+    mc_mean, mc_std : float or None
+        Monte Carlo mean and standard deviation (None without samples).
+    mc_values : numpy.ndarray or None
+        The Monte Carlo samples themselves.
+    inside : float or None
+        Share of samples inside this target's window.
+    """
+
+    label: str
+    goal: float | None
+    nominal: float
+    worst_low: float
+    worst_high: float
+    low_corner: dict[str, str]
+    high_corner: dict[str, str]
+    exact: bool
+    rss: float
+    sensitivities: dict[str, float]
+    mc_mean: float | None
+    mc_std: float | None
+    mc_values: np.ndarray | None
+    inside: float | None
+
+
+@dataclass(frozen=True)
+class PartSpread:
+    """Worst-case stress of one resistor.
+
+    Attributes
+    ----------
+    ref : str
+    nominal_power : float
+        W at nominal values.
+    worst_power : float
+        Largest dissipation found over the tolerance box (vertices and the
+        interior peaks along the part's own range), W.
+    worst_power_bound : float
+        A sound upper bound of the dissipation over the box, W.
+    allowed_power_hot : float or None
+        Allowed dissipation at the hottest ambient of the temperature range
+        (derated, times the margin), W.
+    utilization : float or None
+        ``worst_power / allowed_power_hot``.
+    worst_voltage : float
+        Largest voltage across the part over the box, V.
+    """
+
+    ref: str
+    nominal_power: float
+    worst_power: float
+    worst_power_bound: float
+    allowed_power_hot: float | None
+    utilization: float | None
+    worst_voltage: float
+
+
+@dataclass(frozen=True)
+class SpreadResult:
+    """Spread of a design at given values.
+
+    Attributes
+    ----------
+    variables : tuple of str
+        The varying quantities (references), in order.
+    targets : tuple of TargetSpread
+    parts : tuple of PartSpread
+    yield_fraction : float or None
+        Share of Monte Carlo samples meeting every window and limit.
+    settings : SpreadSettings
+    temperature_c : tuple of float
+        Operating range used, °C.
+    """
+
+    variables: tuple[str, ...]
+    targets: tuple[TargetSpread, ...]
+    parts: tuple[PartSpread, ...]
+    yield_fraction: float | None
+    settings: SpreadSettings
+    temperature_c: tuple[float, float]
+
+    @property
+    def worst_error(self) -> float:
+        """Largest worst-case relative error over targets with a non-zero goal (0 if none)."""
+        errors = [max(abs(t.worst_low - t.goal), abs(t.worst_high - t.goal)) / abs(t.goal)
+                  for t in self.targets if t.goal]
+        return max(errors, default=0.0)
+
+    @property
+    def rss_error(self) -> float:
+        """Largest root-sum-square deviation over targets with a goal, as a fraction."""
+        return max((t.rss for t in self.targets if t.goal), default=0.0)

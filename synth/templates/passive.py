@@ -1,0 +1,279 @@
+"""Designs for the everyday jobs, built in memory as design-file tables.
+
+Each builder checks its options, returns the tables a design file would
+hold (so ``--save`` can write them and ``rnsynth design`` reproduce the run),
+and the caller validates them with :func:`synth.design.design_from_dict` and
+runs the same engine as for any design file.
+"""
+
+from __future__ import annotations
+
+__all__ = [
+    "QuickSettings", "design_table", "divider_tables", "free_part", "led_tables", "pad_ideal",
+    "pad_tables", "read_option", "regulator_tables", "value_range", "with_goal",
+]
+
+from dataclasses import dataclass
+from typing import Any
+
+from synth.catalog.packages import load_package_table
+from synth.errors import DesignError
+from synth.rating import allowed_power
+from synth.units import (
+    format_eng,
+    parse_decibels,
+    parse_fraction,
+    parse_quantity,
+    parse_resistance,
+    parse_temperature,
+)
+
+
+@dataclass(frozen=True)
+class QuickSettings:
+    """Options every quick command shares (text as the user typed it)."""
+
+    series: str = "E96"
+    value_range: str | None = None
+    within: str | None = None
+    package: str | None = "0603"
+    ambient: str = "25 C"
+    margin: str = "50%"
+
+
+def read_option(option: str, parse: Any, text: str, *args: Any) -> float:
+    try:
+        return float(parse(text, *args))
+    except DesignError as exc:
+        raise DesignError(f"{option}: {exc}") from None
+
+
+def value_range(settings: QuickSettings, default: str = "100:10M") -> list[str]:
+    text = settings.value_range or default
+    low, sep, high = text.partition(":")
+    if not sep:
+        raise DesignError(f"--range {text!r} needs two ends separated by a colon, "
+                          "e.g. 1k:1M")
+    lo = read_option("--range", parse_resistance, low)
+    hi = read_option("--range", parse_resistance, high)
+    if lo <= 0 or hi < lo:
+        raise DesignError(f"--range {text!r} is empty or not positive; give the low end "
+                          "first")
+    return [low.strip(), high.strip()]
+
+
+def design_table(title: str, settings: QuickSettings) -> dict[str, Any]:
+    read_option("--ambient", parse_temperature, settings.ambient)
+    read_option("--margin", parse_fraction, settings.margin)
+    table = {"title": title, "ground": "gnd", "ambient": settings.ambient,
+             "margin": settings.margin}
+    if settings.package:
+        table["package"] = settings.package
+    return table
+
+
+def free_part(ref: str, nodes: list[str], settings: QuickSettings,
+          default_range: str = "100:10M") -> dict[str, Any]:
+    return {"ref": ref, "nodes": nodes, "choose": settings.series,
+            "range": value_range(settings, default_range)}
+
+
+def with_goal(target: dict[str, Any], goal: str, settings: QuickSettings) -> dict[str, Any]:
+    target["equals"] = goal
+    if settings.within:
+        target["within"] = settings.within
+    return target
+
+
+def divider_tables(input_voltage: str, output_voltage: str, settings: QuickSettings,
+                   load: str | None = None, max_current: str | None = None) -> dict[str, Any]:
+    """A two-resistor divider from ``input_voltage`` to ``output_voltage`` (optionally loaded).
+
+    The divider's top resistor is R1 (in to out), its bottom R2 (out to ground);
+    a load is a fixed RLOAD from out to ground; ``max_current`` bounds the supply current.
+    """
+    vin = read_option("--input", parse_quantity, input_voltage, "V")
+    vout = read_option("--output", parse_quantity, output_voltage, "V")
+    if vin == 0 or not 0 < vout / vin < 1:
+        raise DesignError(f"--output {output_voltage} must lie between 0 V and the input "
+                          f"{input_voltage} for a divider")
+    resistors = [free_part("R1", ["in", "out"], settings),
+                 free_part("R2", ["out", "gnd"], settings)]
+    if load is not None:
+        if read_option("--load", parse_resistance, load) <= 0:
+            raise DesignError(f"--load {load!r} must be positive")
+        resistors.append({"ref": "RLOAD", "nodes": ["out", "gnd"], "value": load,
+                          "note": "the load the divider drives"})
+    targets = [with_goal({"name": "output", "voltage": "out"}, output_voltage, settings)]
+    if max_current is not None:
+        read_option("--max-current", parse_quantity, max_current, "A")
+        targets.append({"name": "supply current", "current": "VIN", "at_most": max_current})
+    return {
+        "design": design_table(f"Divider {input_voltage} to {output_voltage}", settings),
+        "source": [{"ref": "VIN", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "value": input_voltage}],
+        "resistor": resistors,
+        "target": targets,
+    }
+
+
+def regulator_tables(style: str, reference: str, output_voltage: str, settings: QuickSettings,
+                     pin_current: str = "0 A", load: str | None = None,
+                     min_current: str | None = None, max_current: str | None = None
+                     ) -> dict[str, Any]:
+    """A regulator's feedback network.
+
+    ``style = "feedback"``: the reference sits at the divider tap (feedback-pin
+    regulators), V = Vref (1 + RTOP/RBOT) + I RTOP with I the current into the pin.
+    ``style = "adjust"``: the reference sits across the top resistor
+    (three-terminal adjustable regulators), V = Vref (1 + RBOT/RTOP) + I RBOT with I
+    the current out of the adjust pin.  ``min_current``/``max_current`` bound the
+    current in the top resistor.
+    """
+    vref = read_option("--reference", parse_quantity, reference, "V")
+    vout = read_option("--output", parse_quantity, output_voltage, "V")
+    read_option("--pin-current", parse_quantity, pin_current, "A")
+    if vref <= 0 or vout <= vref:
+        raise DesignError(f"--output {output_voltage} must exceed the reference {reference}, "
+                          "both positive")
+    tap = "fb" if style == "feedback" else "adj"
+    if style == "feedback":
+        regulator = {"ref": "U1", "output": "out", "sense": "fb", "reference": "gnd",
+                     "setpoint": reference}
+        pin = {"ref": "IPIN", "kind": "current", "from": "fb", "to": "gnd",
+               "value": pin_current, "note": "current into the feedback pin"}
+    elif style == "adjust":
+        regulator = {"ref": "U1", "output": "out", "sense": "out", "reference": "adj",
+                     "setpoint": reference}
+        pin = {"ref": "IPIN", "kind": "current", "from": "gnd", "to": "adj",
+               "value": pin_current, "note": "current out of the adjust pin"}
+    else:
+        raise DesignError(f"--style {style!r} is not known; use feedback or adjust")
+    resistors = [free_part("RTOP", ["out", tap], settings),
+                 free_part("RBOT", [tap, "gnd"], settings)]
+    if load is not None:
+        resistors.append({"ref": "RLOAD", "nodes": ["out", "gnd"], "value": load})
+    targets = [with_goal({"name": "output", "voltage": "out"}, output_voltage, settings)]
+    bound: dict[str, Any] = {"name": "divider current", "current": "RTOP"}
+    if min_current is not None:
+        read_option("--min-current", parse_quantity, min_current, "A")
+        bound["at_least"] = min_current
+    if max_current is not None:
+        read_option("--max-current", parse_quantity, max_current, "A")
+        bound["at_most"] = max_current
+    if len(bound) > 2:
+        targets.append(bound)
+    kind = "feedback-pin" if style == "feedback" else "adjustable"
+    return {
+        "design": design_table(f"{kind.capitalize()} regulator set to {output_voltage}",
+                                settings),
+        "regulator": [regulator],
+        "source": [pin],
+        "resistor": resistors,
+        "target": targets,
+    }
+
+
+def led_tables(supply: str, forward: str, count: int, current: str,
+               settings: QuickSettings) -> tuple[dict[str, Any], str]:
+    """An LED string's series resistor, R = (Vs - n Vf) / I.
+
+    Returns the tables and the package chosen: ``settings.package``, or (when
+    that is None) the smallest bundled chip package whose derated allowance
+    covers the ideal resistor's dissipation I²R.
+    """
+    vs = read_option("--supply", parse_quantity, supply, "V")
+    vf = read_option("--forward", parse_quantity, forward, "V")
+    amps = read_option("--current", parse_quantity, current, "A")
+    if count < 1:
+        raise DesignError(f"--count {count} must be at least 1")
+    if amps <= 0 or vf <= 0:
+        raise DesignError("--current and --forward must be positive")
+    headroom = vs - count * vf
+    if headroom <= 0:
+        raise DesignError(f"--supply {supply} does not exceed {count} x {forward}; use fewer "
+                          "LEDs in the string or a higher supply")
+    ideal = headroom / amps
+    package = settings.package
+    if package is None:
+        power = amps * amps * ideal
+        table = load_package_table()
+        ambient = parse_temperature(settings.ambient)
+        margin = parse_fraction(settings.margin)
+        chips = sorted((p for name, p in table.items() if p.mount == "chip" and name == p.name),
+                       key=lambda p: p.rated_power_w)
+        fits = [p for p in chips if float(allowed_power(p, ambient, margin)) >= power]
+        if not fits:
+            raise DesignError(f"the resistor dissipates {format_eng(power, 'W')}, more than any "
+                              "chip package allows; give --package for a larger part")
+        package = fits[0].name
+    low, high = ideal / 3, ideal * 3
+    free = {"ref": "R1", "nodes": ["supply", "a1"], "choose": settings.series,
+            "range": [f"{low:.6g}", f"{high:.6g}"], "package": package}
+    leds = [{"ref": f"D{k}", "kind": "voltage", "plus": f"a{k}",
+             "minus": f"a{k + 1}" if k < count else "gnd", "value": forward,
+             "note": "LED forward drop"} for k in range(1, count + 1)]
+    table = design_table(f"LED string: {count} x {forward} at {current} from {supply}",
+                          settings)
+    table.pop("package", None)
+    target = with_goal({"name": "LED current", "current": "R1"}, current, settings)
+    return ({
+        "design": table,
+        "source": [{"ref": "VS", "kind": "voltage", "plus": "supply", "minus": "gnd",
+                    "value": supply}, *leds],
+        "resistor": [free],
+        "target": [target],
+    }, package)
+
+
+def pad_ideal(impedance_ohm: float, loss_db: float, shape: str) -> tuple[float, float]:
+    """Published matched-pad formulas, K = 10^(dB/20), ohm.
+
+    T pad: series arms Z0 (K-1)/(K+1), shunt arm 2 Z0 K/(K²-1).
+    Pi pad: shunt arms Z0 (K+1)/(K-1), series arm Z0 (K²-1)/(2K).
+    Returns (arm, middle): for T (series arm, shunt), for Pi (shunt arm, series).
+    """
+    k = 10 ** (loss_db / 20)
+    if shape == "T":
+        return impedance_ohm * (k - 1) / (k + 1), 2 * impedance_ohm * k / (k * k - 1)
+    return impedance_ohm * (k + 1) / (k - 1), impedance_ohm * (k * k - 1) / (2 * k)
+
+
+def pad_tables(impedance: str, loss: str, shape: str, settings: QuickSettings
+               ) -> dict[str, Any]:
+    """A matched attenuator pad between two terminations of ``impedance``.
+
+    The pad sits between a source termination RS and a load termination RL,
+    both fixed at the impedance, and is driven by a test current.  Targets:
+    the resistance seen at each port is half the impedance (the termination in
+    parallel with a matched pad), and V(out)/V(in) = 1/K.
+    """
+    z0 = read_option("--impedance", parse_resistance, impedance)
+    db = read_option("--loss", parse_decibels, loss)
+    if z0 <= 0 or db <= 0:
+        raise DesignError("--impedance and --loss must be positive")
+    shape = shape.upper() if shape.upper() == "T" else "Pi"
+    span = f"{z0 / 100:.6g}:{z0 * 100:.6g}"
+    nodes = ([["in", "mid"], ["mid", "gnd"], ["mid", "out"]] if shape == "T"
+             else [["in", "gnd"], ["in", "out"], ["out", "gnd"]])
+    pad = [free_part(f"R{k}", pair, settings, span) for k, pair in enumerate(nodes, start=1)]
+    half = f"{z0 / 2:.12g}"
+    gain = 10 ** (-db / 20)
+    return {
+        "design": design_table(f"{shape} pad, {loss} in a {impedance} ohm line", settings),
+        "source": [{"ref": "ITEST", "kind": "current", "from": "gnd", "to": "in",
+                    "value": "1 mA", "note": "test drive; the pad's response is linear"}],
+        "resistor": [
+            {"ref": "RS", "nodes": ["in", "gnd"], "value": impedance,
+             "note": "source termination"},
+            *pad,
+            {"ref": "RL", "nodes": ["out", "gnd"], "value": impedance,
+             "note": "load termination"},
+        ],
+        "target": [
+            with_goal({"name": "input match", "resistance": ["in", "gnd"]}, half, settings),
+            with_goal({"name": "output match", "resistance": ["out", "gnd"]}, half, settings),
+            with_goal({"name": "loss", "ratio": [["out", "gnd"], ["in", "gnd"]]},
+                    f"{gain:.12g}", settings),
+        ],
+    }

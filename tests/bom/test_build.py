@@ -1,0 +1,212 @@
+"""rnsynth bom: board files, consolidation, stock, formats and refused input."""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+
+import pytest
+from click.testing import CliRunner
+
+from synth.bom.lines import collapse_references
+from synth.cli import cli
+
+from conftest import ROOT
+
+DIVIDER = """
+[design]
+title = "{name}"
+package = "0603"
+
+[[source]]
+ref = "V1"
+kind = "voltage"
+plus = "in"
+minus = "gnd"
+value = "{vin}"
+
+[[resistor]]
+ref = "R1"
+nodes = ["in", "out"]
+choose = "E24"
+range = ["1k", "100k"]
+tolerance = "1%"
+
+[[resistor]]
+ref = "R2"
+nodes = ["out", "gnd"]
+choose = "E24"
+range = ["1k", "100k"]
+tolerance = "1%"
+
+[[resistor]]
+ref = "RX"
+nodes = ["out", "gnd"]
+value = "1M"
+bom = false
+
+[[target]]
+voltage = "out"
+equals = "{vout}"
+within = "1%"
+"""
+
+
+@pytest.fixture
+def board(tmp_path):
+    for name, vin, vout in (("a", "12 V", "3.3 V"), ("b", "5 V", "1.8 V"),
+                            ("c", "24 V", "5 V")):
+        (tmp_path / f"{name}.toml").write_text(
+            DIVIDER.format(name=name, vin=vin, vout=vout), encoding="utf-8")
+    (tmp_path / "board.toml").write_text("""
+[board]
+title = "bench instrument"
+pool = 50
+
+[[network]]
+file = "a.toml"
+
+[[network]]
+file = "b.toml"
+count = 2
+
+[[network]]
+file = "c.toml"
+name = "input"
+""", encoding="utf-8")
+    return tmp_path
+
+
+def run(*args):
+    return CliRunner().invoke(cli, [str(a) for a in args])
+
+
+def test_csv_reads_back_and_consolidation_saves_lines(board):
+    result = run("bom", board / "board.toml", "--quiet")
+    assert result.exit_code == 0, result.output
+    rows = list(csv.DictReader(io.StringIO(result.stdout)))
+    assert rows and list(rows[0]) == [
+        "line", "quantity", "references", "value", "code", "ohms", "series", "tolerance",
+        "tcr_ppm_per_c", "package", "imperial", "metric", "mount", "rated_power_w",
+        "in_stock", "on_hand", "to_buy"]
+    # 4 networks (b twice) x 2 BOM parts; the 1M model resistor stays off the BOM
+    assert sum(int(r["quantity"]) for r in rows) == 8
+    assert all(r["package"] == "0603" and r["imperial"] == "0603" and r["metric"] == "1608M"
+               for r in rows)
+    assert all(float(r["ohms"]) != 1e6 for r in rows)
+    doc = json.loads(run("bom", board / "board.toml", "--format", "json", "--quiet").stdout)
+    c = doc["consolidation"]
+    assert c["optimal"] and c["lines_after"] == len(doc["lines"]) <= c["lines_before"]
+    names = [n["name"] for n in doc["networks"]]
+    assert names == ["a", "b", "input"]
+    # designators: a keeps R1, R2; both copies of b and the input network are renumbered
+    refs = [ref for row in doc["lines"] for ref in expand(row["references"])]
+    assert sorted(refs, key=lambda r: int(r[1:])) == [f"R{k}" for k in range(1, 9)]
+    assert doc["renumbered"]["b #1"] == {"R1": "R3", "R2": "R4"}
+
+
+def expand(text):
+    out = []
+    for part in text.split(", "):
+        if "–" in part:
+            a, b = part.split("–")
+            out += [f"R{k}" for k in range(int(a[1:]), int(b[1:]) + 1)]
+        else:
+            out.append(part)
+    return out
+
+
+def test_markdown_table_is_well_formed(board):
+    text = run("bom", board / "board.toml", "--format", "markdown", "--quiet").stdout
+    table = [line for line in text.splitlines() if line.startswith("|")]
+    widths = {line.count("|") - line.count("\\|") for line in table}
+    assert len(widths) == 1 and len(table) >= 3
+    assert set(table[1].replace("|", "")) == {"-"}
+
+
+def test_output_file_is_atomic_and_not_overwritten(board):
+    target = board / "bom.csv"
+    first = run("bom", board / "board.toml", "--output", target)
+    assert first.exit_code == 0 and "BOM written" in first.output and target.exists()
+    before = target.read_text()
+    again = run("bom", board / "board.toml", "--output", target)
+    assert again.exit_code == 2 and "already exists; pass --force" in again.stderr
+    assert target.read_text() == before
+    assert run("bom", board / "board.toml", "--output", target, "--force").exit_code == 0
+    assert not [p for p in board.iterdir() if p.name.startswith(".bom.csv")]
+
+
+def test_stock_marks_lines_and_shortfalls(board):
+    stock = board / "shelf.csv"
+    doc = json.loads(run("bom", board / "board.toml", "--format", "json", "--quiet").stdout)
+    first = doc["lines"][0]
+    stock.write_text(f"value,package,tolerance,quantity\n{first['code']},0603,1%,1\n",
+                     encoding="utf-8")
+    doc = json.loads(run("bom", board / "board.toml", "--format", "json", "--quiet",
+                         "--stock", stock).stdout)
+    line = next(r for r in doc["lines"] if r["code"] == first["code"])
+    assert line["in_stock"] == "yes" and line["on_hand"] == 1
+    assert line["to_buy"] == line["quantity"] - 1
+    others = [r for r in doc["lines"] if r["code"] != first["code"]]
+    assert all(r["in_stock"] == "no" and r["to_buy"] == r["quantity"] for r in others)
+
+
+def test_stock_only_restricts_picks(board):
+    from synth.catalog.series import series_values
+    from synth.units import format_rkm
+
+    stock = board / "shelf.csv"
+    shelf = [v for k, v in enumerate(series_values("E24", 1e3, 1e5)) if k % 2 == 0]  # E12
+    stock.write_text("value,package,tolerance,quantity\n" + "".join(
+        f"{format_rkm(v)},0603,1%,100\n" for v in shelf), encoding="utf-8")
+    result = run("bom", board / "board.toml", "--stock", stock, "--stock-only",
+                 "--format", "json", "--quiet")
+    assert result.exit_code == 0, result.output
+    doc = json.loads(result.stdout)
+    assert all(r["in_stock"] == "yes" and r["to_buy"] == 0 for r in doc["lines"])
+    assert all(r["ohms"] in shelf for r in doc["lines"])
+    stock.write_text("value,package,tolerance,quantity\n1k,0603,1%,100\n", encoding="utf-8")
+    result = run("bom", board / "board.toml", "--stock", stock, "--stock-only", "--quiet")
+    assert result.exit_code == 1 and "from stock values alone" in result.stderr
+
+
+@pytest.mark.parametrize(("setup", "fragment"), [
+    ("missing", "no such file; check the path"),
+    ("stock", "shelf.csv, line 3: 'lots' is not a resistance"),
+    ("board", "unknown key 'pools'; did you mean 'pool'?"),
+    ("network", "design file 'nope.toml' was not found"),
+])
+def test_refused_input(board, setup, fragment):
+    args = ["bom"]
+    if setup == "missing":
+        args.append(board / "absent.toml")
+    elif setup == "stock":
+        (board / "shelf.csv").write_text("value,quantity\n1k,3\nlots,2\n", encoding="utf-8")
+        args += [board / "board.toml", "--stock", board / "shelf.csv"]
+    elif setup == "board":
+        (board / "bad.toml").write_text("[board]\npools = 3\n[[network]]\nfile = 'a.toml'\n")
+        args.append(board / "bad.toml")
+    else:
+        (board / "bad.toml").write_text("[[network]]\nfile = 'nope.toml'\n")
+        args.append(board / "bad.toml")
+    target = board / "out.csv"
+    result = run(*args, "--output", target)
+    assert result.exit_code == 2, result.output
+    assert fragment in result.stderr and "Traceback" not in result.stderr
+    assert not target.exists()
+
+
+def test_collapse_references():
+    assert collapse_references(["R1", "R2", "R3", "R4", "R7"]) == "R1–R4, R7"
+    assert collapse_references(["R2", "R1"]) == "R1, R2"
+    assert collapse_references(["R10", "R9", "R11", "R3A"]) == "R3A, R9–R11"
+
+
+def test_bundled_board_example():
+    result = run("bom", ROOT / "examples" / "greenhouse_board.toml", "--format", "json",
+                 "--quiet")
+    assert result.exit_code == 0, result.output
+    doc = json.loads(result.stdout)
+    lamp = next(n for n in doc["networks"] if n["name"] == "status lamp")
+    assert lamp["count"] == 2
