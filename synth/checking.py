@@ -1,13 +1,15 @@
 """Analysis of a design whose values are all given (``rnsynth check``).
 
 :func:`check` solves the network once by loop currents, measures every
-target and every part's current, voltage, dissipation and rating use, and
-optionally repeats the solve by modified nodal analysis to show the two agree.
+target and every physical part's current, voltage, dissipation and use of
+its allowance, and optionally repeats the solve by modified nodal analysis to
+show the two agree.  :func:`check_block` does the same for many value sets in
+one batched solve (the re-check of ranked candidates).
 """
 
 from __future__ import annotations
 
-__all__ = ["check", "resolve_values", "stress_problems", "target_reports"]
+__all__ = ["check", "check_block", "part_problems", "resolve_values", "target_reports"]
 
 from collections.abc import Mapping
 
@@ -16,115 +18,239 @@ import numpy as np
 from synth.cautions import power_cautions, voltage_cautions
 from synth.circuit.measure import Evaluation, Evaluator
 from synth.circuit.nodal import nodal_solve
-from synth.design.model import Design, Target
-from synth.errors import DesignError
-from synth.rating import derating_factor
-from synth.results import CheckResult, PartReport, TargetReport
+from synth.design.model import Design
+from synth.errors import DesignError, nearest_name
+from synth.rating import exceeds, falls_short, use_of
+from synth.results import CheckResult, PartReport, Problem, TargetReport
 from synth.search.ideal import ideal_values
 from synth.spread.analyse import analyse_spread
 from synth.spread.records import SpreadSettings
 
 
-def _error(target: Target, value: float) -> float | None:
-    if target.equals is None:
-        return None
-    if target.equals == 0:
-        return value
-    return (value - target.equals) / abs(target.equals)
-
-
 def target_reports(design: Design, values: np.ndarray) -> tuple[TargetReport, ...]:
-    """Build :class:`TargetReport` rows from one candidate's target values."""
+    """Build :class:`TargetReport` rows from one candidate's target values.
+
+    A target is met when its value lies inside its window, edges included
+    (with the slack of :data:`synth.rating.LIMIT_SLACK`).  Its error follows
+    :meth:`synth.design.model.Target.error`: relative for a non-zero goal,
+    absolute in the target's unit for a zero goal.
+    """
     rows = []
     for target, value in zip(design.targets, values, strict=True):
         low, high = target.bounds
+        met = (bool(np.isfinite(value)) and not bool(falls_short(value, low))
+               and not bool(exceeds(value, high)))
+        error = None if target.equals is None else float(target.error(float(value)))
+        if not met:
+            status = "out of window"
+        elif target.equals is not None and target.within_abs is None \
+                and target.within_rel is None:
+            status = "soft goal"
+        else:
+            status = "met"
         rows.append(TargetReport(
             label=target.label, kind=target.kind, unit=target.unit, value=float(value),
-            goal=target.equals, low=low, high=high, error=_error(target, float(value)),
-            met=bool(low <= value <= high) and bool(np.isfinite(value)),
+            goal=target.equals, low=low, high=high, error=error, met=met,
+            relative=target.relative, status=status,
         ))
     return tuple(rows)
 
 
-def resolve_values(design: Design, given: Mapping[str, float] | None = None) -> np.ndarray:
-    """Resistance of every resistor for a check, ohm, in design order.
+def resolve_values(design: Design, given: Mapping[str, float] | None = None
+                   ) -> tuple[np.ndarray, np.ndarray]:
+    """Every position's resistance and every physical part's, ohm, for a check.
 
     Parameters
     ----------
     design : Design
     given : mapping, optional
-        Values by reference designator that override the file (e.g. ideal values).
+        Values that override the file, by designator: a position (``R1``,
+        its effective value) or a physical part of a position of several
+        parts (``R1A``, ``R1B``; give all of one position's parts).
+
+    Returns
+    -------
+    positions : numpy.ndarray
+        ``(resistors,)`` effective ohm, design order.
+    parts : numpy.ndarray
+        ``(parts,)`` ohm of every physical part (:attr:`Design.part_refs` order).
 
     Raises
     ------
     DesignError
-        When a free part has neither a ``value`` nor an entry in ``given``.
+        When a name is not a part of the design, when only some parts of a
+        position are given, or when a free part has no value.
     """
     given = dict(given or {})
-    missing = [r.ref for r in design.resistors if r.value is None and r.ref not in given]
+    known = set(design.part_refs) | {r.ref for r in design.resistors}
+    unknown = sorted(name for name in given if name not in known)
+    if unknown:
+        raise DesignError(
+            f"{design.origin}: values name {unknown[0]!r}, not a resistor of the design"
+            f"{nearest_name(unknown[0], known)}; use the designators {', '.join(sorted(known))}"
+        )
+    positions, parts = [], []
+    missing = []
+    for resistor in design.resistors:
+        position = resistor.position
+        named = [ref for ref in position.part_refs if ref in given and ref != resistor.ref]
+        if named and len(named) < position.count:
+            absent = [ref for ref in position.part_refs if ref not in given]
+            raise DesignError(f"{design.origin}: values give {', '.join(named)} but not "
+                              f"{', '.join(absent)}; give every part of {resistor.ref}")
+        if named:
+            values = np.array([given[ref] for ref in position.part_refs], dtype=float)
+        elif resistor.ref in given:
+            effective = float(given[resistor.ref])
+            values = (np.array(position.part_values)
+                      if position.part_values is not None
+                      and np.isclose(position.effective(np.array([position.part_values]))[0],
+                                     effective, rtol=1e-12)
+                      else position.equal_split(np.array([effective]))[0])
+        elif position.part_values is not None:
+            values = np.array(position.part_values, dtype=float)
+        elif resistor.value is not None:
+            values = position.equal_split(np.array([resistor.value]))[0]
+        else:
+            missing.append(resistor.ref)
+            continue
+        if np.any(~np.isfinite(values)) or np.any(values <= 0):
+            raise DesignError(f"{design.origin}: the value of {resistor.ref} must be a positive "
+                              "resistance")
+        parts.extend(values.tolist())
+        positions.append(float(position.effective(values[None, :])[0]))
     if missing:
         raise DesignError(
             f"{design.origin}: {', '.join(missing)} still need a value for check; add value = "
             "\"...\" to each or run rnsynth design to choose them"
         )
-    return np.array([given.get(r.ref, r.value) for r in design.resistors], dtype=float)
+    return np.array(positions, dtype=float), np.array(parts, dtype=float)
 
 
-def stress_problems(part: PartReport) -> list[str]:
-    """One line for each allowance (power, voltage) the part goes over."""
-    lines = []
-    if part.utilization is not None and part.utilization > 1:
-        lines.append(f"{part.ref} dissipates {part.power:.4g} W, over its allowed "
-                     f"{part.allowed_power:.4g} W")
-    if part.voltage_utilization is not None and part.voltage_utilization > 1:
-        lines.append(f"{part.ref} sees {part.voltage:.4g} V, over its allowed "
-                     f"{part.allowed_voltage:.4g} V")
-    return lines
+def part_problems(part: PartReport) -> list[Problem]:
+    """A record for each allowance (power, voltage) the physical part goes over."""
+    problems = []
+    if part.allowed_power is not None and bool(exceeds(part.power, part.allowed_power)):
+        problems.append(Problem("power", part.ref, part.power, part.allowed_power, "W"))
+    if part.allowed_voltage is not None and bool(exceeds(part.voltage, part.allowed_voltage)):
+        problems.append(Problem("voltage", part.ref, part.voltage, part.allowed_voltage, "V"))
+    return problems
 
 
-def _part_reports(design: Design, ev: Evaluator, r: np.ndarray,
-                  result: Evaluation) -> list[PartReport]:
+def _window_problem(target: TargetReport) -> Problem:
+    edge = target.low if target.value < target.low else target.high
+    return Problem("window", target.label, target.value, edge, target.unit,
+                   low=target.low, high=target.high)
+
+
+def _part_reports(design: Design, ev: Evaluator, row: int, result: Evaluation,
+                  parts: np.ndarray) -> list[PartReport]:
     sol = result.solution
-    parts = []
+    reports = []
     for k, resistor in enumerate(design.resistors):
-        rating = design.rating(resistor)
-        power = float(result.resistor_power[0, k])
-        across = float(result.resistor_voltage[0, k])
-        allowed = None if rating is None else float(ev.allowed_power[k])
-        allowed_v = None if rating is None else float(ev.allowed_voltage[k])
-        parts.append(PartReport(
-            ref=resistor.ref, kind="resistor", value=float(r[k]),
-            current=float(sol.branch_currents[0, k]), voltage=across, power=power,
-            package=resistor.package,
-            rated_power=None if rating is None else rating.rated_power_w,
-            allowed_power=allowed,
-            utilization=None if allowed is None else (power / allowed if allowed > 0 else np.inf),
-            limiting_voltage=None if rating is None else rating.limiting_voltage_v,
-            allowed_voltage=allowed_v,
-            voltage_utilization=None if allowed_v is None else across / allowed_v,
-        ))
-    v = sol.node_voltages[0]
+        allowance = design.allowance(resistor)
+        cols = ev.part_columns[k]
+        for offset, ref in enumerate(resistor.part_refs):
+            col = cols.start + offset
+            power = float(result.part_power[row, col])
+            across = float(result.part_voltage[row, col])
+            reports.append(PartReport(
+                ref=ref, kind="resistor", value=float(parts[col]),
+                current=float(result.part_current[row, col]), voltage=across, power=power,
+                package=resistor.package,
+                rated_power=None if allowance is None else allowance.rated_power_w,
+                allowed_power=None if allowance is None else allowance.power_w,
+                utilization=None if allowance is None
+                else float(use_of(power, allowance.power_w)),
+                limiting_voltage=None if allowance is None else allowance.limiting_voltage_v,
+                allowed_voltage=None if allowance is None else allowance.voltage_v,
+                voltage_utilization=None if allowance is None
+                else float(use_of(across, allowance.voltage_v)),
+                position=resistor.ref,
+            ))
+    v = sol.node_voltages[row]
     # sources and controlled sources: current as delivered (out of plus, into `to`)
     two_terminal = ([(s.ref, f"{s.kind} source", s.value, s.pos, s.neg) for s in design.sources]
                     + [(c.ref, f"controlled source ({c.kind})", c.gain, c.pos, c.neg)
                        for c in design.controlled])
     for ref, kind, value, pos, neg in two_terminal:
-        current = float(sol.branch_currents[0, ev.branch_index[ref]])
+        current = float(sol.branch_currents[row, ev.branch_index[ref]])
         across = float(v[ev.node_index[pos]] - v[ev.node_index[neg]])
-        parts.append(PartReport(ref=ref, kind=kind, value=value, current=current,
-                                voltage=across, power=current * across))
+        reports.append(PartReport(ref=ref, kind=kind, value=value, current=current,
+                                  voltage=across, power=current * across))
     for g, regulator in enumerate(design.regulators):
         col = ev.branch_index[regulator.ref]
-        current = float(sol.branch_currents[0, col])
-        out = float(sol.regulator_outputs[0, g])
-        parts.append(PartReport(
+        current = float(sol.branch_currents[row, col])
+        out = float(sol.regulator_outputs[row, g])
+        reports.append(PartReport(
             ref=regulator.ref, kind="regulator", value=out, current=current, voltage=out,
             power=current * out,
         ))
-    return parts
+    return reports
 
 
-def check(design: Design, values: Mapping[str, float] | None = None,
+def _cautions(design: Design, parts: list[PartReport], max_voltage: float) -> list[str]:
+    over_rating: list[str] = []
+    over_margin: list[str] = []
+    by_ref = {ref: resistor for resistor in design.resistors for ref in resistor.part_refs}
+    for part in parts:
+        if part.kind != "resistor" or part.allowed_power is None:
+            continue
+        allowance = design.allowance(by_ref[part.ref])
+        assert allowance is not None
+        if bool(exceeds(part.power, part.allowed_power)):
+            hot = bool(exceeds(part.power, allowance.derated_power_w))
+            (over_rating if hot else over_margin).append(part.ref)
+        elif part.allowed_voltage is not None and bool(exceeds(part.voltage,
+                                                                part.allowed_voltage)):
+            over_margin.append(part.ref)
+    return voltage_cautions(max_voltage) + power_cautions(over_rating, over_margin)
+
+
+def check_block(design: Design, evaluator: Evaluator, positions: np.ndarray,
+                parts: np.ndarray) -> list[CheckResult]:
+    """Check many complete value sets of one design in one batched solve.
+
+    Parameters
+    ----------
+    design : Design
+    evaluator : Evaluator
+        Bound to ``design``.
+    positions : numpy.ndarray
+        ``(K, resistors)`` effective ohm of every position.
+    parts : numpy.ndarray
+        ``(K, parts)`` ohm of every physical part.
+
+    Returns
+    -------
+    list of CheckResult
+        One per row, as :func:`check` gives it (without ``verify`` or spread).
+    """
+    positions = np.atleast_2d(np.asarray(positions, dtype=float))
+    parts = np.atleast_2d(np.asarray(parts, dtype=float))
+    result = evaluator.evaluate(positions, part_values=parts)
+    out = []
+    for row in range(len(positions)):
+        v = result.solution.node_voltages[row]
+        reports = _part_reports(design, evaluator, row, result, parts[row])
+        targets = target_reports(design, result.targets[row])
+        problems = [p for part in reports if part.kind == "resistor" for p in part_problems(part)]
+        problems += [_window_problem(t) for t in targets if not t.met]
+        max_voltage = float(v.max() - v.min())
+        out.append(CheckResult(
+            design=design,
+            values={ref: float(parts[row, c]) for c, ref in enumerate(design.part_refs)},
+            nodes={name: float(v[k]) for k, name in enumerate(evaluator.network.nodes)},
+            parts=tuple(reports), targets=targets,
+            supply_current=float(result.supply_current[row]), max_voltage=max_voltage,
+            cautions=tuple(_cautions(design, reports, max_voltage)), problems=tuple(problems),
+            verify_difference=None,
+            positions={r.ref: float(positions[row, k]) for k, r in enumerate(design.resistors)},
+        ))
+    return out
+
+
+def check(design: Design, *, values: Mapping[str, float] | None = None,
           verify: bool = False, fill_ideal: bool = True,
           spread: SpreadSettings | None = None) -> CheckResult:
     """Analyse a design whose resistor values are all known.
@@ -134,15 +260,18 @@ def check(design: Design, values: Mapping[str, float] | None = None,
     design : Design
         A validated design.
     values : mapping, optional
-        Resistances by reference designator (ohm) overriding the file's values.
+        Resistances by designator (ohm) overriding the file's values: a
+        position's effective value (``R1``) or each physical part of a
+        position of several parts (``R1A``, ``R1B``: a candidate's
+        ``values``).  Unknown names are refused.
     verify : bool
         Also solve by modified nodal analysis and report the largest difference.
     fill_ideal : bool
         Check free parts that have no value at their ideal continuous value
-        (see :func:`synth.ideal.ideal_values`) instead of refusing.
+        (see :func:`synth.search.ideal.ideal_values`) instead of refusing.
     spread : SpreadSettings, optional
         Also analyse the spread over tolerance, temperature and supply
-        (:func:`synth.spread.analyse_spread`).
+        (:func:`synth.spread.analyse.analyse_spread`).
 
     Returns
     -------
@@ -151,7 +280,8 @@ def check(design: Design, values: Mapping[str, float] | None = None,
     Raises
     ------
     DesignError
-        When a part has no value, or a regulating element cannot regulate.
+        When a part has no value, a name in ``values`` is unknown, or a
+        regulating element cannot regulate.
 
     Examples
     --------
@@ -166,62 +296,39 @@ def check(design: Design, values: Mapping[str, float] | None = None,
 
     Notes
     -----
-    Allowed dissipation is the package's rated power, derated linearly from
-    its rated ambient (70 °C) to zero at its zero-power temperature (155 °C),
-    times the design margin (50 % by default; common practice).
+    Each physical part's allowance is its package's rated power, derated
+    linearly from its rated ambient (70 °C) to zero at its zero-power
+    temperature (155 °C) at the design's hottest ambient, times the design's
+    power use limit (50 % by default; common practice), and its limiting
+    element voltage times the voltage use limit (80 %); see :mod:`synth.rating`.
     """
     given = dict(values or {})
     filled: dict[str, float] = {}
-    missing = [p.ref for p in design.resistors if p.value is None and p.ref not in given]
+    missing = [p.ref for p in design.resistors
+               if p.value is None and p.position.part_values is None and p.ref not in given
+               and not any(ref in given for ref in p.part_refs)]
     if missing and fill_ideal and design.targets:
         ideal = ideal_values(design)
         filled = {ref: ideal[ref] for ref in missing if ref in ideal}
         given.update(filled)
-    r = resolve_values(design, given)
-    ev = Evaluator(design, typical_resistances=r)
-    ev.check_regulators(r)
-    result = ev.evaluate(r[None, :])
-    v = result.solution.node_voltages[0]
-    parts = _part_reports(design, ev, r, result)
-    targets = target_reports(design, result.targets[0])
-    problems = []
-    over_rating: list[str] = []
-    over_margin: list[str] = []
-    for part in parts:
-        if part.utilization is not None and part.utilization > 1:
-            rating = design.packages[part.package or ""]
-            full = rating.rated_power_w * float(derating_factor(
-                design.ambient_c, rating.rated_ambient_c, rating.zero_power_c))
-            (over_rating if part.power > full else over_margin).append(part.ref)
-        if part.voltage_utilization is not None and part.voltage_utilization > 1:
-            if part.ref not in over_margin + over_rating:
-                over_margin.append(part.ref)
-        problems.extend(stress_problems(part))
-    for target in targets:
-        if not target.met:
-            problems.append(f"target {target.label} = {target.value:.6g} lies outside "
-                            f"{target.low:.6g}..{target.high:.6g}")
-    max_voltage = float(v.max() - v.min())
-    cautions = voltage_cautions(max_voltage) + power_cautions(over_rating, over_margin)
+    positions, parts = resolve_values(design, given)
+    ev = Evaluator(design, typical_resistances=positions)
+    ev.check_regulators(positions)
+    result = check_block(design, ev, positions[None, :], parts[None, :])[0]
     difference = None
     if verify:
+        solved = ev.evaluate(positions[None, :], part_values=parts[None, :]).solution
         net, src = ev.network, ev.nominal_sources
-        other = nodal_solve(net, r[None, :], src.voltages, src.currents, src.setpoints)
-        scale_v = max(float(np.abs(v).max()), 1e-300)
-        scale_i = max(float(np.abs(result.solution.branch_currents).max()), 1e-300)
+        other = nodal_solve(net, positions[None, :], src.voltages, src.currents, src.setpoints)
+        scale_v = max(float(np.abs(solved.node_voltages).max()), 1e-300)
+        scale_i = max(float(np.abs(solved.branch_currents).max()), 1e-300)
         difference = max(
-            float(np.abs(other.node_voltages - result.solution.node_voltages).max()) / scale_v,
-            float(np.abs(other.branch_currents - result.solution.branch_currents).max()) / scale_i,
+            float(np.abs(other.node_voltages - solved.node_voltages).max()) / scale_v,
+            float(np.abs(other.branch_currents - solved.branch_currents).max()) / scale_i,
         )
-    return CheckResult(
-        design=design,
-        values={res.ref: float(r[k]) for k, res in enumerate(design.resistors)},
-        nodes={name: float(v[k]) for k, name in enumerate(ev.network.nodes)},
-        parts=tuple(parts), targets=targets,
-        supply_current=float(result.supply_current[0]), max_voltage=max_voltage,
-        cautions=tuple(cautions), problems=tuple(problems), verify_difference=difference,
-        filled=filled,
-        spread=None if spread is None else analyse_spread(
-            design, {res.ref: float(r[k]) for k, res in enumerate(design.resistors)}, spread,
-            ev),
-    )
+    spread_result = None
+    if spread is not None:
+        spread_result = analyse_spread(design, result.positions, spread, ev,
+                                       part_values=parts)
+    return CheckResult(**{**result.__dict__, "verify_difference": difference,
+                          "filled": filled, "spread": spread_result})

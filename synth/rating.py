@@ -1,19 +1,44 @@
-"""Power derating of resistors with ambient temperature.
+"""What a resistor may dissipate and see: derating, allowances and their use.
 
-A resistor may dissipate its rated power up to the rated ambient (usually
-70 °C); above that the allowed dissipation falls linearly to zero at the
-zero-power temperature (usually 155 °C, the upper category temperature of
-thick-film chips).  The design then keeps a margin below that curve.
+This module is the only place that turns a package's ratings into a part's
+allowance.  A resistor may dissipate its rated power up to the rated ambient
+(usually 70 °C); above that the allowed dissipation falls linearly to zero at
+the zero-power temperature (usually 155 °C, the upper category temperature of
+thick-film chips).  A design then lets a part use only a share of that
+(``max_power_use``, 50 % by default) and of its limiting element voltage
+(``max_voltage_use``, 80 % by default).
+
+The temperature rule
+--------------------
+One physical quantity, one rule: a part's allowance is taken at the hottest
+ambient the design states, the larger of ``ambient`` and the top of
+``temperature``.  The nominal check, the search, the worst case and the Monte
+Carlo yield all use that same allowance.
+
+Limits met exactly
+------------------
+A value that meets its limit exactly meets it.  Limits are compared with a
+relative slack of :data:`LIMIT_SLACK` (1e-9), so float rounding of a design
+that lands on its limit (300 kΩ over 100 kΩ from 12 V drawing 30 µA against
+"at most 30 µA") does not turn it into a failure.
 """
 
 from __future__ import annotations
 
-__all__ = ["allowed_power", "derating_factor"]
+__all__ = [
+    "LIMIT_SLACK", "Allowance", "allowance", "allowed_power", "allowed_voltage",
+    "derating_factor", "exceeds", "falls_short", "use_of",
+]
+
+from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import ArrayLike
 
 from synth.catalog.packages import PackageRating
+
+LIMIT_SLACK = 1e-9
+"""Relative slack of every limit comparison: a value within 1e-9 of its limit meets it."""
 
 
 def derating_factor(
@@ -51,8 +76,8 @@ def derating_factor(
     return np.clip((zero_power_c - ambient) / span, 0.0, 1.0)
 
 
-def allowed_power(rating: PackageRating, ambient_c: ArrayLike, margin_frac: float) -> np.ndarray:
-    """Dissipation a design allows a part, W: rated power × derating × margin.
+def allowed_power(rating: PackageRating, ambient_c: ArrayLike, max_use: float) -> np.ndarray:
+    """Dissipation a design allows a part, W: rated power × derating × use limit.
 
     Parameters
     ----------
@@ -60,7 +85,7 @@ def allowed_power(rating: PackageRating, ambient_c: ArrayLike, margin_frac: floa
         The part's package ratings.
     ambient_c : float or array
         Ambient temperature, °C.
-    margin_frac : float
+    max_use : float
         Share of the derated rating the design permits (0.5 for 50 %).
 
     Examples
@@ -70,4 +95,119 @@ def allowed_power(rating: PackageRating, ambient_c: ArrayLike, margin_frac: floa
     0.05
     """
     factor = derating_factor(ambient_c, rating.rated_ambient_c, rating.zero_power_c)
-    return rating.rated_power_w * factor * margin_frac
+    return rating.rated_power_w * factor * max_use
+
+
+def allowed_voltage(rating: PackageRating, max_use: float) -> float:
+    """Voltage a design allows across a part, V: limiting element voltage × use limit.
+
+    Examples
+    --------
+    >>> from synth.catalog.packages import load_package_table
+    >>> allowed_voltage(load_package_table()["0603"], 0.8)
+    40.0
+    """
+    return rating.limiting_voltage_v * max_use
+
+
+@dataclass(frozen=True)
+class Allowance:
+    """One part's allowance at the design's hottest ambient.
+
+    Attributes
+    ----------
+    package : str
+        Package name.
+    ambient_c : float
+        The temperature the allowance holds at, °C.
+    rated_power_w : float
+        The package's rated dissipation at its rated ambient, W.
+    derated_power_w : float
+        The rated power derated to ``ambient_c`` (the part's own limit), W.
+    power_w : float
+        What the design lets it dissipate: derated power × ``max_power_use``, W.
+    limiting_voltage_v : float
+        The package's limiting element voltage, V.
+    voltage_v : float
+        What the design lets it see: limiting voltage × ``max_voltage_use``, V.
+    max_power_use, max_voltage_use : float
+        The design's use limits (fractions).
+    """
+
+    package: str
+    ambient_c: float
+    rated_power_w: float
+    derated_power_w: float
+    power_w: float
+    limiting_voltage_v: float
+    voltage_v: float
+    max_power_use: float
+    max_voltage_use: float
+
+
+def allowance(rating: PackageRating, *, ambient_c: float, max_power_use: float,
+              max_voltage_use: float) -> Allowance:
+    """The allowance of a part of ``rating`` at ``ambient_c`` under the design's use limits.
+
+    Examples
+    --------
+    >>> from synth.catalog.packages import load_package_table
+    >>> a = allowance(load_package_table()["0603"], ambient_c=25.0, max_power_use=0.5,
+    ...               max_voltage_use=0.8)
+    >>> a.power_w, a.voltage_v
+    (0.05, 40.0)
+    """
+    derated = float(rating.rated_power_w
+                    * derating_factor(ambient_c, rating.rated_ambient_c, rating.zero_power_c))
+    return Allowance(
+        package=rating.name, ambient_c=float(ambient_c), rated_power_w=rating.rated_power_w,
+        derated_power_w=derated, power_w=derated * max_power_use,
+        limiting_voltage_v=rating.limiting_voltage_v,
+        voltage_v=allowed_voltage(rating, max_voltage_use),
+        max_power_use=max_power_use, max_voltage_use=max_voltage_use,
+    )
+
+
+def use_of(value: ArrayLike, allowed: ArrayLike) -> np.ndarray:
+    """Share of an allowance used, ``value / allowed`` (inf where nothing is allowed).
+
+    Examples
+    --------
+    >>> use_of([0.025, 0.0], [0.05, 0.0]).tolist()
+    [0.5, 0.0]
+    """
+    value = np.asarray(value, dtype=float)
+    allowed = np.asarray(allowed, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        share = value / allowed
+    return np.where(allowed > 0, share, np.where(value > 0, np.inf, 0.0))
+
+
+def exceeds(value: ArrayLike, limit: ArrayLike) -> np.ndarray:
+    """True where ``value`` lies above an upper ``limit`` by more than :data:`LIMIT_SLACK`.
+
+    NaN limits (unrated parts, open windows) are never exceeded.
+
+    Examples
+    --------
+    >>> exceeds([3.0000000000000004e-05, 3.1e-05], 3e-05).tolist()
+    [False, True]
+    """
+    value = np.asarray(value, dtype=float)
+    limit = np.asarray(limit, dtype=float)
+    with np.errstate(invalid="ignore"):
+        return value > limit + LIMIT_SLACK * np.abs(limit)
+
+
+def falls_short(value: ArrayLike, limit: ArrayLike) -> np.ndarray:
+    """True where ``value`` lies below a lower ``limit`` by more than :data:`LIMIT_SLACK`.
+
+    Examples
+    --------
+    >>> falls_short([2.9999999999999996, 2.9], 3.0).tolist()
+    [False, True]
+    """
+    value = np.asarray(value, dtype=float)
+    limit = np.asarray(limit, dtype=float)
+    with np.errstate(invalid="ignore"):
+        return value < limit - LIMIT_SLACK * np.abs(limit)

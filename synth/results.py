@@ -3,12 +3,71 @@
 
 from __future__ import annotations
 
-__all__ = ["Candidate", "CheckResult", "PartReport", "SynthesisResult", "TargetReport"]
+__all__ = [
+    "PROBLEM_KINDS", "Candidate", "CheckResult", "PartReport", "Problem", "SynthesisResult",
+    "TargetReport",
+]
 
+import math
 from dataclasses import dataclass, field
 
 from synth.design.model import Design
 from synth.spread.records import SpreadResult
+from synth.units import format_eng
+
+PROBLEM_KINDS = ("power", "voltage", "window")
+"""A part over its power allowance, over its voltage allowance, a target out of its window."""
+
+
+@dataclass(frozen=True)
+class Problem:
+    """One thing that fails, as data: the text report renders it.
+
+    Attributes
+    ----------
+    kind : {"power", "voltage", "window"}
+        See :data:`PROBLEM_KINDS`.
+    subject : str
+        The physical part's designator, or the target's label.
+    value : float
+        What the part dissipates or sees, or the target's value.
+    limit : float
+        The allowance broken, or the window edge the value lies beyond.
+    unit : str
+        Unit of ``value`` and ``limit`` (W, V, A, Ω, "" for a ratio).
+    low, high : float or None
+        The whole window of a target (None for a part's limit).
+    """
+
+    kind: str
+    subject: str
+    value: float
+    limit: float
+    unit: str
+    low: float | None = None
+    high: float | None = None
+
+    def __str__(self) -> str:
+        if self.kind == "power":
+            return (f"{self.subject} dissipates {format_eng(self.value, 'W')}, over its allowed "
+                    f"{format_eng(self.limit, 'W')}")
+        if self.kind == "voltage":
+            return (f"{self.subject} sees {format_eng(self.value, 'V')}, over its allowed "
+                    f"{format_eng(self.limit, 'V')}")
+        return (f"target {self.subject} = {format_eng(self.value, self.unit, 6)} lies outside "
+                f"{_window(self.low, self.high, self.unit)}")
+
+
+def _window(low: float | None, high: float | None, unit: str) -> str:
+    lo = -math.inf if low is None else low
+    hi = math.inf if high is None else high
+    if math.isinf(lo) and math.isinf(hi):
+        return "any value"
+    if math.isinf(lo):
+        return f"at most {format_eng(hi, unit, 6)}"
+    if math.isinf(hi):
+        return f"at least {format_eng(lo, unit, 6)}"
+    return f"{format_eng(lo, unit, 6)} .. {format_eng(hi, unit, 6)}"
 
 
 @dataclass(frozen=True)
@@ -40,6 +99,9 @@ class PartReport:
         design's voltage margin.
     voltage_utilization : float or None
         ``voltage / allowed_voltage``.
+    position : str or None
+        The resistor position this physical part belongs to (its own
+        designator for a single part; ``"R1"`` for ``"R1A"``); None for sources.
     """
 
     ref: str
@@ -55,6 +117,7 @@ class PartReport:
     limiting_voltage: float | None = None
     allowed_voltage: float | None = None
     voltage_utilization: float | None = None
+    position: str | None = None
 
 
 @dataclass(frozen=True)
@@ -72,10 +135,23 @@ class TargetReport:
     low, high : float
         The hard window (``-inf``/``inf`` where open).
     error : float or None
-        ``(value - goal) / |goal|`` when there is a goal (absolute error when
-        the goal is zero).
+        The goal's error by :meth:`synth.design.model.Target.error`:
+        ``(value - goal) / |goal|`` for a non-zero goal, ``value - goal`` in
+        the target's unit for a zero goal; None without a goal.
     met : bool
-        True when the value lies inside the window.
+        True when the value lies inside the window (edges included).
+    relative : bool
+        True when ``error`` is a fraction, False when it is in ``unit``.
+    status : str
+        ``"met"`` (inside its window), ``"out of window"``, ``"soft goal"``
+        (a goal without a window: as near as the catalogue and the limits
+        allow), ``"goal missed"`` (a soft goal that a limit costs accuracy;
+        see ``binding`` and ``unlimited_error``) or ``"out of band"`` (met
+        at nominal values, broken on the basis the design requires).
+    binding : str or None
+        For ``"goal missed"``: the limit that costs the accuracy.
+    unlimited_error : float or None
+        For ``"goal missed"``: the error the catalogue reaches without that limit.
     """
 
     label: str
@@ -87,6 +163,10 @@ class TargetReport:
     high: float
     error: float | None
     met: bool
+    relative: bool = True
+    status: str = "met"
+    binding: str | None = None
+    unlimited_error: float | None = None
 
 
 @dataclass(frozen=True)
@@ -97,7 +177,8 @@ class CheckResult:
     ----------
     design : Design
     values : dict of str to float
-        Resistance used for each resistor, ohm.
+        Resistance of every physical part, ohm (``R1A``, ``R1B`` for a
+        position of several parts).
     nodes : dict of str to float
         Node voltages, V.
     parts : tuple of PartReport
@@ -108,8 +189,8 @@ class CheckResult:
     max_voltage : float
         Largest voltage between any two nodes, V.
     cautions : tuple of str
-    problems : tuple of str
-        One line per part over its allowance or target missed.
+    problems : tuple of Problem
+        One record per part over its allowance or target out of its window.
     verify_difference : float or None
         Largest difference between mesh and nodal results, relative to the
         largest voltage or current (None unless ``verify``).
@@ -117,6 +198,8 @@ class CheckResult:
         Free parts that had no value and were checked at their ideal value, ohm.
     spread : SpreadResult or None
         Tolerance, temperature and supply spread, when asked for.
+    positions : dict of str to float
+        Effective resistance of every position, ohm.
     """
 
     design: Design
@@ -127,10 +210,11 @@ class CheckResult:
     supply_current: float
     max_voltage: float
     cautions: tuple[str, ...]
-    problems: tuple[str, ...]
+    problems: tuple[Problem, ...]
     verify_difference: float | None
     filled: dict[str, float] = field(default_factory=dict)
     spread: SpreadResult | None = None
+    positions: dict[str, float] = field(default_factory=dict)
 
     @property
     def ok(self) -> bool:
@@ -163,7 +247,7 @@ class Candidate:
         A.
     feasible : bool
         Every window and limit met.
-    problems : tuple of str
+    problems : tuple of Problem
         What fails, when not feasible.
     check : CheckResult
         The full re-check of the candidate.
@@ -180,7 +264,7 @@ class Candidate:
     parts: tuple[PartReport, ...]
     supply_current: float
     feasible: bool
-    problems: tuple[str, ...]
+    problems: tuple[Problem, ...]
     check: CheckResult
     spread: SpreadResult | None = None
 

@@ -2,7 +2,7 @@
 
 It builds every free position's choices, finds the ideal continuous values,
 runs the exact branch-and-bound search, then re-checks each returned
-candidate with a full mesh solve (:func:`synth.analysis.check`) so that the
+candidate with a full mesh solve (:func:`synth.checking.check_block`, one batched solve) so that the
 numbers shown are those of the real network, loads and sources included.
 When no candidate meets every window and limit, a relaxed search ranks the
 nearest designs by their largest violation and names the binding target or
@@ -20,14 +20,15 @@ from dataclasses import replace
 import numpy as np
 
 from synth.catalog.series import coarsest_series
-from synth.checking import check, stress_problems
+from synth.checking import check_block
 from synth.circuit.measure import Evaluator
 from synth.design.model import Design
 from synth.errors import DesignError
-from synth.results import Candidate, PartReport, SynthesisResult, TargetReport
+from synth.results import Candidate, SynthesisResult, TargetReport
 from synth.search.branch_and_bound import SearchOutcome, search
 from synth.search.choices import Choices, choices_for, combination_count
 from synth.search.ideal import ideal_values
+from synth.search.problem import SearchProblem
 from synth.spread.analyse import analyse_spread
 from synth.spread.records import SpreadSettings
 from synth.spread.worst_case import WorstCase
@@ -53,101 +54,64 @@ def _series_label(value: float, choice: Choices) -> str:
     return coarsest_series(value) or choice.label
 
 
-def _split_part(part: PartReport, a: float, b: float, how: str) -> list[PartReport]:
+def _candidates(design: Design, evaluator: Evaluator, choices: list[Choices],
+                indices: np.ndarray) -> list[Candidate]:
+    """Re-check ranked candidates in one batched solve and build their records."""
+    if not len(indices):
+        return []
+    problem = SearchProblem(design, evaluator, choices, relaxed=False)
+    positions = problem.resistances(indices)
+    parts = problem.part_values(indices)
+    evaluator.check_regulators(positions[:1])
+    checked = check_block(design, evaluator, positions, parts)
     out = []
-    for suffix, value in (("A", a), ("B", b)):
-        if how == "series":
-            current, voltage = part.current, abs(part.current) * value
-        else:
-            voltage = part.voltage
-            current = part.current * (part.value / value)
-        power = current * current * value
-        out.append(replace(
-            part, ref=part.ref + suffix, value=value, current=current, voltage=voltage,
-            power=power,
-            utilization=None if part.allowed_power is None else power / part.allowed_power,
-            voltage_utilization=None if part.allowed_voltage is None
-            else voltage / part.allowed_voltage,
+    for rank, (row, result) in enumerate(zip(indices, checked, strict=True), start=1):
+        values: dict[str, float] = {}
+        labels: dict[str, str] = {}
+        for p, choice in enumerate(choices):
+            for ref, value in zip(choice.position.part_refs, choice.parts[int(row[p])],
+                                  strict=True):
+                values[ref] = float(value)
+                labels[ref] = _series_label(float(value), choice)
+        out.append(Candidate(
+            rank=rank, values=values, positions=dict(result.positions), series=labels,
+            objective=_objective(design, result.targets), targets=result.targets,
+            parts=result.parts, supply_current=result.supply_current,
+            feasible=not result.problems, problems=result.problems, check=result,
         ))
     return out
 
 
-def _candidate(design: Design, choices: list[Choices], indices: np.ndarray, rank: int,
-               objective: float) -> Candidate:
-    positions = {}
-    values: dict[str, float] = {}
-    labels: dict[str, str] = {}
-    splits = {}
-    for p, choice in enumerate(choices):
-        i = int(indices[p])
-        positions[choice.ref] = float(choice.values[i])
-        if choice.combine is None:
-            values[choice.ref] = float(choice.values[i])
-            labels[choice.ref] = _series_label(values[choice.ref], choice)
-        else:
-            a, b = float(choice.first[i]), float(choice.second[i])
-            values[choice.ref + "A"], values[choice.ref + "B"] = a, b
-            labels[choice.ref + "A"] = _series_label(a, choice)
-            labels[choice.ref + "B"] = _series_label(b, choice)
-            splits[choice.ref] = (a, b, choice.combine)
-    result = check(design, values=positions)
-    parts: list[PartReport] = []
-    problems = [p for p in result.problems]
-    for part in result.parts:
-        if part.ref in splits:
-            a, b, how = splits[part.ref]
-            pieces = _split_part(part, a, b, how)
-            parts.extend(pieces)
-            problems = [p for p in problems if not p.startswith(f"{part.ref} ")]
-            for piece in pieces:
-                problems.extend(stress_problems(piece))
-        else:
-            parts.append(part)
-    all_positions = dict(result.values)
-    return Candidate(
-        rank=rank, values=values, positions=all_positions, series=labels,
-        objective=objective, targets=result.targets, parts=tuple(parts),
-        supply_current=result.supply_current, feasible=not problems,
-        problems=tuple(problems), check=result,
-    )
-
-
 def _objective(design: Design, reports: tuple[TargetReport, ...]) -> float:
-    """Largest relative error over ``equals`` targets (a zero goal: error / window)."""
-    worst = 0.0
-    for target, report in zip(design.targets, reports, strict=True):
-        if target.equals is None:
-            continue
-        scale = abs(target.equals) if target.equals else (target.within_abs or 1.0)
-        worst = max(worst, abs(report.value - target.equals) / scale)
-    return worst
+    """Largest ``|value - goal| / scale`` over ``equals`` targets (see Target.objective)."""
+    terms = [float(target.objective(report.value))
+             for target, report in zip(design.targets, reports, strict=True)
+             if target.equals is not None]
+    return max(terms, default=0.0)
 
 
 def _binding(candidate: Candidate) -> str:
+    """The problem the nearest design breaks most, in words."""
     worst, text = -math.inf, "a target or limit"
-    for t in candidate.targets:
-        if t.met:
-            continue
-        edge = t.low if t.value < t.low else t.high
-        scale = abs(t.goal) if t.goal else max(abs(edge), 1e-300)
-        gap = abs(t.value - edge) / scale
+    for problem in candidate.problems:
+        if problem.kind == "window":
+            target = next(t for t in candidate.targets if t.label == problem.subject)
+            scale = abs(target.goal) if target.goal else max(abs(problem.limit), 1e-300)
+            gap = abs(problem.value - problem.limit) / scale
+            described = f"target {problem.subject!r} ({problem})"
+        else:
+            gap = problem.value / problem.limit - 1 if problem.limit > 0 else math.inf
+            what = "dissipation" if problem.kind == "power" else "voltage"
+            described = (f"the {what} limit of {problem.subject} ({problem.value:.4g} "
+                         f"{problem.unit} against {problem.limit:.4g} {problem.unit} allowed)")
         if gap > worst:
-            window = f"{t.low:.6g}..{t.high:.6g}".replace("-inf..", "<= ").replace("..inf", "")
-            worst, text = gap, (f"target {t.label!r} (nearest design gives {t.value:.6g}, "
-                                f"window {window})")
-    for p in candidate.parts:
-        for use, what, limit, unit in ((p.utilization, "dissipation", p.allowed_power, "W"),
-                                       (p.voltage_utilization, "voltage", p.allowed_voltage,
-                                        "V")):
-            if use is not None and use > 1 and use - 1 > worst:
-                amount = p.power if what == "dissipation" else p.voltage
-                worst, text = use - 1, (f"the {what} limit of {p.ref} ({amount:.4g} {unit} "
-                                        f"against {limit:.4g} {unit} allowed)")
+            worst, text = gap, described
     return text
 
 
 def synthesize(
     design: Design,
+    *,
     top: int = 10,
     time_limit_s: float | None = None,
     progress: Callable[[float], None] | None = None,
@@ -224,10 +188,7 @@ def synthesize(
     else:
         ranked, proven = outcome.ranked, outcome.proven
         evaluated, elapsed = outcome.evaluated, outcome.elapsed_s
-    candidates = []
-    for rank, row in enumerate(ranked.indices, start=1):
-        candidate = _candidate(design, choices, row, rank, 0.0)
-        candidates.append(replace(candidate, objective=_objective(design, candidate.targets)))
+    candidates = _candidates(design, evaluator, choices, ranked.indices)
     if spread is not None or rank_by == "yield":
         settings = spread or SpreadSettings()
         candidates = [replace(c, spread=analyse_spread(design, c.positions, settings, evaluator))

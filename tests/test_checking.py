@@ -7,6 +7,7 @@ import pytest
 from synth.checking import check
 from synth.design.reader import design_from_dict
 from synth.errors import DesignError
+from synth.report.check import check_text
 
 from conftest import divider
 
@@ -16,7 +17,8 @@ def test_divider_stress_and_allowance():
     assert result.nodes["out"] == pytest.approx(5.0, rel=1e-14)
     r1 = result.parts[0]
     assert r1.current == pytest.approx(0.5e-3) and r1.power == pytest.approx(2.5e-3)
-    # 0603: 1/10 W at 70 °C [CP], full rating at 25 °C, 50 % margin
+    # 0603: 1/10 W at 70 °C [CP-chip-ratings], full rating at 25 °C [CP-derating],
+    # 50 % margin [CP-margin]
     assert r1.allowed_power == pytest.approx(0.05) and r1.utilization == pytest.approx(0.05)
     assert r1.allowed_voltage == pytest.approx(50 * 0.8)
     assert result.supply_current == pytest.approx(0.5e-3)
@@ -25,32 +27,39 @@ def test_divider_stress_and_allowance():
 
 
 def test_derated_allowance_at_high_ambient():
-    # linear derating 70 -> 155 °C: 85 °C leaves 82.35 % (FACTS.md 3 [CALC])
-    result = check(divider(ambient="85 C", margin="60%"))
+    # linear derating 70 -> 155 °C [CP-derating]: 85 °C leaves 82.35 % [CALC-derating]
+    result = check(divider(ambient="85 C", max_power_use="60%"))
     assert result.parts[0].allowed_power == pytest.approx(0.1 * (70 / 85) * 0.6)
 
 
 def test_overload_is_a_problem_with_a_warning():
     result = check(divider("100", "100", "10 V"))
     assert not result.ok
-    assert any("R1 dissipates 0.25 W, over its allowed 0.05 W" in p for p in result.problems)
+    assert any(p.kind == "power" and p.subject == "R1" and p.value == pytest.approx(0.25)
+               and p.limit == pytest.approx(0.05) for p in result.problems)
     assert any("can char the board" in c for c in result.cautions)
+    assert any(c.startswith("WARNING: R1, R2 dissipate more than their packages can take")
+               for c in result.cautions)
 
 
 def test_over_margin_only_is_a_caution():
     # 60 mW in a 0603: over the 50 mW allowance, under the 100 mW rating
     result = check(divider("1.5k", "1.5k", "19 V"))
     assert not result.ok
-    assert any("use more than the design margin" in c for c in result.cautions)
+    assert any("R1, R2 use more of their derated power or limiting element voltage than the "
+               "design allows (max_power_use, max_voltage_use)" in c for c in result.cautions)
 
 
 def test_limiting_voltage():
-    # 45 V across a 0603 (limiting element voltage 50 V [CP], 80 % margin: 40 V)
+    # 45 V across a 0603 (limiting element voltage 50 V [CP-chip-ratings], 80 % margin
+    # [CP-margin]: 40 V)
     result = check(divider("1M", "10M", "49.5 V"))
-    assert any("R2 sees 45 V, over its allowed 40 V" in p for p in result.problems)
+    assert any(p.kind == "voltage" and p.subject == "R2" and p.value == pytest.approx(45)
+               and p.limit == pytest.approx(40) for p in result.problems)
 
 
 @pytest.mark.parametrize(("supply", "fragment"), [
+    # the project's thresholds [CP-touch-dc]; the 120 V DC limit of IEC 61140 [IEC61140-ELV]
     ("48 V", None),
     ("100 V", "Caution: 100 V DC is above 60 V DC"),
     ("230 V", "WARNING: 230 V DC is above the 120 V DC extra-low-voltage limit (IEC 61140)"),
@@ -105,8 +114,38 @@ def test_free_part_without_value_is_named():
         "target": [{"voltage": "out", "equals": "3 V"}],
     })
     result = check(with_target)
-    # ideal: 12 V * 10k / (R1 + 10k) = 3 V  ->  R1 = 30k (divider formula)
+    # ideal: 12 V * 10k / (R1 + 10k) = 3 V  ->  R1 = 30k (divider formula) [HB-divider]
     assert result.filled["R1"] == pytest.approx(30e3, rel=1e-6)
     assert result.nodes["out"] == pytest.approx(3.0, rel=1e-6)
     with pytest.raises(DesignError, match="still need a value"):
         check(with_target, fill_ideal=False)
+
+
+def test_check_report_leads_with_the_verdict_and_ends_with_the_nodes():
+    # the order of the job: verdict, targets, each part's stress, node voltages last
+    design = design_from_dict({
+        "design": {"title": "divider", "max_power_use": "50%"},
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "value": "100 V"}],
+        "resistor": [{"ref": "R1", "nodes": ["in", "out"], "value": "20k", "package": "0603"},
+                     {"ref": "R2", "nodes": ["out", "gnd"], "value": "10k"}],
+        "target": [{"voltage": "out", "equals": "4 V", "within": "1%"}],
+    })
+    result = check(design, verify=True)
+    lines = check_text(result).splitlines()
+
+    def where(start: str) -> int:
+        return next(k for k, line in enumerate(lines) if line.startswith(start))
+
+    assert where("result: FAILS: ") == 4 and "R1" in lines[4] and "voltage at out" in lines[4]
+    assert where("Caution: 100 V DC is above 60 V DC") == 5
+    assert where("WARNING: R1 dissipates more than its package can take") == 6
+    assert (where("result:") < where("target ") < where("voltage at out")
+            < where("part ") < where("R1 ") < where("note: parts without a package")
+            < where("supply current:") < where("verify:") < where("node ")
+            < where("gnd ") < where("in ") < where("out "))
+    assert lines[-1].split() == ["out", "33.3333", "V"]
+    # everything is still there
+    assert lines[2] == ("ambient 25 °C; a part may use up to 50 % of its derated power and "
+                        "80 % of its limiting element voltage")
+    assert any(line.startswith("gnd ") for line in lines)

@@ -130,7 +130,7 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
             checked = check(design)
             if not checked.ok:
                 raise InfeasibleError(f"{design.origin}: network {net.name!r} fails: "
-                                      + "; ".join(checked.problems))
+                                      + "; ".join(map(str, checked.problems)))
             objective = max((abs(t.error) for t in checked.targets if t.error is not None),
                             default=0.0)
             candidates = [(1, dict(checked.values), objective)]

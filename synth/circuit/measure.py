@@ -20,7 +20,6 @@ from synth.circuit.mesh import MeshSolution, MeshSolver
 from synth.circuit.network import Network, build_network
 from synth.design.model import Design, Target
 from synth.errors import DesignError
-from synth.rating import allowed_power
 
 
 @dataclass(frozen=True)
@@ -62,7 +61,13 @@ class Evaluation:
     supply_current : numpy.ndarray
         ``(N,)`` A: sum of the currents delivered by voltage sources and
         regulating elements (a source that absorbs current, such as a
-        forward-biased LED modelled as a voltage drop, counts zero).
+        forward-biased LED modelled as a voltage drop, counts zero).  An
+        amplifier's output current counts too: its output is a regulating
+        element fed from the amplifier's supply.
+    part_current, part_voltage, part_power : numpy.ndarray
+        ``(N, parts)`` each physical part's current (A), voltage (V, absolute)
+        and dissipation (W), in the order of :attr:`Design.part_refs`, from
+        :meth:`Position.split`.
     """
 
     solution: MeshSolution
@@ -70,6 +75,9 @@ class Evaluation:
     resistor_power: np.ndarray
     resistor_voltage: np.ndarray
     supply_current: np.ndarray
+    part_current: np.ndarray
+    part_voltage: np.ndarray
+    part_power: np.ndarray
 
 
 class Evaluator:
@@ -100,15 +108,19 @@ class Evaluator:
         refs = self.network.branch_refs
         self.branch_index = {ref: k for k, ref in enumerate(refs)}
         self.resistor_index = {r.ref: k for k, r in enumerate(design.resistors)}
-        rated = [design.rating(r) for r in design.resistors]
-        self.allowed_power = np.array(
-            [np.nan if p is None else float(allowed_power(p, design.ambient_c, design.margin_frac))
-             for p in rated]
-        )
-        self.allowed_voltage = np.array(
-            [np.nan if p is None else p.limiting_voltage_v * design.voltage_margin_frac
-             for p in rated]
-        )
+        self.part_refs = design.part_refs
+        self.part_columns: list[slice] = []
+        start = 0
+        for resistor in design.resistors:
+            self.part_columns.append(slice(start, start + resistor.position.count))
+            start += resistor.position.count
+        self.multi_part = [k for k, r in enumerate(design.resistors) if r.position.count > 1]
+        allowances = [design.allowance(r) for r in design.resistors for _ in r.part_refs]
+        self.allowed_power = np.array([np.nan if a is None else a.power_w for a in allowances])
+        """Per physical part, W (NaN for an unrated part), at the design's rating ambient."""
+        self.allowed_voltage = np.array([np.nan if a is None else a.voltage_v
+                                         for a in allowances])
+        """Per physical part, V (NaN for an unrated part)."""
         n_cv = sum(1 for c in design.controlled if c.voltage_output)
         n_ci = len(design.controlled) - n_cv
         self.nominal_sources = SourceValues(
@@ -157,15 +169,58 @@ class Evaluator:
         v = sol.node_voltages
         return v[:, self.node_index[plus]] - v[:, self.node_index[minus]]
 
-    def evaluate(self, resistances: ArrayLike, sources: SourceValues | None = None) -> Evaluation:
+    def part_values(self, resistances: np.ndarray) -> np.ndarray:
+        """Physical part values ``(N, parts)`` for position values ``(N, resistors)``, ohm.
+
+        A position of several parts takes the part values its file gives when
+        they make up the position's value, and otherwise equal parts.
+        """
+        r = np.atleast_2d(np.asarray(resistances, dtype=float))
+        out = np.empty((len(r), len(self.part_refs)))
+        for k, resistor in enumerate(self.design.resistors):
+            cols = self.part_columns[k]
+            position = resistor.position
+            if position.count == 1:
+                out[:, cols.start] = r[:, k]
+                continue
+            out[:, cols] = position.equal_split(r[:, k])
+            if position.part_values is not None:
+                given = np.array(position.part_values)
+                same = np.isclose(r[:, k], position.effective(given[None, :])[0], rtol=1e-12)
+                out[same, cols] = given
+        return out
+
+    def effective(self, part_values: np.ndarray) -> np.ndarray:
+        """Position values ``(N, resistors)`` from physical part values ``(N, parts)``, ohm."""
+        parts = np.atleast_2d(np.asarray(part_values, dtype=float))
+        if not self.multi_part:
+            return parts.copy()
+        out = np.empty((len(parts), len(self.design.resistors)))
+        for k, resistor in enumerate(self.design.resistors):
+            cols = self.part_columns[k]
+            out[:, k] = (parts[:, cols.start] if resistor.position.count == 1
+                         else resistor.position.effective(parts[:, cols]))
+        return out
+
+    def part_resistor(self) -> np.ndarray:
+        """Index of the position each physical part belongs to, ``(parts,)``."""
+        return np.repeat(np.arange(len(self.design.resistors)),
+                         [r.position.count for r in self.design.resistors])
+
+    def evaluate(self, resistances: ArrayLike, sources: SourceValues | None = None,
+                 part_values: np.ndarray | None = None) -> Evaluation:
         """Solve a block of candidates and measure every target and part.
 
         Parameters
         ----------
         resistances : array_like
-            ``(N, resistors)`` ohm, in the design's resistor order.
+            ``(N, resistors)`` ohm, in the design's resistor order: each
+            position's effective value.
         sources : SourceValues, optional
             Source values; the design's nominal values by default.
+        part_values : numpy.ndarray, optional
+            ``(N, parts)`` ohm of every physical part (see :meth:`part_values`,
+            the default); only the columns of positions of several parts are read.
 
         Returns
         -------
@@ -184,8 +239,31 @@ class Evaluator:
             [self._target_values(t, r, sol, power, gains) for t in self.design.targets]
         ) if self.design.targets else np.zeros((len(r), 0))
         supply = np.clip(sol.branch_currents[:, self._supply_columns], 0.0, None).sum(axis=1)
+        part_i, part_u, part_p = self._split(r, i_r, across, power, part_values)
         return Evaluation(solution=sol, targets=targets, resistor_power=power,
-                          resistor_voltage=across, supply_current=supply)
+                          resistor_voltage=across, supply_current=supply,
+                          part_current=part_i, part_voltage=part_u, part_power=part_p)
+
+    def _split(self, r: np.ndarray, current: np.ndarray, across: np.ndarray, power: np.ndarray,
+               part_values: np.ndarray | None
+               ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        if not self.multi_part:
+            return current, across, power
+        if part_values is None:
+            part_values = self.part_values(r)
+        n = len(self.part_refs)
+        part_i, part_u, part_p = (np.empty((len(r), n)) for _ in range(3))
+        for k, resistor in enumerate(self.design.resistors):
+            cols = self.part_columns[k]
+            if resistor.position.count == 1:
+                part_i[:, cols.start] = current[:, k]
+                part_u[:, cols.start] = across[:, k]
+                part_p[:, cols.start] = power[:, k]
+                continue
+            shares = resistor.position.split(part_values[:, cols], current[:, k])
+            part_i[:, cols], part_u[:, cols], part_p[:, cols] = (
+                shares.current, shares.voltage, shares.power)
+        return part_i, part_u, part_p
 
     def _target_values(self, target: Target, r: np.ndarray, sol: MeshSolution,
                        power: np.ndarray, gains: np.ndarray | None = None) -> np.ndarray:

@@ -1,11 +1,17 @@
-"""The validated records of a design: sources, resistors, regulators, active parts, targets.
+"""The validated records of a design: sources, positions, regulators, active parts, targets.
+
+A resistor entry of a design file is a *position*: one physical part, or
+N >= 2 parts in series or in parallel between the same two nodes
+(:class:`Position`).  The network sees the position's effective resistance;
+every physical part's current, voltage and dissipation comes from
+:meth:`Position.split`, the one place that divides a position into its parts.
 """
 
 from __future__ import annotations
 
 __all__ = [
-    "TARGET_KINDS", "TARGET_UNITS", "ControlledSource", "Design", "Regulator", "Resistor",
-    "Source", "Target", "Transistor",
+    "MAX_PARTS", "PART_SUFFIXES", "TARGET_KINDS", "TARGET_UNITS", "ControlledSource", "Design",
+    "PartShares", "Position", "Regulator", "Resistor", "Source", "Target", "Transistor",
 ]
 
 import math
@@ -13,10 +19,125 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
+import numpy as np
+
 from synth.catalog.packages import PackageRating
+from synth.rating import Allowance, allowance
 
 TARGET_KINDS = ("voltage", "current", "ratio", "power", "resistance")
 TARGET_UNITS = {"voltage": "V", "current": "A", "power": "W", "resistance": "Ω", "ratio": ""}
+MAX_PARTS = 6
+"""Most physical parts one position may hold (series strings of 3-6 parts carry high voltage)."""
+PART_SUFFIXES = "ABCDEF"
+"""Designator suffixes of a position's parts: R1 of three parts is R1A, R1B, R1C."""
+
+
+@dataclass(frozen=True)
+class PartShares:
+    """How a position's current, voltage and dissipation divide among its parts.
+
+    Every array is ``(M, parts)``: candidate axis first, then the position's
+    parts in designator order.
+
+    Attributes
+    ----------
+    current : numpy.ndarray
+        A through each part, in the position's sign convention.
+    voltage : numpy.ndarray
+        V across each part (absolute).
+    power : numpy.ndarray
+        W dissipated in each part.
+    """
+
+    current: np.ndarray
+    voltage: np.ndarray
+    power: np.ndarray
+
+
+@dataclass(frozen=True)
+class Position:
+    """A resistor position: one part, or N >= 2 parts in series or in parallel.
+
+    Attributes
+    ----------
+    ref : str
+        The position's designator (``"R1"``).
+    arrangement : {"single", "series", "parallel"}
+        How its parts are joined.
+    count : int
+        Number of physical parts (1 for a single part).
+    equal_parts : bool
+        Every part takes the same value (a string with an equal voltage share).
+    part_values : tuple of float or None
+        Each part's resistance, ohm, when the file gives them (a fixed
+        position, or the values ``check`` uses).
+
+    Examples
+    --------
+    >>> p = Position("R1", "series", 2)
+    >>> p.part_refs
+    ('R1A', 'R1B')
+    >>> float(p.effective(np.array([[442e3, 432e3]]))[0])
+    874000.0
+    >>> s = p.split(np.array([[442e3, 432e3]]), np.array([400 / 874e3]))
+    >>> [round(float(v), 2) for v in s.voltage[0]]
+    [202.29, 197.71]
+    """
+
+    ref: str
+    arrangement: str = "single"
+    count: int = 1
+    equal_parts: bool = False
+    part_values: tuple[float, ...] | None = None
+
+    @property
+    def part_refs(self) -> tuple[str, ...]:
+        """Designators of the physical parts: ``("R1",)`` or ``("R1A", "R1B", ...)``."""
+        if self.count == 1:
+            return (self.ref,)
+        return tuple(self.ref + PART_SUFFIXES[k] for k in range(self.count))
+
+    def effective(self, part_values: np.ndarray) -> np.ndarray:
+        """Effective resistance of ``(M, count)`` part values, ohm, ``(M,)``."""
+        values = np.asarray(part_values, dtype=float)
+        if self.arrangement == "parallel":
+            return 1.0 / np.sum(1.0 / values, axis=1)
+        return np.sum(values, axis=1)
+
+    def equal_split(self, effective: np.ndarray) -> np.ndarray:
+        """Part values ``(M, count)`` of equal parts giving ``effective`` ohm."""
+        effective = np.asarray(effective, dtype=float)
+        each = (effective / self.count if self.arrangement == "series"
+                else effective * self.count)
+        return np.repeat(each[:, None], self.count, axis=1)
+
+    def split(self, part_values: np.ndarray, current: np.ndarray) -> PartShares:
+        """Each part's current, voltage and dissipation from the position's current.
+
+        Parameters
+        ----------
+        part_values : numpy.ndarray
+            ``(M, count)`` ohm.
+        current : numpy.ndarray
+            ``(M,)`` A through the position (its sign kept).
+
+        Notes
+        -----
+        Series parts carry the position's current, each seeing I·R_k; parallel
+        parts share the position's voltage V = I·R_eff, each carrying V/R_k
+        (Ohm's and Kirchhoff's laws).
+        """
+        values = np.asarray(part_values, dtype=float)
+        current = np.asarray(current, dtype=float)
+        if self.arrangement == "parallel":
+            across = current * self.effective(values)
+            part_current = across[:, None] / values
+            part_voltage = np.repeat(np.abs(across)[:, None], self.count, axis=1)
+        else:
+            part_current = np.repeat(current[:, None], self.count, axis=1)
+            part_voltage = np.abs(current)[:, None] * values
+        return PartShares(current=part_current, voltage=part_voltage,
+                          power=part_current * part_current * values)
 
 
 @dataclass(frozen=True)
@@ -71,8 +192,8 @@ class Resistor:
         Temperature coefficient, fraction per kelvin.
     package : str or None
         Package name in the design's package table, or None (not rated).
-    combine : {None, "series", "parallel"}
-        Two parts from the same choice fill this position.
+    position : Position
+        Its physical parts: one, or N >= 2 in series or in parallel.
     bom : bool
         True when the part goes on the bill of materials; False for resistors
         that model something else (a load, a sensor, an input resistance).
@@ -87,8 +208,18 @@ class Resistor:
     tolerance: float
     tcr: float
     package: str | None
-    combine: str | None
+    position: Position
     bom: bool = True
+
+    @property
+    def combine(self) -> str | None:
+        """``"series"`` or ``"parallel"`` for a position of several parts, else None."""
+        return None if self.position.count == 1 else self.position.arrangement
+
+    @property
+    def part_refs(self) -> tuple[str, ...]:
+        """Designators of the physical parts of this position."""
+        return self.position.part_refs
 
     @property
     def free(self) -> bool:
@@ -249,6 +380,55 @@ class Target:
             high = min(high, self.at_most)
         return low, high
 
+    @property
+    def relative(self) -> bool:
+        """True when the error is relative: the target has a non-zero goal."""
+        return self.equals is not None and self.equals != 0
+
+    @property
+    def scale(self) -> float:
+        """What one unit of the ranking objective means for this target.
+
+        ``|equals|`` for a non-zero goal (the objective is then the relative
+        error); the half window for a zero goal (a zero goal needs an absolute
+        ``within``); for bound-only targets the largest finite bound (or 1),
+        used to rank violations.
+        """
+        if self.equals is not None and self.equals != 0:
+            return abs(self.equals)
+        if self.within_abs is not None:
+            return self.within_abs
+        low, high = self.bounds
+        finite = [abs(b) for b in (low, high) if math.isfinite(b) and b != 0]
+        return max(finite) if finite else 1.0
+
+    def error(self, value: np.ndarray | float) -> np.ndarray:
+        """The error of achieved values against the goal: THE rule for every report.
+
+        Relative, ``(value - goal) / |goal|``, for a non-zero goal; absolute,
+        ``value - goal`` in the target's unit, for a zero goal (a bridge null
+        is judged in µV, not in per cent).  NaN when there is no goal.
+
+        Examples
+        --------
+        >>> t = Target("out", "voltage", ("out", "gnd"), None, 5.0, None, 0.01, None, None, "V")
+        >>> round(float(t.error(5.05)), 12)
+        0.01
+        """
+        value = np.asarray(value, dtype=float)
+        if self.equals is None:
+            return np.full(value.shape, np.nan)
+        if self.equals == 0:
+            return value - 0.0
+        return (value - self.equals) / abs(self.equals)
+
+    def objective(self, value: np.ndarray | float) -> np.ndarray:
+        """``|value - goal| / scale``: this target's term of the ranking objective."""
+        value = np.asarray(value, dtype=float)
+        if self.equals is None:
+            return np.zeros(value.shape)
+        return np.abs(value - self.equals) / self.scale
+
 
 @dataclass(frozen=True)
 class Design:
@@ -313,3 +493,33 @@ class Design:
     def rating(self, resistor: Resistor) -> PackageRating | None:
         """The package rating of a resistor, or None when it names no package."""
         return self.packages[resistor.package] if resistor.package else None
+
+    @property
+    def rating_ambient_c(self) -> float:
+        """The ambient every allowance is taken at, °C: the hottest the design states.
+
+        The larger of ``ambient`` and the top of ``temperature`` (see
+        :mod:`synth.rating`).
+        """
+        return max(self.ambient_c, self.temperature_c[1])
+
+    def allowance(self, resistor: Resistor) -> Allowance | None:
+        """The allowance of each physical part of ``resistor``, or None when unrated."""
+        rating = self.rating(resistor)
+        if rating is None:
+            return None
+        return allowance(rating, ambient_c=self.rating_ambient_c,
+                         max_power_use=self.margin_frac,
+                         max_voltage_use=self.voltage_margin_frac)
+
+    @property
+    def part_refs(self) -> tuple[str, ...]:
+        """Every physical resistor's designator, position by position."""
+        return tuple(ref for r in self.resistors for ref in r.part_refs)
+
+    def position_of(self, ref: str) -> tuple[int, int] | None:
+        """``(resistor index, part index)`` of a physical part or single position, or None."""
+        for k, resistor in enumerate(self.resistors):
+            if ref in resistor.part_refs:
+                return k, resistor.part_refs.index(ref)
+        return None

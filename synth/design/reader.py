@@ -15,9 +15,12 @@ from __future__ import annotations
 __all__ = ["design_from_dict"]
 
 import math
+import warnings
 from collections.abc import Mapping
 from pathlib import Path
 from typing import Any
+
+import numpy as np
 
 from synth.catalog.packages import PackageRating, load_package_table
 from synth.catalog.series import catalog_dir, load_series
@@ -32,9 +35,11 @@ from synth.design.fields import (
     temperature_end,
 )
 from synth.design.model import (
+    MAX_PARTS,
     TARGET_KINDS,
     TARGET_UNITS,
     Design,
+    Position,
     Regulator,
     Resistor,
     Source,
@@ -53,17 +58,21 @@ _TOP_KEYS = ("design", "source", "resistor", "regulator", "controlled", "transis
 
 
 _DESIGN_KEYS = (
-    "title", "ground", "ambient", "margin", "voltage_margin", "temperature",
-    "package", "packages", "tolerance", "tcr", "notes",
+    "title", "ground", "ambient", "max_power_use", "max_voltage_use", "temperature",
+    "package", "packages", "tolerance", "tcr", "notes", "margin", "voltage_margin",
 )
+
+
+_RENAMED_DESIGN_KEYS = (("margin", "max_power_use"), ("voltage_margin", "max_voltage_use"))
+"""(old, new) ``[design]`` names: the old one is still read, with a deprecation note."""
 
 
 _SOURCE_KEYS = ("ref", "kind", "plus", "minus", "from", "to", "value", "tolerance", "note")
 
 
 _RESISTOR_KEYS = (
-    "ref", "nodes", "value", "choose", "range", "tolerance", "tcr", "package", "combine", "bom",
-    "note",
+    "ref", "nodes", "value", "choose", "range", "tolerance", "tcr", "package", "combine", "parts",
+    "equal_parts", "bom", "note",
 )
 
 
@@ -85,8 +94,19 @@ def _read_design_table(origin: str, raw: Any) -> dict[str, Any]:
     settings["title"] = reader.text("title", "") if reader.has("title") else ""
     settings["ground"] = reader.text("ground", "gnd")
     settings["ambient_c"] = reader.parsed("ambient", parse_temperature, "25 C")
-    settings["margin_frac"] = reader.fraction("margin", "50%", strict=True)
-    settings["voltage_margin_frac"] = reader.fraction("voltage_margin", "80%", strict=True)
+    key_of: dict[str, str] = {}
+    notes: list[str] = []
+    for old, new in _RENAMED_DESIGN_KEYS:
+        if reader.has(old) and reader.has(new):
+            reader.fail(f"{old} and {new} are the same setting; keep {new} and delete {old}")
+        key_of[new] = old if reader.has(old) else new
+        if reader.has(old):
+            notes.append(f"{origin}, [design]: {old} is the old name of {new} (same meaning) "
+                         f"and will be dropped; rename it to {new}")
+    # shares of the derated power rating and of the limiting element voltage a part may use
+    settings["margin_frac"] = reader.fraction(key_of["max_power_use"], "50%", strict=True)
+    settings["voltage_margin_frac"] = reader.fraction(key_of["max_voltage_use"], "80%",
+                                                      strict=True)
     if reader.has("temperature"):
         span = reader.table["temperature"]
         if not (isinstance(span, list) and len(span) == 2):
@@ -104,6 +124,9 @@ def _read_design_table(origin: str, raw: Any) -> dict[str, Any]:
     settings["default_tcr"] = reader.parsed("tcr", parse_tcr, _DEFAULT_TCR)
     if reader.has("notes") and not isinstance(reader.table["notes"], str):
         reader.fail("notes must be text")
+    for note in notes:  # once the table has read cleanly
+        warnings.warn(note, DeprecationWarning, stacklevel=3)
+    settings["deprecations"] = tuple(notes)
     return settings
 
 
@@ -159,17 +182,28 @@ def _read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
     a, b = nodes[0].strip(), nodes[1].strip()
     if a == b:
         reader.fail(f"both ends are on node {a!r}; connect it between two nodes")
-    value = reader.positive("value", read_ohms) if reader.has("value") else None
+    part_values: tuple[float, ...] | None = None
+    raw_value = raw.get("value")
+    if isinstance(raw_value, list):
+        if not raw.get("combine"):
+            reader.fail('value is a list of part values only for a position of several parts; '
+                        'add combine = "series" or "parallel", or give one value')
+        part_values = tuple(_part_value(reader, v) for v in raw_value)
+        value = None
+    else:
+        value = reader.positive("value", read_ohms) if reader.has("value") else None
     choose = reader.text("choose") if reader.has("choose") else None
     stock_path: Path | None = None
     span: tuple[float, float] | None = None
     series_tolerance: float | None = None
     if choose is None:
-        if value is None:
+        if value is None and part_values is None:
             reader.fail('give a value (value = "10k") or let rnsynth choose one (choose = "E96")')
-        for key in ("range", "combine"):
-            if reader.has(key):
-                reader.fail(f"{key} applies only to a part rnsynth chooses; add choose = \"E96\"")
+        if reader.has("range"):
+            reader.fail("range applies only to a part rnsynth chooses; add choose = \"E96\"")
+        if reader.has("combine") and part_values is None:
+            reader.fail('a fixed position of several parts lists each part\'s value, such as '
+                        'value = ["442k", "432k"]; or add choose = "E96"')
     else:
         if choose.lower().endswith(".csv"):
             stock_path = _resolve_stock(origin, reader, choose)
@@ -192,9 +226,9 @@ def _read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
             span = (low, high)
         elif stock_path is None:
             reader.fail('a part chosen from a series needs a range such as range = ["1k", "1M"]')
-        combine = raw.get("combine")
-        if combine is not None and combine not in ("series", "parallel"):
-            reader.fail(f"combine {combine!r} is not known; use \"series\" or \"parallel\"")
+    position = _read_position(reader, raw, ref, part_values)
+    if part_values is not None:
+        value = float(position.effective(np.array([part_values]))[0])
     if reader.has("tolerance"):
         tolerance = reader.fraction("tolerance", "0%", upper=0.99)
     elif series_tolerance is not None:
@@ -212,9 +246,42 @@ def _read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
         reader.fail(f"bom must be true or false, not {bom!r}")
     return Resistor(
         ref=ref, nodes=(a, b), value=value, choose=choose, stock_path=stock_path, range=span,
-        tolerance=tolerance, tcr=tcr, package=package,
-        combine=raw.get("combine") if choose is not None else None, bom=bom,
+        tolerance=tolerance, tcr=tcr, package=package, position=position, bom=bom,
     )
+
+
+def _part_value(reader: ItemReader, raw: Any) -> float:
+    value = range_end(reader, "value", raw)
+    if value <= 0:
+        reader.fail(f"value {raw!r} must be positive")
+    return value
+
+
+def _read_position(reader: ItemReader, raw: Mapping[str, Any], ref: str,
+                   part_values: tuple[float, ...] | None) -> Position:
+    """The position's parts: ``combine``, ``parts`` and ``equal_parts``."""
+    combine = raw.get("combine")
+    if combine is None:
+        for key in ("parts", "equal_parts"):
+            if key in raw:
+                reader.fail(f'{key} applies to a position of several parts; add combine = '
+                            '"series" or "parallel"')
+        return Position(ref)
+    if combine not in ("series", "parallel"):
+        reader.fail(f"combine {combine!r} is not known; use \"series\" or \"parallel\"")
+    count = raw.get("parts", len(part_values) if part_values is not None else 2)
+    if isinstance(count, bool) or not isinstance(count, int) or not 2 <= count <= MAX_PARTS:
+        reader.fail(f"parts {count!r} must be a whole number from 2 to {MAX_PARTS}")
+    if part_values is not None and len(part_values) != count:
+        reader.fail(f"value lists {len(part_values)} part values but parts is {count}; "
+                    "give one value per part")
+    equal = raw.get("equal_parts", False)
+    if not isinstance(equal, bool):
+        reader.fail(f"equal_parts must be true or false, not {equal!r}")
+    if equal and part_values is not None and len(set(part_values)) > 1:
+        reader.fail("equal_parts = true but the part values differ; give equal values")
+    return Position(ref, arrangement=combine, count=count, equal_parts=equal,
+                    part_values=part_values)
 
 
 def _read_regulator(origin: str, index: int, raw: Any) -> Regulator:
@@ -270,8 +337,12 @@ def _read_target(origin: str, index: int, raw: Any, ground: str) -> Target:
         nodes = node_pair(reader, kind, ground)
         if nodes[0] == nodes[1]:
             reader.fail(f"{kind} between {nodes[0]!r} and itself is always zero; name two nodes")
-        shown = f"V({nodes[0]})" if nodes[1] == ground else f"V({nodes[0]},{nodes[1]})"
-        default_label = shown if kind == "voltage" else f"R({nodes[0]},{nodes[1]})"
+        if kind == "resistance":
+            default_label = f"resistance from {nodes[0]} to {nodes[1]}"
+        elif nodes[1] == ground:
+            default_label = f"voltage at {nodes[0]}"
+        else:
+            default_label = f"voltage from {nodes[0]} to {nodes[1]}"
     elif kind == "ratio":
         pair = raw["ratio"]
         if not (isinstance(pair, list) and len(pair) == 2):
@@ -281,10 +352,11 @@ def _read_target(origin: str, index: int, raw: Any, ground: str) -> Target:
         nodes = sub[0] + sub[1]
         if sub[1][0] == sub[1][1]:
             reader.fail("the ratio's denominator is a voltage between a node and itself")
-        default_label = f"V({nodes[0]})/V({nodes[2]})"
+        top, bottom = (a if b == ground else f"({a} - {b})" for a, b in sub)
+        default_label = f"ratio of {top} to {bottom}"
     else:
         ref = reader.text(kind)
-        default_label = f"I({ref})" if kind == "current" else f"P({ref})"
+        default_label = f"{kind} in {ref}"
     equals = _target_quantity(reader, kind, "equals") if reader.has("equals") else None
     at_least = _target_quantity(reader, kind, "at_least") if reader.has("at_least") else None
     at_most = _target_quantity(reader, kind, "at_most") if reader.has("at_most") else None

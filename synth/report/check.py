@@ -6,7 +6,9 @@ JSON-ready dicts; printing and file writing stay in the command line.
 
 from __future__ import annotations
 
-__all__ = ["check_json", "check_text", "part_json", "target_json", "window_text"]
+__all__ = [
+    "check_json", "check_text", "part_json", "problem_json", "target_json", "window_text",
+]
 
 import math
 from typing import Any
@@ -15,7 +17,7 @@ from tabulate import tabulate
 
 from synth.report.numbers import json_number
 from synth.report.spread import spread_json, spread_text
-from synth.results import CheckResult, PartReport, TargetReport
+from synth.results import CheckResult, PartReport, Problem, TargetReport
 from synth.units import format_eng, format_rkm
 
 _UNIT_OF = {"voltage": "V", "current": "A", "power": "W", "resistance": "Ω", "ratio": ""}
@@ -81,13 +83,28 @@ def _target_rows(targets: tuple[TargetReport, ...]) -> list[list[str]]:
 
 
 def check_text(result: CheckResult) -> str:
-    """The report ``rnsynth check`` prints."""
+    """The report ``rnsynth check`` prints, in the order of the job.
+
+    The verdict first (with the problems and cautions), then the targets, then
+    each part's stress, the supply and the cross-check of the solve, then the
+    spread when asked for, and the node voltages last.
+    """
     design = result.design
     lines = [design.title or "(untitled design)", f"file: {design.origin}",
-             f"ambient {design.ambient_c:g} °C, power margin {design.margin_frac * 100:g} %, "
-             f"voltage margin {design.voltage_margin_frac * 100:g} %", ""]
-    lines.append(tabulate([[name, format_eng(v, "V", 6)] for name, v in result.nodes.items()],
-                          headers=["node", "voltage"], disable_numparse=True))
+             f"ambient {design.ambient_c:g} °C; a part may use up to "
+             f"{design.margin_frac * 100:g} % of its derated power and "
+             f"{design.voltage_margin_frac * 100:g} % of its limiting element voltage", ""]
+    lines.append("result: " + ("all targets met, all parts within their allowance"
+                               if result.ok else "FAILS: " + "; ".join(map(str, result.problems))))
+    lines.extend(result.cautions)
+    for ref, value in result.filled.items():
+        lines.append(f"note: {ref} has no value; checked at its ideal value "
+                     f"{format_eng(value, 'Ω', 6)} (run rnsynth design to choose a standard one)")
+    if result.targets:
+        lines.append("")
+        lines.append(tabulate(_target_rows(result.targets),
+                              headers=["target", "value", "goal", "error", "window", "met"],
+                              disable_numparse=True))
     lines.append("")
     lines.append(tabulate(
         [_part_row(p) for p in result.parts],
@@ -95,28 +112,19 @@ def check_text(result: CheckResult) -> str:
                  "allowed", "P use", "V use"],
         disable_numparse=True,
     ))
-    if result.targets:
-        lines.append("")
-        lines.append(tabulate(_target_rows(result.targets),
-                              headers=["target", "value", "goal", "error", "window", "met"],
-                              disable_numparse=True))
-    lines.append("")
-    for ref, value in result.filled.items():
-        lines.append(f"note: {ref} has no value; checked at its ideal value "
-                     f"{format_eng(value, 'Ω', 6)} (run rnsynth design to choose a standard one)")
-    lines.append(f"supply current: {format_eng(result.supply_current, 'A')}; "
-                 f"largest voltage in the circuit: {format_eng(result.max_voltage, 'V')}")
     if any(p.kind == "resistor" and p.package is None for p in result.parts):
         lines.append("note: parts without a package are not checked against a power rating")
+    lines.append(f"supply current: {format_eng(result.supply_current, 'A')}; "
+                 f"largest voltage in the circuit: {format_eng(result.max_voltage, 'V')}")
     if result.verify_difference is not None:
         lines.append(f"verify: mesh and nodal solves differ by at most "
                      f"{result.verify_difference:.2e} (relative)")
-    lines.append("result: " + ("all targets met, all parts within their allowance"
-                               if result.ok else "FAILS: " + "; ".join(result.problems)))
     if result.spread is not None:
         lines.append("")
         lines.append(spread_text(result.spread, [t.unit for t in result.targets]))
-    lines.extend(result.cautions)
+    lines.append("")
+    lines.append(tabulate([[name, format_eng(v, "V", 6)] for name, v in result.nodes.items()],
+                          headers=["node", "voltage"], disable_numparse=True))
     return "\n".join(lines)
 
 
@@ -128,6 +136,16 @@ def target_json(target: TargetReport) -> dict[str, Any]:
         "low": json_number(target.low), "high": json_number(target.high),
         "error": json_number(target.error), "met": target.met,
     }
+
+
+def problem_json(problem: Problem) -> dict[str, Any]:
+    """One problem as typed JSON: kind, subject, value, limit, unit (and the window)."""
+    out: dict[str, Any] = {"kind": problem.kind, "subject": problem.subject,
+                           "value": json_number(problem.value),
+                           "limit": json_number(problem.limit), "unit": problem.unit}
+    if problem.kind == "window":
+        out["low"], out["high"] = json_number(problem.low), json_number(problem.high)
+    return out
 
 
 def part_json(part: PartReport) -> dict[str, Any]:
@@ -156,7 +174,8 @@ def check_json(result: CheckResult) -> dict[str, Any]:
         "targets": [target_json(t) for t in result.targets],
         "supply_current": json_number(result.supply_current),
         "max_voltage": json_number(result.max_voltage),
-        "problems": list(result.problems),
+        "problems": [str(p) for p in result.problems],
+        "problem_details": [problem_json(p) for p in result.problems],
         "cautions": list(result.cautions),
         "filled": dict(result.filled),
     }

@@ -8,7 +8,7 @@ from typing import Any
 
 from tabulate import tabulate
 
-from synth.report.check import part_json, target_json
+from synth.report.check import part_json, problem_json, target_json
 from synth.report.numbers import json_number
 from synth.report.spread import spread_json, spread_text
 from synth.results import Candidate, SynthesisResult
@@ -105,7 +105,8 @@ def _candidate_json(candidate: Candidate) -> dict[str, Any]:
         "supply_current": json_number(candidate.supply_current),
         "targets": [target_json(t) for t in candidate.targets],
         "parts": [part_json(p) for p in candidate.parts],
-        "problems": list(candidate.problems),
+        "problems": [str(p) for p in candidate.problems],
+        "problem_details": [problem_json(p) for p in candidate.problems],
         **({"spread": spread_json(candidate.spread)} if candidate.spread is not None else {}),
     }
 

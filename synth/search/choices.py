@@ -1,10 +1,19 @@
-"""The values each free part may take, and how coarse each value's series is.
+"""The values each free position may take, and how coarse each value's series is.
 
-A free part's choices come from a series over a range, or from a house stock
-list.  A position with ``combine = "series"`` or ``"parallel"`` holds two
-parts from the same choice; its choices are the effective values of every
-unordered pair.  Choices are sorted by effective value so the search can
-treat every position as an ordered list.
+A free position's choices come from a series over a range, or from a house
+stock list.  A position of several parts (``combine = "series"`` or
+``"parallel"``) takes its parts from the same catalogue:
+
+* two parts: every unordered pair of values;
+* three to six parts: N - 1 equal parts and one trimming part (every ordered
+  pair of a main value and a trim value), the usual way a high-voltage string
+  is built;
+* ``equal_parts = true``: N equal parts (an equal voltage share, common
+  practice for high-voltage strings).
+
+Each part may range over :func:`part_range`; the position's effective value
+must lie in the position's ``range``.  Choices are sorted by effective value
+so the search can treat every position as an ordered list.
 """
 
 from __future__ import annotations
@@ -18,8 +27,10 @@ import numpy as np
 
 from synth.catalog.series import series_rank, series_values
 from synth.catalog.stock import load_stock
-from synth.design.model import Resistor
+from synth.design.model import Position, Resistor
 from synth.errors import DesignError
+
+_RANGE_SLACK = 1e-9  # a range end written as "10k" includes 4.7k + 5.3k = 10k exactly
 
 
 @dataclass(frozen=True)
@@ -30,29 +41,32 @@ class Choices:
     ----------
     ref : str
         The position's reference designator.
+    position : Position
+        The position's parts.
     values : numpy.ndarray
         Effective resistance of each choice, ohm, ascending.
-    first, second : numpy.ndarray
-        The two parts' values for a combined position (``second`` is NaN for
-        a single part).
-    combine : str or None
-        ``"series"``, ``"parallel"`` or None.
+    parts : numpy.ndarray
+        ``(choices, parts)`` each physical part's value, ohm.
     rank : numpy.ndarray
-        Sum of :func:`series_rank` over the choice's parts.
+        Sum of :func:`~synth.catalog.series.series_rank` over the choice's parts.
     label : str
         Where the values come from (``"E96"`` or the stock file name).
     """
 
     ref: str
+    position: Position
     values: np.ndarray
-    first: np.ndarray
-    second: np.ndarray
-    combine: str | None
+    parts: np.ndarray
     rank: np.ndarray
     label: str
 
     def __len__(self) -> int:
         return len(self.values)
+
+    @property
+    def combine(self) -> str | None:
+        """``"series"``/``"parallel"`` for a position of several parts, else None."""
+        return None if self.position.count == 1 else self.position.arrangement
 
 
 def part_range(combine: str, low: float, high: float) -> tuple[float, float]:
@@ -62,23 +76,30 @@ def part_range(combine: str, low: float, high: float) -> tuple[float, float]:
     each part is at most the effective value and a trimming part may be down
     to a tenth of the range's low end; in parallel each part is at least the
     effective value and a trimming part may be up to ten times the high end.
+
+    Examples
+    --------
+    >>> part_range("series", 10e3, 20e3), part_range("parallel", 10e3, 20e3)
+    ((1000.0, 20000.0), (10000.0, 200000.0))
     """
     return (low / 10, high) if combine == "series" else (low, high * 10)
 
 
 def _base_values(resistor: Resistor, origin: str) -> tuple[np.ndarray, str]:
+    """The catalogue values each physical part of the position may take."""
+    span = resistor.range
+    if span is not None and resistor.combine is not None:
+        span = part_range(resistor.combine, *span)
     if resistor.stock_path is not None:
         values = np.unique([item.value for item in load_stock(resistor.stock_path)])
         label = resistor.stock_path.name
-        if resistor.range is not None:
-            low, high = resistor.range
-            values = values[(values >= low * (1 - 1e-9)) & (values <= high * (1 + 1e-9))]
+        if span is not None:
+            low, high = span
+            values = values[(values >= low * (1 - _RANGE_SLACK))
+                            & (values <= high * (1 + _RANGE_SLACK))]
     else:
-        assert resistor.choose is not None and resistor.range is not None
-        low, high = resistor.range
-        if resistor.combine is not None:
-            low, high = part_range(resistor.combine, low, high)
-        values = series_values(resistor.choose, low, high)
+        assert resistor.choose is not None and span is not None
+        values = series_values(resistor.choose, *span)
         label = resistor.choose
     if len(values) == 0:
         raise DesignError(f"{origin}, resistor {resistor.ref}: no {label} value lies in its "
@@ -86,34 +107,55 @@ def _base_values(resistor: Resistor, origin: str) -> tuple[np.ndarray, str]:
     return values, label
 
 
+def _part_sets(values: np.ndarray, position: Position) -> np.ndarray:
+    """Index sets ``(sets, count)`` into ``values`` for one position (see the module notes)."""
+    n, count = len(values), position.count
+    if count == 1 or position.equal_parts:
+        return np.repeat(np.arange(n)[:, None], count, axis=1)
+    if count == 2:
+        i, j = np.triu_indices(n)
+        return np.stack([i, j], axis=1)
+    main, trim = (g.ravel() for g in np.meshgrid(np.arange(n), np.arange(n), indexing="ij"))
+    return np.column_stack([np.repeat(main[:, None], count - 1, axis=1), trim])
+
+
 def choices_for(resistor: Resistor, origin: str = "<design>") -> Choices:
-    """Build the ordered choices of one free resistor.
+    """Build the ordered choices of one free position.
 
     Raises
     ------
     DesignError
-        When no catalogue value lies in the part's range.
+        When no catalogue value (or set of part values) reaches the range.
+
+    Examples
+    --------
+    >>> from synth.design.reader import design_from_dict
+    >>> d = design_from_dict({
+    ...     "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+    ...                 "value": "1 V"}],
+    ...     "resistor": [{"ref": "R1", "nodes": ["in", "gnd"], "choose": "E3",
+    ...                   "range": ["10k", "20k"], "combine": "series"}]})
+    >>> c = choices_for(d.resistors[0])
+    >>> [float(v) for v in c.values], c.parts[-1].tolist()
+    ([11000.0, 12200.0, 14700.0, 20000.0], [10000.0, 10000.0])
     """
     values, label = _base_values(resistor, origin)
     ranks = series_rank(values)
-    if resistor.combine is None:
-        return Choices(ref=resistor.ref, values=values, first=values,
-                       second=np.full(len(values), np.nan), combine=None, rank=ranks,
-                       label=label)
-    i, j = np.triu_indices(len(values))
-    a, b = values[i], values[j]
-    effective = a + b if resistor.combine == "series" else a * b / (a + b)
-    if resistor.range is not None:
+    position = resistor.position
+    sets = _part_sets(values, position)
+    parts = values[sets]
+    effective = position.effective(parts)
+    if resistor.range is not None and position.count > 1:
         low, high = resistor.range
-        keep = (effective >= low * (1 - 1e-9)) & (effective <= high * (1 + 1e-9))
-        a, b, effective = a[keep], b[keep], effective[keep]
-        i, j = i[keep], j[keep]
+        keep = ((effective >= low * (1 - _RANGE_SLACK))
+                & (effective <= high * (1 + _RANGE_SLACK)))
+        sets, parts, effective = sets[keep], parts[keep], effective[keep]
     if len(effective) == 0:
-        raise DesignError(f"{origin}, resistor {resistor.ref}: no pair of {label} values "
-                          "reaches its range; widen the range")
-    order = np.lexsort((b, a, effective))
-    return Choices(ref=resistor.ref, values=effective[order], first=a[order], second=b[order],
-                   combine=resistor.combine, rank=(ranks[i] + ranks[j])[order], label=label)
+        raise DesignError(f"{origin}, resistor {resistor.ref}: no set of {position.count} "
+                          f"{label} values reaches its range; widen the range")
+    order = np.lexsort((*parts.T[::-1], effective))
+    return Choices(ref=resistor.ref, position=position, values=effective[order],
+                   parts=parts[order], rank=ranks[sets].sum(axis=1)[order], label=label)
 
 
 def combination_count(choices: list[Choices]) -> int:

@@ -4,7 +4,7 @@ over boxes.
 
 from __future__ import annotations
 
-__all__ = ["SearchProblem", "TargetRanges", "bound_scale", "distinct_values"]
+__all__ = ["SearchProblem", "TargetRanges", "distinct_values"]
 
 from collections.abc import Callable
 
@@ -12,16 +12,24 @@ import numpy as np
 
 from synth.circuit.measure import Evaluation, Evaluator
 from synth.design.model import Design
+from synth.rating import exceeds, falls_short
 from synth.search.choices import Choices
 from synth.search.ranking import RankedCandidates
 
-TargetRanges = Callable[[np.ndarray], tuple[np.ndarray, np.ndarray]]
-"""Given ``(M, resistors)`` ohm, the ``(low, high)`` of every target, ``(M, targets)`` each:
-the worst-case ranges a caller ranks by (the spread owns how they are computed)."""
+TargetRanges = Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]]
+"""Given positions ``(M, resistors)`` and parts ``(M, parts)`` ohm, the ``(low, high)`` of every
+target, ``(M, targets)`` each: the worst-case ranges a caller ranks by (the spread owns how they
+are computed)."""
 
 
 class SearchProblem:
-    """A design's targets and limits as arrays, evaluated over candidate blocks."""
+    """A design's targets and limits as arrays, evaluated over candidate blocks.
+
+    Feasibility uses the same comparisons as ``check``
+    (:func:`synth.rating.exceeds` with its slack): a candidate that meets a
+    window or a limit exactly is feasible, and a box is dropped only when
+    its bounds break a window or limit beyond that slack.
+    """
 
     def __init__(self, design: Design, evaluator: Evaluator, choices: list[Choices],
                  relaxed: bool, target_ranges: TargetRanges | None = None):
@@ -29,13 +37,12 @@ class SearchProblem:
         self.target_ranges = target_ranges
         self.free = np.array([evaluator.resistor_index[c.ref] for c in choices], dtype=int)
         self.base = np.array([r.value if r.value is not None else 1.0 for r in design.resistors])
+        self.base_parts = evaluator.part_values(self.base[None, :])[0]
+        self.free_columns = [evaluator.part_columns[int(k)] for k in self.free]
         targets = design.targets
         self.goal = np.array([t.equals if t.equals is not None else np.nan for t in targets])
         self.has_goal = ~np.isnan(self.goal)
-        self.scale = np.array([
-            abs(t.equals) if t.equals not in (None, 0) else (t.within_abs or bound_scale(t))
-            for t in targets
-        ])
+        self.scale = np.array([t.scale for t in targets])
         self.low = np.array([t.bounds[0] for t in targets])
         self.high = np.array([t.bounds[1] for t in targets])
         self.kind = [t.kind for t in targets]
@@ -46,7 +53,12 @@ class SearchProblem:
                          for k, t in enumerate(targets) if t.kind == "power"}
         self.allowed_p = evaluator.allowed_power
         self.allowed_v = evaluator.allowed_voltage
-        self.combine = {int(self.free[p]): c for p, c in enumerate(choices) if c.combine}
+        first = np.array([cols.start for cols in evaluator.part_columns], dtype=int)
+        # every part of a position shares its package, so one allowance per position
+        self.position_allowed_p = self.allowed_p[first] if len(first) else np.zeros(0)
+        self.position_allowed_v = self.allowed_v[first] if len(first) else np.zeros(0)
+        self.count = np.array([r.position.count for r in design.resistors], dtype=float)
+        self.series = np.array([r.position.arrangement != "parallel" for r in design.resistors])
         self.n_r = len(design.resistors)
 
     def resistances(self, indices: np.ndarray) -> np.ndarray:
@@ -56,51 +68,50 @@ class SearchProblem:
             r[:, self.free[p]] = choice.values[indices[:, p]]
         return r
 
-    def evaluate(self, r: np.ndarray) -> Evaluation:
+    def part_values(self, indices: np.ndarray) -> np.ndarray:
+        """``(M, parts)`` ohm of every physical part for ``(M, positions)`` choice indices."""
+        parts = np.broadcast_to(self.base_parts, (len(indices), len(self.base_parts))).copy()
+        for p, choice in enumerate(self.choices):
+            parts[:, self.free_columns[p]] = choice.parts[indices[:, p]]
+        return parts
+
+    def evaluate(self, r: np.ndarray, part_values: np.ndarray | None = None) -> Evaluation:
         with np.errstate(all="ignore"):
-            return self.ev.evaluate(r)
+            return self.ev.evaluate(r, part_values=part_values)
 
     # ----- exact measures of enumerated candidates -----
 
-    def part_stress(self, indices: np.ndarray, r: np.ndarray, ev: Evaluation
-                    ) -> tuple[np.ndarray, np.ndarray]:
-        """Largest physical-part power and voltage at each position, ``(M, resistors)``."""
-        current = ev.solution.branch_currents[:, : self.n_r]
-        power = ev.resistor_power.copy()
-        volts = ev.resistor_voltage.copy()
-        for p, choice in enumerate(self.choices):
-            if choice.combine is None:
-                continue
-            k = self.free[p]
-            a = choice.first[indices[:, p]]
-            b = choice.second[indices[:, p]]
-            if choice.combine == "series":
-                big = np.maximum(a, b)
-                power[:, k] = current[:, k] ** 2 * big
-                volts[:, k] = np.abs(current[:, k]) * big
-            else:
-                small = np.minimum(a, b)
-                power[:, k] = volts[:, k] ** 2 / small
-        return power, volts
+    def feasible(self, targets: np.ndarray, power: np.ndarray, volts: np.ndarray
+                 ) -> np.ndarray:
+        """``(M,)`` True where every window and every part's limits hold (with the slack)."""
+        ok = np.all(np.isfinite(targets), axis=1)
+        ok &= ~np.any(falls_short(targets, self.low) | exceeds(targets, self.high), axis=1)
+        if power.shape[1]:
+            ok &= ~np.any(exceeds(power, self.allowed_p) | exceeds(volts, self.allowed_v), axis=1)
+        return ok
 
     def violations(self, targets: np.ndarray, power: np.ndarray, volts: np.ndarray
                    ) -> np.ndarray:
-        """Largest relative violation of any window or limit, ``(M,)``; 0 when all hold."""
-        below = (self.low - targets) / self.scale
-        above = (targets - self.high) / self.scale
-        worst = np.nanmax(np.concatenate([below, above, np.zeros((len(targets), 1))], axis=1),
-                          axis=1)
-        worst = np.where(np.all(np.isfinite(targets), axis=1), worst, np.inf)
+        """Largest relative violation of any window or limit, ``(M,)``; 0 when all hold.
+
+        Windows count in units of the target's scale, limits as the share
+        over the allowance: the measure that orders the nearest designs.
+        """
         with np.errstate(all="ignore"):
+            below = (self.low - targets) / self.scale
+            above = (targets - self.high) / self.scale
+            worst = np.nanmax(np.concatenate([below, above, np.zeros((len(targets), 1))],
+                                             axis=1), axis=1)
+            worst = np.where(np.all(np.isfinite(targets), axis=1), worst, np.inf)
             over_p = np.where(np.isnan(self.allowed_p), -np.inf, power / self.allowed_p - 1)
             over_v = np.where(np.isnan(self.allowed_v), -np.inf, volts / self.allowed_v - 1)
-        if self.n_r:
+        if power.shape[1]:
             worst = np.maximum(worst, np.max(over_p, axis=1))
             worst = np.maximum(worst, np.max(over_v, axis=1))
-        return worst
+        return np.where(self.feasible(targets, power, volts), 0.0, np.maximum(worst, 0.0))
 
     def errors(self, targets: np.ndarray) -> np.ndarray:
-        """Largest relative error over ``equals`` targets, ``(M,)``."""
+        """Largest ``|value - goal| / scale`` over ``equals`` targets, ``(M,)``."""
         if not self.has_goal.any():
             return np.zeros(len(targets))
         err = np.abs(targets[:, self.has_goal] - self.goal[self.has_goal]) / self.scale[
@@ -110,32 +121,31 @@ class SearchProblem:
     def score(self, indices: np.ndarray) -> tuple[RankedCandidates, int]:
         """Exact objective of each candidate; infeasible ones dropped unless relaxed."""
         r = self.resistances(indices)
-        ev = self.evaluate(r)
-        power, volts = self.part_stress(indices, r, ev)
-        violation = self.violations(ev.targets, power, volts)
+        parts = self.part_values(indices)
+        ev = self.evaluate(r, parts)
         error = self.errors(ev.targets)
         if self.relaxed:
-            objective = np.maximum(violation, 0.0)
+            objective = self.violations(ev.targets, ev.part_power, ev.part_voltage)
             keep = np.isfinite(objective)
         else:
-            keep = (violation <= 0) & np.isfinite(error)
+            keep = self.feasible(ev.targets, ev.part_power, ev.part_voltage) & np.isfinite(error)
             objective = error
             if self.target_ranges is not None and keep.any() and self.has_goal.any():
                 objective = error.copy()
-                low, high = self.target_ranges(r[keep])
+                low, high = self.target_ranges(r[keep], parts[keep])
                 g = self.goal[self.has_goal]
                 spread = np.maximum(np.abs(high[:, self.has_goal] - g),
                                     np.abs(low[:, self.has_goal] - g)) / self.scale[self.has_goal]
                 objective[keep] = np.where(np.all(np.isfinite(spread), axis=1),
                                            spread.max(axis=1), np.inf)
-        values = np.stack([c.first[indices[:, p]] for p, c in enumerate(self.choices)]
-                          + [c.second[indices[:, p]] for p, c in enumerate(self.choices)],
-                          axis=1)
+        free_parts = (np.concatenate([parts[:, cols] for cols in self.free_columns], axis=1)
+                      if self.free_columns else np.zeros((len(indices), 0)))
         ranks = np.zeros(len(indices), dtype=np.int64)
         for p, c in enumerate(self.choices):
             ranks += c.rank[indices[:, p]]
-        ranked = RankedCandidates(indices[keep], objective[keep], distinct_values(values[keep]),
-                                  ranks[keep], ev.supply_current[keep])
+        ranked = RankedCandidates(indices[keep], objective[keep],
+                                  distinct_values(free_parts[keep]), ranks[keep],
+                                  ev.supply_current[keep])
         return ranked, len(indices)
 
     # ----- sound bounds over boxes -----
@@ -187,27 +197,29 @@ class SearchProblem:
         p_hi = np.minimum(i2_hi * r_hi, u2_hi / r_lo)
         for k_t, k_r in self.power_of.items():
             t_lo[:, k_t], t_hi[:, k_t] = p_lo[:, k_r], p_hi[:, k_r]
-        # a combined position's hotter part takes at least half its power (and voltage
-        # in series): the limit applies to each physical part
-        part_p_lo, part_u_lo = p_lo.copy(), np.sqrt(u2_lo)
-        for k_r, how in self.combine.items():
-            part_p_lo[:, k_r] = p_lo[:, k_r] / 2
-            if how == "series":
-                part_u_lo[:, k_r] = part_u_lo[:, k_r] / 2
+        # the hottest part of a position of N parts takes at least 1/N of its power, and
+        # in series at least 1/N of its voltage: the limits apply to each physical part
+        part_p_lo = p_lo / self.count
+        part_u_lo = np.sqrt(u2_lo) / np.where(self.series, self.count, 1.0)
         with np.errstate(all="ignore"):
             gap_below = (self.low - t_hi) / self.scale
             gap_above = (t_lo - self.high) / self.scale
-            over_p = np.where(np.isnan(self.allowed_p), -np.inf, part_p_lo / self.allowed_p - 1)
-            over_v = np.where(np.isnan(self.allowed_v), -np.inf, part_u_lo / self.allowed_v - 1)
+            over_p = np.where(np.isnan(self.position_allowed_p), -np.inf,
+                              part_p_lo / self.position_allowed_p - 1)
+            over_v = np.where(np.isnan(self.position_allowed_v), -np.inf,
+                              part_u_lo / self.position_allowed_v - 1)
+        broken = (np.any(exceeds(t_lo, self.high) | falls_short(t_hi, self.low), axis=1)
+                  | np.any(exceeds(part_p_lo, self.position_allowed_p)
+                           | exceeds(part_u_lo, self.position_allowed_v), axis=1))
         parts = [gap_below, gap_above, np.zeros((n_box, 1))]
         if self.n_r:
             parts += [over_p, over_v]
         violation_lb = np.nanmax(np.concatenate(parts, axis=1), axis=1)
         if self.relaxed:
-            bound = np.maximum(violation_lb, 0.0)
+            bound = np.where(broken, np.maximum(violation_lb, 0.0), 0.0)
             feasible = np.ones(n_box, dtype=bool)
         else:
-            feasible = violation_lb <= 0
+            feasible = ~broken
             if self.has_goal.any():
                 g = self.goal[self.has_goal]
                 below = (t_lo[:, self.has_goal] - g) / self.scale[self.has_goal]
@@ -218,12 +230,6 @@ class SearchProblem:
         bound = np.where(valid, bound, 0.0)
         feasible = np.where(valid, feasible, True)
         return bound, feasible
-
-
-def bound_scale(target: object) -> float:
-    low, high = target.bounds  # type: ignore[attr-defined]
-    finite = [abs(b) for b in (low, high) if np.isfinite(b) and b != 0]
-    return max(finite) if finite else 1.0
 
 
 def distinct_values(values: np.ndarray) -> np.ndarray:

@@ -33,19 +33,22 @@ from __future__ import annotations
 
 __all__ = ["analyse_spread"]
 
+from dataclasses import replace
+
 import numpy as np
 
 from synth.circuit.measure import Evaluator
 from synth.design.model import Design
 from synth.spread.monte_carlo import monte_carlo
-from synth.spread.records import SpreadResult, SpreadSettings, TargetSpread
+from synth.spread.records import PartSpread, SpreadResult, SpreadSettings, TargetSpread
 from synth.spread.variables import SpreadVariables, box_corners
 from synth.spread.worst_case import EXACT_VARIABLES, part_spread
 
 
 def analyse_spread(design: Design, values: dict[str, float] | None = None,
                    settings: SpreadSettings | None = None,
-                   evaluator: Evaluator | None = None) -> SpreadResult:
+                   evaluator: Evaluator | None = None, *,
+                   part_values: np.ndarray | None = None) -> SpreadResult:
     """Worst case, root-sum-square and Monte Carlo spread of a design.
 
     Parameters
@@ -80,10 +83,12 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
     given = dict(values or {})
     r0 = np.array([given.get(r.ref, r.value if r.value is not None else np.nan)
                    for r in design.resistors], dtype=float)
+    parts0 = (ev.part_values(r0[None, :])[0] if part_values is None
+              else np.asarray(part_values, dtype=float))
     src = ev.nominal_sources
     var = SpreadVariables(design, ev)
     n = len(var)
-    nominal = ev.evaluate(r0[None, :])
+    nominal = ev.evaluate(r0[None, :], part_values=parts0[None, :])
     nominal_targets = nominal.targets[0]
 
     # sensitivities by central differences, one batch
@@ -93,8 +98,8 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
         factors[2 * i, i] += step
         factors[2 * i + 1, i] -= step
     if n:
-        r_s, s_s = var.apply(factors, r0, src)
-        probe = ev.evaluate(r_s, s_s).targets
+        r_s, p_s, s_s = var.apply(factors, parts0, src)
+        probe = ev.evaluate(r_s, s_s, part_values=p_s).targets
         with np.errstate(all="ignore"):
             slope = (probe[0::2] - probe[1::2]) / (2 * step)  # d y / (d x / x)
             sens = slope / nominal_targets[None, :]
@@ -109,8 +114,8 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
         up = np.nan_to_num(sens) >= 0
         bits = np.concatenate([up.T, ~up.T]) if len(design.targets) else np.zeros((0, n), bool)
     vertex_factors = np.where(bits, var.high[None, :], var.low[None, :])
-    r_v, s_v = var.apply(vertex_factors, r0, src)
-    vertices = ev.evaluate(r_v, s_v)
+    r_v, p_v, s_v = var.apply(vertex_factors, parts0, src)
+    vertices = ev.evaluate(r_v, s_v, part_values=p_v)
 
     targets = []
     for j, t in enumerate(design.targets):
@@ -132,11 +137,26 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
             mc_mean=None, mc_std=None, mc_values=None, inside=None,
         ))
 
-    parts = part_spread(design, ev, var, r0, bits if exact else None, vertices, nominal,
-                         r_v)
+    parts = part_spread(design, ev, var, bits if exact else None, vertices, nominal, p_v)
+    targets = _with_power_peaks(design, ev, targets, parts)
     yield_fraction = None
     if settings.samples > 0:
-        targets, yield_fraction = monte_carlo(design, ev, var, r0, src, settings, targets)
+        targets, yield_fraction = monte_carlo(design, ev, var, parts0, src, settings, targets)
     return SpreadResult(variables=var.names, targets=tuple(targets), parts=tuple(parts),
                         yield_fraction=yield_fraction, settings=settings,
                         temperature_c=design.temperature_c)
+
+
+def _with_power_peaks(design: Design, ev: Evaluator, targets: list[TargetSpread],
+                      parts: list[PartSpread]) -> list[TargetSpread]:
+    """A power target's worst high includes its part's interior peak (maximum power transfer)."""
+    out = []
+    for target, spread in zip(design.targets, targets, strict=True):
+        if target.kind == "power":
+            k = ev.resistor_index[target.ref or ""]
+            cols = ev.part_columns[k]
+            peak = sum(parts[c].worst_power for c in range(cols.start, cols.stop))
+            if cols.stop - cols.start == 1 and peak > spread.worst_high:
+                spread = replace(spread, worst_high=peak)
+        out.append(spread)
+    return out

@@ -9,7 +9,7 @@ import numpy as np
 
 from synth.circuit.measure import Evaluator, SourceValues
 from synth.design.model import Design
-from synth.rating import allowed_power
+from synth.rating import exceeds
 from synth.spread.records import SpreadSettings, TargetSpread
 from synth.spread.variables import REFERENCE_C, SpreadVariables, inside_windows
 
@@ -18,16 +18,22 @@ _MC_BLOCK = 1 << 15
 block by block in a fixed order, so a seed gives the same samples every time."""
 
 
-def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, r0: np.ndarray,
-                 src: SourceValues, settings: SpreadSettings, targets: list[TargetSpread]
-                 ) -> tuple[list[TargetSpread], float]:
+def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, parts0: np.ndarray,
+                src: SourceValues, settings: SpreadSettings, targets: list[TargetSpread]
+                ) -> tuple[list[TargetSpread], float]:
+    """Seeded Monte Carlo: each target's samples and the yield.
+
+    Each physical part draws its own tolerance deviation and temperature
+    coefficient; the ambient is drawn once per sample over the design's
+    temperature range.  Yield is the share of samples in which every target
+    lies in its window and every physical part stays within its allowance
+    (taken at the design's hottest ambient, as everywhere; see
+    :mod:`synth.rating`).
+    """
     rng = np.random.default_rng(settings.seed)
     total, n = settings.samples, len(var)
     low_c, high_c = design.temperature_c
-    tcr = np.array([design.resistors[k].tcr if g == "resistor" else 0.0
-                    for g, k in var.kind])
-    ratings = [(k, rating) for k, r in enumerate(design.resistors)
-               if (rating := design.rating(r)) is not None]
+    tcr = var.tcr
     gain_columns = [c for c, (group, _) in enumerate(var.kind) if group == "gain"]
     values = np.empty((total, len(design.targets)))
     inside = np.empty((total, len(design.targets)), dtype=bool)
@@ -59,16 +65,13 @@ def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, r0: np.ndar
             drift *= (temperature - REFERENCE_C)[:, None]
             drift += 1.0
             factors *= drift
-        r, s = var.apply(factors, r0, src)
-        result = ev.evaluate(r, s)
+        r, p, s = var.apply(factors, parts0, src)
+        result = ev.evaluate(r, s, part_values=p)
         values[rows] = result.targets
-        inside[rows] = inside_windows(design, result.targets) & np.isfinite(result.targets)
+        inside[rows] = inside_windows(design, result.targets)
         good = inside[rows].all(axis=1)
-        for k, rating in ratings:
-            allowed = allowed_power(rating, temperature, design.margin_frac)
-            good &= result.resistor_power[:, k] <= allowed
-            good &= (result.resistor_voltage[:, k]
-                     <= rating.limiting_voltage_v * design.voltage_margin_frac)
+        good &= ~np.any(exceeds(result.part_power, ev.allowed_power)
+                        | exceeds(result.part_voltage, ev.allowed_voltage), axis=1)
         ok[rows] = good
     updated = []
     for j, t in enumerate(targets):

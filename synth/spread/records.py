@@ -89,12 +89,14 @@ class PartSpread:
     worst_power_bound : float
         A sound upper bound of the dissipation over the box, W.
     allowed_power_hot : float or None
-        Allowed dissipation at the hottest ambient of the temperature range
-        (derated, times the margin), W.
+        Allowed dissipation of the physical part at the design's hottest
+        ambient (derated, times the power use limit; see :mod:`synth.rating`), W.
     utilization : float or None
         ``worst_power / allowed_power_hot``.
     worst_voltage : float
         Largest voltage across the part over the box, V.
+    allowed_voltage : float or None
+        The voltage the design allows the part, V.
     """
 
     ref: str
@@ -104,6 +106,7 @@ class PartSpread:
     allowed_power_hot: float | None
     utilization: float | None
     worst_voltage: float
+    allowed_voltage: float | None = None
 
 
 @dataclass(frozen=True)

@@ -12,33 +12,44 @@ import numpy as np
 
 from synth.circuit.measure import Evaluator, SourceValues
 from synth.design.model import Design
+from synth.rating import exceeds, falls_short
 
 REFERENCE_C = 25.0
 """Temperature at which nominal values hold, °C (the usual TCR reference)."""
 
 
 class SpreadVariables:
-    """The varying quantities of a design and their relative half-widths."""
+    """The varying quantities of a design and their relative half-widths.
+
+    Every physical part with a tolerance or a TCR is its own variable (the
+    two parts of ``R1`` are ``R1A`` and ``R1B``, each with its own deviation),
+    then each controlled source with a gain range, then each toleranced
+    source and setpoint.
+    """
 
     def __init__(self, design: Design, evaluator: Evaluator):
         low_c, high_c = design.temperature_c
         self.span_c = max(abs(low_c - REFERENCE_C), abs(high_c - REFERENCE_C))
-        names, low, high, tol, drift = [], [], [], [], []
+        self.evaluator = evaluator
+        names, low, high, tol, drift, tcr = [], [], [], [], [], []
         self.kind: list[tuple[str, int]] = []
-        for k, r in enumerate(design.resistors):
+        column = 0
+        for r in design.resistors:
             d = r.tcr * self.span_c
-            if r.tolerance == 0 and d == 0:
-                continue
-            names.append(r.ref)
-            low.append((1 - r.tolerance) * (1 - d))
-            high.append((1 + r.tolerance) * (1 + d))
-            tol.append(r.tolerance)
-            drift.append(d)
-            self.kind.append(("resistor", k))
+            for ref in r.part_refs:
+                if r.tolerance != 0 or d != 0:
+                    names.append(ref)
+                    low.append((1 - r.tolerance) * (1 - d))
+                    high.append((1 + r.tolerance) * (1 + d))
+                    tol.append(r.tolerance)
+                    drift.append(d)
+                    tcr.append(r.tcr)
+                    self.kind.append(("part", column))
+                column += 1
         groups: tuple[tuple[str, list[Any]], ...] = (
             ("voltage", [s for s in design.sources if s.kind == "voltage"]),
-                  ("current", [s for s in design.sources if s.kind == "current"]),
-                  ("setpoint", list(design.regulators)))
+            ("current", [s for s in design.sources if s.kind == "current"]),
+            ("setpoint", list(design.regulators)))
         for k, c in enumerate(design.controlled):
             if c.gain_low == c.gain_high:
                 continue
@@ -48,6 +59,7 @@ class SpreadVariables:
             high.append(ends[1])
             tol.append((c.gain_high - c.gain_low) / (2 * abs(c.gain)))
             drift.append(0.0)
+            tcr.append(0.0)
             self.kind.append(("gain", k))
         for group, items in groups:
             for k, item in enumerate(items):
@@ -58,43 +70,72 @@ class SpreadVariables:
                 high.append(1 + item.tolerance)
                 tol.append(item.tolerance)
                 drift.append(0.0)
+                tcr.append(0.0)
                 self.kind.append((group, k))
         self.names = tuple(names)
         self.low, self.high = np.array(low), np.array(high)
         self.tolerance, self.drift = np.array(tol), np.array(drift)
+        self.tcr = np.array(tcr)
+        """Temperature coefficient of each variable, 1/K (0 for sources and gains)."""
 
     def __len__(self) -> int:
         return len(self.names)
 
-    def apply(self, factors: np.ndarray, r0: np.ndarray, src: SourceValues,
-              base: np.ndarray | None = None) -> tuple[np.ndarray, SourceValues]:
-        """Resistances and source values for ``(M, variables)`` multiplicative factors.
+    def column_of_part(self) -> dict[int, int]:
+        """Variable column of each physical part that varies, by part column."""
+        return {k: c for c, (group, k) in enumerate(self.kind) if group == "part"}
 
-        ``base`` gives per-row nominal resistances ``(M, resistors)`` instead of ``r0``.
+    def apply(self, factors: np.ndarray, parts0: np.ndarray, src: SourceValues,
+              base: np.ndarray | None = None
+              ) -> tuple[np.ndarray, np.ndarray, SourceValues]:
+        """Positions, parts and source values for ``(M, variables)`` multiplicative factors.
+
+        Parameters
+        ----------
+        factors : numpy.ndarray
+            ``(M, variables)``: each variable's value over its nominal.
+        parts0 : numpy.ndarray
+            ``(parts,)`` nominal ohm of every physical part.
+        src : SourceValues
+            Nominal source values.
+        base : numpy.ndarray, optional
+            ``(M, parts)`` per-row nominal part values instead of ``parts0``.
+
+        Returns
+        -------
+        positions : numpy.ndarray
+            ``(M, resistors)`` effective ohm.
+        parts : numpy.ndarray
+            ``(M, parts)`` ohm.
+        sources : SourceValues
         """
         m = len(factors)
-        r = np.tile(r0, (m, 1)) if base is None else base.copy()
+        parts = np.tile(parts0, (m, 1)) if base is None else base.copy()
         gains = src.gains if src.gains is not None else np.zeros(0)
         values = {"voltage": np.tile(src.voltages, (m, 1)),
                   "current": np.tile(src.currents, (m, 1)),
                   "setpoint": np.tile(src.setpoints, (m, 1)),
                   "gain": np.tile(gains, (m, 1))}
         for column, (group, k) in enumerate(self.kind):
-            if group == "resistor":
-                r[:, k] *= factors[:, column]
+            if group == "part":
+                parts[:, k] *= factors[:, column]
             else:
                 values[group][:, k] *= factors[:, column]
-        return r, SourceValues(values["voltage"], values["current"], values["setpoint"],
-                               values["gain"] if src.gains is not None else None)
+        return (self.evaluator.effective(parts), parts,
+                SourceValues(values["voltage"], values["current"], values["setpoint"],
+                             values["gain"] if src.gains is not None else None))
 
 
 def box_corners(n: int) -> np.ndarray:
+    """``(2**n, n)`` booleans: every vertex of an n-variable box (True: the high end)."""
     return ((np.arange(2 ** n)[:, None] >> np.arange(n)[None, :]) & 1).astype(bool)
 
 
 def inside_windows(design: Design, values: np.ndarray) -> np.ndarray:
+    """``(M, targets)`` True where each target lies in its window (edges and slack included)."""
     inside = np.ones(values.shape, dtype=bool)
     for j, t in enumerate(design.targets):
         low, high = t.bounds
-        inside[:, j] = (values[:, j] >= low) & (values[:, j] <= high)
+        inside[:, j] = (np.isfinite(values[:, j]) & ~falls_short(values[:, j], low)
+                        & ~exceeds(values[:, j], high))
     return inside

@@ -4,14 +4,16 @@ batched ranges used for ranking.
 
 from __future__ import annotations
 
-__all__ = ["EXACT_VARIABLES", "RANKING_VARIABLES", "WorstCase", "part_spread"]
+__all__ = [
+    "EXACT_VARIABLES", "RANKING_VARIABLES", "WorstCase", "part_spread", "thevenin_peak",
+]
 
 import numpy as np
 
-from synth.circuit.measure import Evaluator
+from synth.circuit.measure import Evaluation, Evaluator
 from synth.design.model import Design
 from synth.errors import DesignError
-from synth.rating import allowed_power
+from synth.rating import use_of
 from synth.spread.records import PartSpread
 from synth.spread.variables import SpreadVariables, box_corners
 
@@ -24,8 +26,34 @@ RANKING_VARIABLES = 10
 varying quantities (1024 vertices)."""
 
 
+def thevenin_peak(i_lo: np.ndarray, i_hi: np.ndarray, r_lo: np.ndarray, r_hi: np.ndarray
+                  ) -> tuple[np.ndarray, np.ndarray]:
+    """Interior dissipation peak of a part between two values of its own resistance.
+
+    The rest of a linear network is a Thevenin source, so the part's current
+    is I = V_th / (R_th + R) and 1/I is linear in R: the two ends give V_th and
+    R_th.  The part's power peaks at R = R_th with V_th²/(4 R_th) (maximum
+    power transfer) when R_th lies between the ends.
+
+    Returns
+    -------
+    peak : numpy.ndarray
+        The interior peak, W (0 where R_th lies outside the span).
+    available : numpy.ndarray
+        The available power |V_th|·|V_th/R_th|/4 (a bound), W.
+    """
+    with np.errstate(all="ignore"):
+        slope = (1 / i_hi - 1 / i_lo) / (r_hi - r_lo)
+        v_th = 1 / slope
+        r_th = (1 / i_lo) / slope - r_lo
+        inside = (r_th > r_lo) & (r_th < r_hi) & np.isfinite(r_th)
+        peak = np.where(inside, v_th ** 2 / (4 * r_th), 0.0)
+        available = np.abs(v_th) * np.abs(v_th / r_th) / 4
+    return peak, available
+
+
 class WorstCase:
-    """Exact worst-case target ranges of many candidates at once (for ranking).
+    """Exact worst case of many candidates at once: target ranges and part stress.
 
     Parameters
     ----------
@@ -43,77 +71,126 @@ class WorstCase:
         self.var = SpreadVariables(design, evaluator)
         if len(self.var) > RANKING_VARIABLES:
             raise DesignError(
-                f"{design.origin}: {len(self.var)} quantities have a tolerance or TCR; ranking "
-                f"by worst case supports at most {RANKING_VARIABLES}; rank by nominal error "
-                "or give fixed parts zero tolerance"
+                f"{design.origin}: {len(self.var)} quantities have a tolerance or TCR; a worst "
+                f"case for every candidate supports at most {RANKING_VARIABLES}; rank and "
+                "require by nominal values, or give fixed parts zero tolerance"
             )
-        bits = box_corners(len(self.var))
-        self.factors = np.where(bits, self.var.high[None, :], self.var.low[None, :])
+        self.bits = box_corners(len(self.var))
+        self.factors = np.where(self.bits, self.var.high[None, :], self.var.low[None, :])
 
-    def ranges(self, r: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """``(low, high)`` of every target over each candidate's tolerance box, ``(M, T)``."""
+    def stress(self, positions: np.ndarray, parts: np.ndarray
+               ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+        """Worst case of each candidate over its tolerance box.
+
+        Parameters
+        ----------
+        positions : numpy.ndarray
+            ``(M, resistors)`` nominal effective ohm (read for its row count).
+        parts : numpy.ndarray
+            ``(M, parts)`` nominal ohm of every physical part.
+
+        Returns
+        -------
+        low, high : numpy.ndarray
+            ``(M, targets)`` extremes of every target (vertex extremes: exact
+            for the linear-fractional targets; a power target also takes its
+            part's interior peak).
+        power, voltage : numpy.ndarray
+            ``(M, parts)`` largest dissipation (vertices and interior peaks)
+            and voltage of every physical part.
+        """
         n_v = len(self.factors)
-        m = len(r)
-        low = np.empty((m, len(self.design.targets)))
-        high = np.empty_like(low)
+        m = len(positions)
+        n_t, n_p = len(self.design.targets), parts.shape[1]
+        low, high = np.empty((m, n_t)), np.empty((m, n_t))
+        power, voltage = np.empty((m, n_p)), np.empty((m, n_p))
         block = max(1, (1 << 17) // n_v)
         src = self.ev.nominal_sources
+        columns = self.var.column_of_part()
         for start in range(0, m, block):
-            rows = r[start:start + block]
+            rows = parts[start:start + block]
             count = len(rows)
-            r_all = np.repeat(rows, n_v, axis=0)
             tiled = np.tile(self.factors, (count, 1))
-            r_all, sources = self.var.apply(tiled, np.zeros(r.shape[1]), src, base=r_all)
+            r_all, p_all, sources = self.var.apply(tiled, rows[0], src,
+                                                   base=np.repeat(rows, n_v, axis=0))
             with np.errstate(all="ignore"):
-                values = self.ev.evaluate(r_all, sources).targets.reshape(count, n_v, -1)
+                ev = self.ev.evaluate(r_all, sources, part_values=p_all)
+            values = ev.targets.reshape(count, n_v, -1)
             low[start:start + count] = values.min(axis=1)
             high[start:start + count] = values.max(axis=1)
+            p = ev.part_power.reshape(count, n_v, -1)
+            worst = p.max(axis=1)
+            current = ev.part_current.reshape(count, n_v, -1)
+            ohms = p_all.reshape(count, n_v, -1)
+            for col, c in columns.items():
+                lo_rows = np.flatnonzero(~self.bits[:, c])
+                hi_rows = lo_rows + (1 << c)
+                peak, _ = thevenin_peak(current[:, lo_rows, col], current[:, hi_rows, col],
+                                        ohms[:, lo_rows, col], ohms[:, hi_rows, col])
+                worst[:, col] = np.maximum(worst[:, col], np.nanmax(peak, axis=1))
+            power[start:start + count] = worst
+            voltage[start:start + count] = ev.part_voltage.reshape(count, n_v, -1).max(axis=1)
+            for k_t, target in enumerate(self.design.targets):
+                if target.kind == "power":
+                    k = self.ev.resistor_index[target.ref or ""]
+                    cols = self.ev.part_columns[k]
+                    if cols.stop - cols.start == 1:
+                        high[start:start + count, k_t] = np.maximum(
+                            high[start:start + count, k_t], worst[:, cols.start])
+        return low, high, power, voltage
+
+    def ranges(self, positions: np.ndarray, parts: np.ndarray
+               ) -> tuple[np.ndarray, np.ndarray]:
+        """``(low, high)`` of every target over each candidate's tolerance box, ``(M, T)``."""
+        low, high, _, _ = self.stress(positions, parts)
         return low, high
 
 
-def part_spread(design: Design, ev: Evaluator, var: SpreadVariables, r0: np.ndarray,
-                 bits: np.ndarray | None, vertices: object, nominal: object,
-                 r_v: np.ndarray) -> list[PartSpread]:
-    hot_c = max(design.temperature_c[1], design.ambient_c)
-    current = vertices.solution.branch_currents[:, : len(r0)]  # type: ignore[attr-defined]
-    volts = vertices.resistor_voltage  # type: ignore[attr-defined]
+def part_spread(design: Design, ev: Evaluator, var: SpreadVariables,
+                bits: np.ndarray | None, vertices: Evaluation, nominal: Evaluation,
+                parts_v: np.ndarray) -> list[PartSpread]:
+    """Worst-case stress of every physical part from the solved vertices.
+
+    ``bits`` are the vertices' corners when every vertex was solved (else None:
+    then no sound bound can be given); ``parts_v`` the ``(vertices, parts)`` ohm.
+    """
+    current = vertices.part_current
+    volts = vertices.part_voltage
     out = []
-    column_of = {k: c for c, (group, k) in enumerate(var.kind) if group == "resistor"}
-    for k, resistor in enumerate(design.resistors):
-        power = current[:, k] ** 2 * r_v[:, k]
+    column_of = var.column_of_part()
+    owner = ev.part_resistor()
+    for col, ref in enumerate(design.part_refs):
+        resistor = design.resistors[int(owner[col])]
+        power = vertices.part_power[:, col]
         worst = float(np.max(power))
-        # without every vertex solved there is no sound bound to give
         bound = worst if bits is not None else np.inf
-        if bits is not None and k in column_of and len(power) > 1:
-            c = column_of[k]
+        if bits is not None and col in column_of and len(power) > 1:
+            c = column_of[col]
             lo_rows = np.flatnonzero(~bits[:, c])
             hi_rows = lo_rows + (1 << c)
-            r_lo, r_hi = r_v[lo_rows, k], r_v[hi_rows, k]
-            i_lo, i_hi = current[lo_rows, k], current[hi_rows, k]
-            with np.errstate(all="ignore"):
-                # I = V_th / (R_th + R): 1/I is linear in R
-                slope = (1 / i_hi - 1 / i_lo) / (r_hi - r_lo)
-                v_th = 1 / slope
-                r_th = (1 / i_lo) / slope - r_lo
-                inside = (r_th > r_lo) & (r_th < r_hi) & np.isfinite(r_th)
-                peak = np.where(inside, v_th ** 2 / (4 * r_th), 0.0)
-                available = np.abs(v_th) * np.abs(v_th / r_th) / 4
+            r_lo, r_hi = parts_v[lo_rows, col], parts_v[hi_rows, col]
+            i_lo, i_hi = current[lo_rows, col], current[hi_rows, col]
+            peak, available = thevenin_peak(i_lo, i_hi, r_lo, r_hi)
             worst = max(worst, float(np.nanmax(peak)) if peak.size else worst)
             # two sound bounds: the available power V_oc I_sc / 4 with both at their box
             # extremes, and (I monotone in R) the largest I² at either end times R at its
             # high end; the tighter one is given
-            by_available = (float(np.nanmax(np.abs(v_th)) * np.nanmax(np.abs(v_th / r_th)) / 4)
-                            if np.all(np.isfinite(available)) else np.inf)
+            with np.errstate(all="ignore"):
+                slope = (1 / i_hi - 1 / i_lo) / (r_hi - r_lo)
+                v_th = 1 / slope
+                r_th = (1 / i_lo) / slope - r_lo
+                by_available = (float(np.nanmax(np.abs(v_th)) * np.nanmax(np.abs(v_th / r_th))
+                                      / 4) if np.all(np.isfinite(available)) else np.inf)
             by_current = float(np.max(np.maximum(i_lo ** 2, i_hi ** 2) * r_hi))
             bound = max(worst, min(by_available, by_current))
-        rating = design.rating(resistor)
-        allowed_hot = (None if rating is None
-                       else float(allowed_power(rating, hot_c, design.margin_frac)))
+        allowance = design.allowance(resistor)
+        allowed = None if allowance is None else allowance.power_w
         out.append(PartSpread(
-            ref=resistor.ref,
-            nominal_power=float(nominal.resistor_power[0, k]),  # type: ignore[attr-defined]
-            worst_power=worst, worst_power_bound=bound, allowed_power_hot=allowed_hot,
-            utilization=None if not allowed_hot else worst / allowed_hot,
-            worst_voltage=float(np.max(volts[:, k])),
+            ref=ref,
+            nominal_power=float(nominal.part_power[0, col]),
+            worst_power=worst, worst_power_bound=bound, allowed_power_hot=allowed,
+            utilization=None if allowed is None else float(use_of(worst, allowed)),
+            worst_voltage=float(np.max(volts[:, col])),
+            allowed_voltage=None if allowance is None else allowance.voltage_v,
         ))
     return out
