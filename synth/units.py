@@ -50,9 +50,8 @@ _PREFIX_EXPONENT = {
 _RKM_EXPONENT = {"L": -3, "R": 0, "K": 3, "M": 6, "G": 9, "T": 12}
 _RKM = re.compile(r"^(?P<whole>\d*)(?P<letter>[LRKMGTrk])(?P<frac>\d*)$")
 _OHM_SUFFIX = re.compile(r"(?:Ω|Ω|[oO][hH][mM][sS]?)$")
-_PLAIN = re.compile(
-    rf"^(?P<num>{_NUMBER})\s*(?P<prefix>meg|MEG|Meg|[pnuµμmkKMGT]?)$"
-)
+_PLAIN = re.compile(rf"^(?P<num>{_NUMBER})\s*(?P<prefix>[pnuµμmkKMGT]?)$")
+_MEG = re.compile(rf"^(?P<num>{_NUMBER})\s*meg$", re.IGNORECASE)  # SI writes M for mega
 _UNIT_NAME = {"V": "voltage", "A": "current", "W": "power", "Hz": "frequency"}
 
 
@@ -118,6 +117,9 @@ def parse_resistance(text: object) -> float:
             f"or {raw.replace('m', '.')}m for milliohms"
         )
     body = _OHM_SUFFIX.sub("", raw).rstrip()
+    meg = _MEG.match(body)
+    if meg:
+        raise DesignError(f"{text!r} is not a resistance; write M for mega ({meg['num']}M)")
     plain = _PLAIN.match(body)
     if not plain or not body:
         raise DesignError(f"{text!r} is not a resistance; {expected}")
@@ -126,8 +128,7 @@ def parse_resistance(text: object) -> float:
         raise DesignError(
             f"{text!r} mixes an exponent and a prefix; write one of them, e.g. 4.7e3 or 4.7k"
         )
-    exponent = 6 if prefix.lower() == "meg" else _PREFIX_EXPONENT[prefix]
-    return _finite(_scaled(plain["num"], exponent), text, "resistance")
+    return _finite(_scaled(plain["num"], _PREFIX_EXPONENT[prefix]), text, "resistance")
 
 
 def parse_quantity(text: object, unit: str) -> float:

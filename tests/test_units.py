@@ -38,7 +38,7 @@ def test_rkm_codes_read(text, ohms):
 @pytest.mark.parametrize(("text", "ohms"), [
     ("4k7", 4700.0), ("4.7k", 4700.0), ("4K7", 4700.0), ("4700", 4700.0),
     ("4.7 kΩ", 4700.0), ("4.7kohm", 4700.0), ("4.7 kohms", 4700.0), ("100m", 0.1),
-    ("1e3", 1000.0), ("2.2M", 2.2e6), ("1meg", 1e6), (4700, 4700.0), (0.5, 0.5),
+    ("1e3", 1000.0), ("2.2M", 2.2e6), (4700, 4700.0), (0.5, 0.5),
     ("10 Ω", 10.0),
 ])
 def test_engineering_resistances_read(text, ohms):
@@ -61,6 +61,19 @@ def test_engineering_resistances_read(text, ohms):
 def test_malformed_resistances_refused(text, fragment):
     with pytest.raises(DesignError, match=fragment):
         parse_resistance(text)
+
+
+@pytest.mark.parametrize(("text", "hint"), [
+    ("4.7meg", "write M for mega (4.7M)"), ("1MEG", "write M for mega (1M)"),
+    ("2.2 Meg", "write M for mega (2.2M)"), ("10megohm", "write M for mega (10M)"),
+])
+def test_meg_is_refused_with_the_si_prefix_hinted(text, hint):
+    # SI writes M for mega (the SI Brochure's prefix table) [SI-brochure]; "meg" is not a prefix
+    with pytest.raises(DesignError) as caught:
+        parse_resistance(text)
+    message = str(caught.value)
+    assert message == f"{text!r} is not a resistance; {hint}"
+    assert "\n" not in message
 
 
 @pytest.mark.parametrize(("text", "unit", "value"), [

@@ -80,27 +80,30 @@ def bias_tables(supply: str, collector_current: str, collector_voltage: str,
 def bias_rules(candidate: Candidate, supply_v: float, beta_least: float) -> list[str]:
     """The rules of thumb of a bias design, checked on one candidate.
 
-    Emitter voltage about a tenth of the supply; divider current at least ten
-    times the base current; Thevenin resistance of the divider at most
-    0.1·β·RE (firm against β) or 0.01·β·RE (stiff), at the least β.
+    The emitter sits at about a tenth of the supply; R2 carries at least ten
+    times the base current; the divider's source resistance R1 ∥ R2 stays below
+    β·RE/10 (the bias holds as β varies) or β·RE/100 (β barely matters), taken
+    at the least β.
     """
     v = candidate.values
     r1, r2, re = v["R1"], v["R2"], v["RE"]
     nodes = candidate.check.nodes
     base_current = next(p.current for p in candidate.parts if p.ref == "Q1.BE")
     divider = next(p.current for p in candidate.parts if p.ref == "R2")
-    thevenin = r1 * r2 / (r1 + r2)
-    firm, stiff = 0.1 * beta_least * re, 0.01 * beta_least * re
-    stiffness = ("stiff" if thevenin <= stiff else "firm" if thevenin <= firm
-                 else "NOT firm")
+    source = r1 * r2 / (r1 + r2)
+    holds, barely = 0.1 * beta_least * re, 0.01 * beta_least * re
+    verdict = ("under both, so β barely moves the bias" if source <= barely
+               else "under the first only, so the bias holds as β varies" if source <= holds
+               else "OVER both, so the bias follows β (lower R1 and R2)")
     return [
-        f"emitter voltage {format_eng(nodes['e'], 'V')} = "
-        f"{nodes['e'] / supply_v * 100:.3g}% of the supply (rule of thumb: about 10%)",
-        f"divider current {format_eng(divider, 'A')} = "
-        f"{divider / max(abs(base_current), 1e-30):.3g} x the base current (rule: at least 10)",
-        f"divider Thevenin resistance {format_eng(thevenin, 'Ω')} against 0.1·β·RE = "
-        f"{format_eng(firm, 'Ω')} (firm) and 0.01·β·RE = {format_eng(stiff, 'Ω')} (stiff) at "
-        f"the least β {beta_least:g}: {stiffness} against β",
+        f"emitter at {format_eng(nodes['e'], 'V')}, {nodes['e'] / supply_v * 100:.3g}% of the "
+        "supply (aim for about 10%)",
+        f"R2 carries {format_eng(divider, 'A')}, "
+        f"{divider / max(abs(base_current), 1e-30):.3g} times the base current "
+        "(aim for at least 10)",
+        f"the base is fed from R1 ∥ R2 = {format_eng(source, 'Ω')}, against "
+        f"β·RE/10 = {format_eng(holds, 'Ω')} and β·RE/100 = {format_eng(barely, 'Ω')} at the "
+        f"least β {beta_least:g}: {verdict}",
     ]
 
 

@@ -6,11 +6,14 @@ stderr naming the file and item, exit code 2, no traceback.
 
 from __future__ import annotations
 
+import warnings
+
 import pytest
 from click.testing import CliRunner
 
 from synth.circuit.network import build_network
 from synth.cli import cli
+from synth.design import reader
 from synth.design.load import load_design
 from synth.errors import DesignError
 
@@ -61,7 +64,7 @@ def test_base_design_reads(tmp_design):
     assert (r1.nodes, r1.value, r1.tolerance, r1.tcr, r1.package) == (
         ("in", "sense"), 20e3, 0.01, 1e-4, "0603")
     (target,) = design.targets
-    assert target.label == "V(sense)" and target.nodes == ("sense", "gnd")
+    assert target.label == "voltage at sense" and target.nodes == ("sense", "gnd")
     assert target.bounds == pytest.approx((3.96, 4.04))
 
 
@@ -104,6 +107,27 @@ within = "50 mV"
     assert targets[2].label == "gain" and targets[2].nodes == ("sense", "gnd", "in", "gnd")
     assert targets[4].bounds == (5e3, 8e3)
     assert targets[5].bounds == pytest.approx((7.95, 8.05))
+    assert [t.label for t in targets] == [
+        "voltage at sense", "current in V1", "gain", "power in R1",
+        "resistance from sense to gnd", "voltage from in to sense"]
+
+
+def test_default_labels_name_the_quantity_in_words(tmp_design):
+    text = BASE + """
+[[target]]
+ratio = [["sense", "gnd"], ["in", "gnd"]]
+equals = 0.3333
+
+[[target]]
+ratio = [["in", "sense"], "in"]
+equals = 0.6667
+
+[[target]]
+current = "R2"
+at_most = "1 mA"
+"""
+    labels = [t.label for t in load_design(tmp_design(text)).targets]
+    assert labels[1:] == ["ratio of sense to in", "ratio of (in - sense) to in", "current in R2"]
 
 
 REFUSED = [
@@ -130,6 +154,17 @@ REFUSED = [
      "kind 'voltag' is not known; did you mean 'voltage'?"),
     (('value = "12 V"', 'value = "12 A"'), "source V1: value: '12 A' is not a voltage"),
     (('ambient = "40 C"', 'margin = 0.5'), "margin: 0.5 is not a percentage"),
+    (('ambient = "40 C"', 'max_power_use = 0.5'), "max_power_use: 0.5 is not a percentage"),
+    (('ambient = "40 C"', 'max_voltage_use = "0%"'),
+     "max_voltage_use '0%' must lie between above 0 % and 100 %"),
+    (('ambient = "40 C"', 'max_power_use = "40%"\nmargin = "40%"'),
+     "[design]: margin and max_power_use are the same setting; keep max_power_use and "
+     "delete margin"),
+    (('ambient = "40 C"', 'voltage_margin = "70%"\nmax_voltage_use = "70%"'),
+     "[design]: voltage_margin and max_voltage_use are the same setting; keep "
+     "max_voltage_use and delete voltage_margin"),
+    (('value = "20k"', 'value = "4.7meg"'),
+     "resistor R1: value: '4.7meg' is not a resistance; write M for mega (4.7M)"),
     (('ground = "gnd"', 'ground = "0"'), "ground node '0' touches no part"),
     (('within = "1%"', 'within = "1%"\nat_most = "5 V"'), "use equals (with within) or"),
     ((None, '\n[[target]]\nvoltage = "in"\ncurrent = "V1"\nat_most = "1 A"\n'),
@@ -176,6 +211,42 @@ def test_refused_input(tmp_design, change, fragment):
     if "TOML" not in fragment and "output cannot move" not in fragment:
         with pytest.raises(DesignError):
             build_network(load_design(path))
+
+
+def test_use_limits_read_under_their_names(tmp_design):
+    text = BASE.replace('ambient = "40 C"',
+                        'ambient = "40 C"\nmax_power_use = "60%"\nmax_voltage_use = "70%"')
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")  # the current names give no deprecation note
+        design = load_design(tmp_design(text))
+    assert design.margin_frac == 0.6 and design.voltage_margin_frac == 0.7
+
+
+@pytest.mark.parametrize(("old", "new", "field"), [
+    ("margin", "max_power_use", "margin_frac"),
+    ("voltage_margin", "max_voltage_use", "voltage_margin_frac"),
+])
+def test_old_use_limit_names_still_read_with_a_note(tmp_design, old, new, field):
+    path = tmp_design(BASE.replace('ambient = "40 C"', f'ambient = "40 C"\n{old} = "60%"'))
+    with pytest.warns(DeprecationWarning) as caught:
+        design = load_design(path)
+    assert getattr(design, field) == 0.6
+    (note,) = [str(w.message) for w in caught if w.category is DeprecationWarning]
+    assert note == (f"{path}, [design]: {old} is the old name of {new} (same meaning) and "
+                    f"will be dropped; rename it to {new}")
+    assert "\n" not in note
+    with pytest.warns(DeprecationWarning):
+        settings = reader._read_design_table(str(path), {old: "60%"})
+    assert settings["deprecations"] == (note,)  # for the command line to print
+
+
+def test_old_use_limit_names_still_check_from_the_command_line(tmp_design):
+    path = tmp_design(BASE.replace('ambient = "40 C"',
+                                   'ambient = "40 C"\nmargin = "50%"\nvoltage_margin = "80%"'))
+    with pytest.warns(DeprecationWarning):
+        result = CliRunner().invoke(cli, ["check", str(path)])
+    assert result.exit_code == 0, result.output
+    assert "50 % of its derated power and 80 % of its limiting element voltage" in result.output
 
 
 def test_missing_file_and_folder(tmp_path):
