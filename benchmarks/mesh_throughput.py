@@ -8,7 +8,7 @@ For ladder networks of 2, 3, 4 and 6 loops it prints
 * the public MeshSolver.solve (candidate axis first, transposes included);
 * a per-candidate loop that forms Z and calls numpy.linalg.solve,
 and the ratio batched / loop, all measured in this one run on one core.
-Then the peak traced memory of a 10^7-candidate run through iter_solve that
+Then the peak traced memory of a 10^7-candidate run through iter_solve_views that
 keeps only the largest node voltage.
 """
 
@@ -93,11 +93,11 @@ def main(quick: bool) -> None:
     r = 10 ** rng.uniform(2, 5, size=(n_big, len(net.resistor_refs)))
     tracemalloc.start()
     peak_v = -np.inf
-    for part in solver.iter_solve(r, voltages=[5.0]):
+    for part in solver.iter_solve_views(r, voltages=[5.0]):
         peak_v = max(peak_v, float(part.node_voltages.max()))
     _, peak = tracemalloc.get_traced_memory()
     tracemalloc.stop()
-    print(f"N = {n_big:.0e} through iter_solve (3 loops): solver peak traced memory "
+    print(f"N = {n_big:.0e} through iter_solve_views (3 loops): solver peak traced memory "
           f"{peak / 2**20:.0f} MiB, plus the input array {r.nbytes / 2**20:.0f} MiB "
           f"(total {(peak + r.nbytes) / 2**20:.0f} MiB), max V {peak_v:.3f}")
 

@@ -191,8 +191,10 @@ def synthesize(
     candidates = _candidates(design, evaluator, choices, ranked.indices)
     if spread is not None or rank_by == "yield":
         settings = spread or SpreadSettings()
-        candidates = [replace(c, spread=analyse_spread(design, c.positions, settings, evaluator))
-                      for c in candidates]
+        candidates = [replace(c, spread=analyse_spread(
+            design, c.positions, settings, evaluator,
+            part_values=np.array([c.check.values[ref] for ref in design.part_refs])))
+            for c in candidates]
     if rank_by == "yield" and candidates:
         order = sorted(candidates, key=lambda c: (-(c.spread.yield_fraction or 0.0)
                                                   if c.spread else 0.0, c.rank))

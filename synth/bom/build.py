@@ -30,11 +30,14 @@ from synth.synthesis import synthesize
 
 
 def _spec(design: Design, ref: str) -> Resistor | None:
-    for resistor in design.resistors:
-        if resistor.ref == ref or (resistor.combine and ref[:-1] == resistor.ref
-                                   and ref[-1] in "AB"):
-            return resistor
-    return None
+    """The position a physical part belongs to (None for a name that is no part)."""
+    found = design.position_of(ref)
+    return None if found is None else design.resistors[found[0]]
+
+
+def _is_free(design: Design, ref: str) -> bool:
+    spec = _spec(design, ref)
+    return spec is not None and spec.free
 
 
 def _key(value: float, resistor: Resistor) -> LineKey:
@@ -121,9 +124,8 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
                 raise InfeasibleError(f"{design.origin}: network {net.name!r} has no standard "
                                       f"values meeting every window and limit; binding: "
                                       f"{result.binding}")
-            candidates = [(c.rank, c.values | {r.ref: r.value for r in design.resistors
-                                                if not r.free and r.value is not None},
-                           c.objective) for c in result.candidates]
+            candidates = [(c.rank, dict(c.check.values), c.objective)
+                          for c in result.candidates]
             if not result.proven_optimal:
                 notes.append(f"network {net.name}: search not proven optimal")
         else:
@@ -131,15 +133,15 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
             if not checked.ok:
                 raise InfeasibleError(f"{design.origin}: network {net.name!r} fails: "
                                       + "; ".join(map(str, checked.problems)))
-            objective = max((abs(t.error) for t in checked.targets if t.error is not None),
-                            default=0.0)
+            objective = max((float(target.objective(report.value))
+                             for target, report in zip(design.targets, checked.targets,
+                                                       strict=True)
+                             if target.equals is not None), default=0.0)
             candidates = [(1, dict(checked.values), objective)]
-        free_refs = {r.ref for r in design.free_resistors}
         if stock_only and stock:
-            def from_stock(values: dict[str, float], d: Design = design,
-                           free: set[str] = free_refs) -> bool:
+            def from_stock(values: dict[str, float], d: Design = design) -> bool:
                 return all(_stock_match(key, stock, d.packages) for ref, key in
-                           bom_parts(d, values) if ref in free or ref[:-1] in free)
+                           bom_parts(d, values) if _is_free(d, ref))
             candidates = [c for c in candidates if from_stock(c[1])]
             if not candidates:
                 raise InfeasibleError(f"{design.origin}: network {net.name!r} has no feasible "
@@ -149,9 +151,13 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
         pools.append(Pool(lines=[frozenset(k for _, k in bom_parts(design, c[1]))
                                  for c in candidates],
                           errors=[c[2] for c in candidates]))
-    all_keys = {cast(LineKey, k) for p in pools for s in p.lines for k in s}
-    in_stock = (frozenset(k for k in all_keys
-                          if _stock_match(k, stock, board.networks[0].design.packages))
+    # each line is matched against the package table of a network that uses it
+    table_of: dict[LineKey, Mapping[str, PackageRating]] = {}
+    for net, pool in zip(board.networks, pools, strict=True):
+        for line_set in pool.lines:
+            for key in line_set:
+                table_of.setdefault(cast(LineKey, key), net.design.packages)
+    in_stock = (frozenset(k for k, table in table_of.items() if _stock_match(k, stock, table))
                 if stock else None)
     outcome = consolidate(pools, in_stock=in_stock, time_limit_s=time_limit_s)
     before = len(set().union(*(p.lines[0] for p in pools)))
@@ -173,11 +179,11 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
                 renumbered[label] = mapping
             for ref, key in parts:
                 refs_by_key[key].append(mapping.get(ref, ref))
-    packages = board.networks[0].design.packages
     lines = []
     for number, key in enumerate(sorted(refs_by_key, key=lambda k: (k.value, k.package,
                                                                      k.tolerance, k.tcr)), 1):
         refs = sorted(refs_by_key[key], key=natural_order)
+        packages = table_of.get(key, board.networks[0].design.packages)
         matches = _stock_match(key, stock, packages) if stock else []
         quantities = [m.quantity for m in matches]
         on_hand = (sum(q for q in quantities if q is not None)

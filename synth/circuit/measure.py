@@ -148,9 +148,7 @@ class Evaluator:
     def _solve(self, solver: MeshSolver | ControlledSolver, r: np.ndarray,
                voltages: np.ndarray, currents: np.ndarray, setpoints: np.ndarray,
                gains: np.ndarray | None) -> MeshSolution:
-        if isinstance(solver, ControlledSolver):
-            return solver.solve(r, voltages, currents, setpoints, gains=gains)
-        return solver.solve(r, voltages, currents, setpoints)
+        return solver.solve(r, voltages, currents, setpoints, gains=gains)
 
     def seen_resistance(self, resistances: np.ndarray, plus: str, minus: str,
                         gains: np.ndarray | None = None) -> np.ndarray:

@@ -226,6 +226,7 @@ class MeshSolver:
         currents: ArrayLike | None = None,
         setpoints: ArrayLike | None = None,
         chunk: int | None = None,
+        gains: ArrayLike | None = None,
     ) -> MeshSolution:
         """Solve every candidate; the whole batch is returned at once.
 
@@ -242,11 +243,18 @@ class MeshSolver:
         chunk : int, optional
             Candidates per block (memory use grows with it, not with N);
             :attr:`preferred_chunk` by default.
+        gains : array_like, optional
+            Controlled sources' gains: the signature is that of
+            :meth:`synth.circuit.controlled.ControlledSolver.solve`; a network
+            without controlled sources takes none (an empty array or None).
 
         Returns
         -------
         MeshSolution
         """
+        if gains is not None and np.size(gains):
+            raise ValueError("gains: this network has no controlled sources; use "
+                             "ControlledSolver for one that has")
         r_all = np.asarray(resistances, dtype=float)
         n = 1 if r_all.ndim == 1 else len(r_all)
         result = MeshSolution(
@@ -256,7 +264,7 @@ class MeshSolver:
             regulator_determinant=np.empty(n) if self.n_g else None,
         )
         start = 0
-        for part in self.iter_solve(r_all, voltages, currents, setpoints, chunk):
+        for part in self.iter_solve_views(r_all, voltages, currents, setpoints, chunk):
             stop = start + len(part.node_voltages)
             result.node_voltages[start:stop] = part.node_voltages
             result.branch_currents[start:stop] = part.branch_currents
@@ -277,9 +285,29 @@ class MeshSolver:
         """Solve block by block, yielding one :class:`MeshSolution` per block.
 
         Same parameters as :meth:`solve`; use this to keep memory bounded when
-        only a reduction of the results is kept.  Each yielded solution holds
-        views of the solver's work arrays: it is valid until the next block is
-        requested, so copy what must outlive that.
+        only a reduction of the results is kept.  Each yielded solution owns
+        its arrays (see :meth:`iter_solve_views` for the copy-free form).
+        """
+        for part in self.iter_solve_views(resistances, voltages, currents, setpoints, chunk):
+            yield MeshSolution(
+                node_voltages=part.node_voltages.copy(),
+                branch_currents=part.branch_currents.copy(),
+                regulator_outputs=part.regulator_outputs.copy(),
+                regulator_determinant=None if part.regulator_determinant is None
+                else part.regulator_determinant.copy())
+
+    def iter_solve_views(
+        self,
+        resistances: ArrayLike,
+        voltages: ArrayLike | None = None,
+        currents: ArrayLike | None = None,
+        setpoints: ArrayLike | None = None,
+        chunk: int | None = None,
+    ) -> Iterator[MeshSolution]:
+        """Like :meth:`iter_solve`, but each solution VIEWS the solver's work arrays.
+
+        A yielded solution is valid only until the next block is requested (the
+        solver overwrites its work arrays): reduce or copy it first.
         """
         chunk = chunk or self.preferred_chunk
         r_all = np.asarray(resistances, dtype=float)
