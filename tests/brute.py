@@ -1,9 +1,10 @@
 """An exhaustive search written independently of synth.search, for the tests.
 
 It enumerates every combination of catalogue values, solves each network by
-modified nodal analysis (synth.nodal, not the mesh solver), measures the
-targets with its own code and applies the power limit with the linear
-derating formula written out here.
+modified nodal analysis [HB-mna] (synth.circuit.nodal, not the mesh solver),
+measures the targets with its own code and applies the power limit with the
+linear derating formula written out here [CP-derating] [CP-margin]. This is
+the reference [CALC-exhaustive] of tests/REFERENCES.md.
 """
 
 from __future__ import annotations
@@ -87,7 +88,8 @@ def exhaustive(design: Design, chunk: int = 200_000):
             rating = design.rating(res)
             if rating is None:
                 continue
-            # linear derating from the rated ambient to the zero-power temperature [CP]
+            # linear derating from the rated ambient to the zero-power temperature
+            # [CP-derating], then the design margins [CP-margin]
             factor = min(1.0, max(0.0, (rating.zero_power_c - design.ambient_c)
                                   / (rating.zero_power_c - rating.rated_ambient_c)))
             allowed = rating.rated_power_w * factor * design.margin_frac

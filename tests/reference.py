@@ -1,8 +1,12 @@
 """Independent reference solvers for the tests (exact, with sympy rationals).
 
-Written separately from synth.mesh and synth.nodal: a plain textbook nodal
-analysis with Kirchhoff's current law at every node, solved exactly by
-sympy's LU solve over rationals (sympy's Matrix.LUsolve documentation).
+Written separately from synth.circuit.mesh and synth.circuit.nodal: a plain
+textbook nodal analysis with Kirchhoff's current law at every node
+[HB-kcl-tellegen], the currents of voltage sources as extra unknowns [HB-mna]
+and the four controlled sources [HB-controlled-sources]. Inputs are converted
+exactly with fractions.Fraction [LIB-fractions] and the equations are solved
+over the rationals by sympy.solve(..., dict=True, rational=True) [LIB-sympy].
+This is the reference [CALC-exact-nodal] of tests/REFERENCES.md.
 """
 
 from __future__ import annotations

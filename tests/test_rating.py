@@ -10,7 +10,7 @@ from synth.rating import allowed_power, derating_factor
 
 
 @pytest.mark.parametrize(("ambient", "factor"), [
-    # linear 70 -> 155 °C curve, common practice; check points FACTS.md section 3 [CALC]
+    # linear 70 -> 155 °C curve, common practice [CP-derating]; check points [CALC-derating]
     (25, 1.0), (70, 1.0), (85, 0.8235), (100, 0.6471), (125, 0.3529), (155, 0.0), (170, 0.0),
 ])
 def test_linear_derating_points(ambient, factor):

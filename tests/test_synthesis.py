@@ -61,6 +61,7 @@ def test_design_json_fields(tmp_design):
     assert set(best["values"]) == {"R1", "R2"}
     assert all(isinstance(v, float) for v in best["values"].values())
     r1, r2 = best["values"]["R1"], best["values"]["R2"]
+    # the unloaded divider, V_out = V_in R2 / (R1 + R2) [HB-divider]
     assert best["targets"][0]["value"] == pytest.approx(12 * r2 / (r1 + r2))  # divider formula
     assert best["objective"] == pytest.approx(abs(best["targets"][0]["error"]))
     assert {"value", "goal", "error"} <= set(best["targets"][0])

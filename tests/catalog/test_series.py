@@ -9,13 +9,13 @@ from synth.catalog.packages import load_package_table
 from synth.catalog.series import load_series, nearest_value, series_names, series_values
 from synth.errors import DesignError
 
-# IEC 60063:2015 Table 1 (FACTS.md section 1) [STD]
+# IEC 60063:2015 Table 1 [IEC60063]
 E3 = [1.0, 2.2, 4.7]
 E6 = [1.0, 1.5, 2.2, 3.3, 4.7, 6.8]
 E12 = [1.0, 1.2, 1.5, 1.8, 2.2, 2.7, 3.3, 3.9, 4.7, 5.6, 6.8, 8.2]
 E24 = [1.0, 1.1, 1.2, 1.3, 1.5, 1.6, 1.8, 2.0, 2.2, 2.4, 2.7, 3.0, 3.3, 3.6, 3.9, 4.3, 4.7,
        5.1, 5.6, 6.2, 6.8, 7.5, 8.2, 9.1]
-# IEC 60063:2015 Table 2, E192 (x 0.01), as listed in FACTS.md section 1 [STD]
+# IEC 60063:2015 Table 2, E192 (x 0.01) [IEC60063]
 E192 = [int(v) for v in """
 100 101 102 104 105 106 107 109 110 111 113 114 115 117 118 120 121 123 124 126 127 129 130 132
 133 135 137 138 140 142 143 145 147 149 150 152 154 156 158 160 162 164 165 167 169 172 174 176
@@ -38,7 +38,7 @@ def test_two_digit_series_match_iec_60063_table_1(name, table):
 
 
 def test_three_digit_series_match_iec_60063_table_2():
-    # E96 = E192[0::2], E48 = E192[0::4] (FACTS.md nesting, [CALC] on the standard's lists)
+    # the E192 table [IEC60063]; E96 = E192[0::2], E48 = E192[0::4] [CALC-eseries]
     assert decade("E192") == [v / 100 for v in E192]
     assert decade("E96") == [v / 100 for v in E192[0::2]]
     assert decade("E48") == [v / 100 for v in E192[0::4]]
@@ -52,7 +52,7 @@ def test_counts_and_order():
 
 def test_irregular_values_are_the_tables_not_the_formula():
     # IEC 60063 lists 2.7..4.7 and 8.2 in E24 where round(10^(i/24), 1) gives other values,
-    # and 9.20 at E192 index 185 where the formula gives 9.19 (FACTS.md section 1 [CALC]).
+    # and 9.20 at E192 index 185 where the formula gives 9.19 [IEC60063] [CALC-eseries].
     formula = [round(10 ** (i / 24), 1) for i in range(24)]
     table = decade("E24")
     differ = [i for i in range(24) if formula[i] != table[i]]
@@ -69,7 +69,7 @@ def test_nesting_of_two_digit_series():
 
 
 def test_e24_and_e96_share_six_values():
-    # FACTS.md section 1 [CALC]: E24 ∩ E96 = {1.0, 1.1, 1.3, 1.5, 2.0, 7.5}
+    # [CALC-eseries]: E24 ∩ E96 = {1.0, 1.1, 1.3, 1.5, 2.0, 7.5}
     assert sorted(set(decade("E24")) & set(decade("E96"))) == [1.0, 1.1, 1.3, 1.5, 2.0, 7.5]
 
 
@@ -82,7 +82,7 @@ def test_values_span_decades_exactly():
 
 
 @pytest.mark.parametrize(("ohms", "name", "expected"), [
-    # FACTS.md section 1, nearest value on a log scale [CALC]
+    # nearest value on a log scale [CALC-eseries]
     (1563, "E24", 1600.0), (1563, "E96", 1580.0), (1563, "E192", 1560.0), (9190, "E192", 9200.0),
     (1.0487, "E24", 1.0), (1.0489, "E24", 1.1),  # the 1.0/1.1 boundary is at 1.0488
     (9.6, "E6", 10.0),
@@ -92,7 +92,7 @@ def test_nearest_value_on_a_log_scale(ohms, name, expected):
 
 
 def test_usual_tolerances():
-    # IEC 60063 informative pairing / common practice (FACTS.md section 1)
+    # IEC 60063 informative pairing / common practice [CP-series-tolerance]
     tolerances = {n: load_series(n).tolerance for n in series_names()}
     assert tolerances == {"E3": 0.4, "E6": 0.2, "E12": 0.1, "E24": 0.05, "E48": 0.02,
                           "E96": 0.01, "E192": 0.005}
@@ -106,7 +106,7 @@ def test_unknown_series_is_refused_with_a_suggestion():
 
 
 def test_bundled_package_table():
-    # typical thick-film chip ratings, common practice (FACTS.md section 3 [CP])
+    # typical thick-film chip ratings, common practice [CP-chip-ratings]
     table = load_package_table()
     expected = {"0201": (0.05, 25), "0402": (0.0625, 50), "0603": (0.1, 50), "0805": (0.125, 150),
                 "1206": (0.25, 200), "1210": (0.333, 200), "2010": (0.75, 200), "2512": (1.0, 200)}
@@ -114,7 +114,7 @@ def test_bundled_package_table():
         assert (table[name].rated_power_w, table[name].limiting_voltage_v) == (power, volts)
         assert table[name].rated_ambient_c == 70 and table[name].zero_power_c == 155
         assert table[name].source
-    # imperial 0201 is metric 0603 (FACTS.md section 2 BOM pitfall [CP])
+    # imperial 0201 is metric 0603, a BOM pitfall [CP-package-codes]
     assert table["0603M"].imperial == "0201"
     assert table["1608M"].name == "0603"
     assert table["axial-1/4W"].rated_power_w == 0.25

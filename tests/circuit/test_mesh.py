@@ -1,9 +1,11 @@
 """The batched loop-current solver, checked against outside references.
 
 References: sympy exact rational solves of the textbook nodal equations
-(tests/reference.py), networkx.resistance_distance, the Wheatstone balance
-condition and loaded-divider formula (handbook), exact effective resistances
-of K5, K3,3, the Petersen graph and the cube (FACTS.md section 5, [CALC] sympy).
+(tests/reference.py) [CALC-exact-nodal], networkx.resistance_distance
+[LIB-networkx-resistance-distance], the Wheatstone balance condition
+[HB-bridge] and loaded-divider formula [HB-loaded-divider] (handbook), exact
+effective resistances of K5, K3,3, the Petersen graph and the cube
+[CALC-effective-resistance].
 """
 
 from __future__ import annotations
@@ -85,6 +87,7 @@ def test_matches_exact_rational_nodal_solve(seed):
         isources.append(("gnd", nodes[1], Fraction(1, 100)))
         data["source"].append({"ref": "IX", "kind": "current", "from": "gnd", "to": nodes[1],
                                "value": 0.01})
+    # the exact rational nodal solve, to a relative 1e-9 [CALC-exact-nodal]
     voltages, currents, delivered = exact_nodal(nodes, resistors, vsources, isources)
     _, ev, sol = solve_design(data)
     got_v = sol.node_voltages[0]
@@ -101,7 +104,8 @@ def test_matches_exact_rational_nodal_solve(seed):
 
 
 def test_one_ohm_next_to_ten_megohm():
-    # mesh vs nodal and vs the exact solve on a network mixing 1 ohm and 10 Mohm
+    # mesh vs nodal [HB-mna] and vs the exact solve [CALC-exact-nodal] on a network mixing
+    # 1 ohm and 10 Mohm
     rng = np.random.default_rng(7)
     for _ in range(5):
         values = [int(v) for v in rng.choice([1, 10_000_000], size=9)]
@@ -136,7 +140,7 @@ def seen(graph, a, b):
 
 
 @pytest.mark.parametrize(("graph", "a", "b", "exact"), [
-    # exact effective resistances with unit resistors, FACTS.md section 5 [CALC, sympy]
+    # exact effective resistances with unit resistors [CALC-effective-resistance]
     (nx.complete_graph(5), 0, 3, Fraction(2, 5)),
     (nx.complete_bipartite_graph(3, 3), 0, 3, Fraction(5, 9)),  # non-planar, across the sides
     (nx.complete_bipartite_graph(3, 3), 0, 1, Fraction(2, 3)),  # within a side
@@ -145,7 +149,7 @@ def seen(graph, a, b):
     (nx.hypercube_graph(3), (0, 0, 0), (0, 0, 1), Fraction(7, 12)),  # cube edge
     (nx.hypercube_graph(3), (0, 0, 0), (0, 1, 1), Fraction(3, 4)),  # face diagonal
     (nx.hypercube_graph(3), (0, 0, 0), (1, 1, 1), Fraction(5, 6)),  # body diagonal
-    # networkx's documented example: R(1,3) = 0.625 = 5/8 (FACTS.md section 7 [LIB])
+    # networkx's documented example: R(1,3) = 0.625 = 5/8 [LIB-networkx-resistance-distance]
     (nx.Graph([(1, 2), (1, 3), (1, 4), (3, 4), (3, 5), (4, 5)]), 1, 3, Fraction(5, 8)),
 ])
 def test_effective_resistance_exact_graphs(graph, a, b, exact):
@@ -162,9 +166,10 @@ def test_effective_resistance_matches_networkx_on_random_graphs(seed):
     for a, b in graph.edges:
         graph[a][b]["weight"] = float(10 ** rng.uniform(0, 6))
     a, b = 0, 5
+    # networkx reads the weight as a resistance here [LIB-networkx-resistance-distance]
     assert seen(graph, a, b) == pytest.approx(
         nx.resistance_distance(graph, a, b, weight="weight", invert_weight=True), rel=1e-9)
-    # Foster's theorem: sum over edges of R_eff / r = n - 1 (FACTS.md section 5 [HB])
+    # Foster's theorem: sum over edges of R_eff / r = n - 1 [HB-foster]
     design, _ = graph_design(graph)
     ev = Evaluator(design)
     r = np.array([[res.value for res in design.resistors]])
@@ -187,7 +192,7 @@ def bridge(r1, r2, r3, r4, r5, supply=10.0):
 
 
 def test_wheatstone_balance():
-    # balanced when R1*R4 = R2*R3: no current in the detector arm (handbook)
+    # balanced when R1*R4 = R2*R3: no current in the detector arm (handbook) [HB-bridge]
     _, ev, sol = solve_design(bridge(1000.0, 2200.0, 4700.0, 10340.0, 470.0))
     assert abs(sol.branch_currents[0, 4]) < 1e-15
     v = dict(zip(ev.network.nodes, sol.node_voltages[0], strict=True))
@@ -199,6 +204,7 @@ def test_five_resistor_bridge_against_exact_solve():
     nodes = ["gnd", "top", "a", "b"]
     resistors = [("top", "a", 1000), ("top", "b", 2200), ("a", "gnd", 3300),
                  ("b", "gnd", 4700), ("a", "b", 680)]
+    # the exact rational nodal solve [CALC-exact-nodal]
     voltages, currents, delivered = exact_nodal(nodes, resistors, [("top", "gnd", 10)])
     _, ev, sol = solve_design(bridge(*map(float, values)))
     v = dict(zip(ev.network.nodes, sol.node_voltages[0], strict=True))
@@ -209,7 +215,7 @@ def test_five_resistor_bridge_against_exact_solve():
 
 
 def test_quarter_bridge_output():
-    # V = Vs * dR / (4R + 2dR): 10 V, 1 kohm, dR = 10 ohm gives 24.876 mV (FACTS.md 6 [HB])
+    # V = Vs * dR / (4R + 2dR): 10 V, 1 kohm, dR = 10 ohm gives 24.876 mV [HB-bridge]
     _, ev, sol = solve_design(bridge(1000.0, 1000.0, 1010.0, 1000.0, None))
     v = dict(zip(ev.network.nodes, sol.node_voltages[0], strict=True))
     assert v["a"] - v["b"] == pytest.approx(10 * 10 / (4 * 1000 + 2 * 10), rel=1e-9)
@@ -217,7 +223,7 @@ def test_quarter_bridge_output():
 
 
 def test_loaded_divider():
-    # Vin * (R2 || RL) / (R1 + R2 || RL): 12 V, 10k/10k/10k gives 4.000 V (FACTS.md 6 [HB])
+    # Vin * (R2 || RL) / (R1 + R2 || RL): 12 V, 10k/10k/10k gives 4.000 V [HB-loaded-divider]
     data = {
         "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
                     "value": "12 V"}],
@@ -255,7 +261,7 @@ def test_batched_candidates_match_one_by_one_and_chunking_is_invisible():
 def test_feedback_networks_with_pin_current():
     # three-terminal adjustable regulator: V = Vref (1 + R1/R2) + I_adj R1, R2 OUT-ADJ,
     # R1 ADJ-ground; 1.25 V, 50 uA, 240/390 gives 3.30075 V, 240/720 gives 5.036 V
-    # (FACTS.md section 6 [HB])
+    # [HB-regulator-adj]
     for r1, expected in ((390.0, 3.30075), (720.0, 5.036)):
         data = {
             "regulator": [{"ref": "U1", "output": "out", "sense": "out", "reference": "adj",
@@ -268,7 +274,7 @@ def test_feedback_networks_with_pin_current():
         _, ev, sol = solve_design(data)
         assert sol.node_voltages[0, ev.node_index["out"]] == pytest.approx(expected, rel=1e-12)
         assert sol.regulator_outputs[0, 0] == pytest.approx(expected, rel=1e-12)
-    # feedback-pin regulator: V = Vref (1 + Rtop/Rbottom) + I Rtop (common practice)
+    # feedback-pin regulator: V = Vref (1 + Rtop/Rbottom) + I Rtop [CP-regulator-fb]
     data = {
         "regulator": [{"ref": "U1", "output": "out", "sense": "fb", "reference": "gnd",
                        "setpoint": "0.8 V"}],
@@ -302,6 +308,7 @@ def test_kirchhoff_current_law_and_power_balance(seed):
         np.add.at(net_out, ends[:, 0], currents)
         np.add.at(net_out, ends[:, 1], -currents)
         scale = max(np.abs(currents).max(), 1e-300)
+        # Kirchhoff's current law at every node, then Tellegen's power balance [HB-kcl-tellegen]
         assert np.abs(net_out).max() <= 1e-9 * scale
         v = sol.node_voltages[k]
         n_r = len(net.resistor_refs)

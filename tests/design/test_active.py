@@ -1,11 +1,12 @@
 """Controlled sources, transistors and amplifiers.
 
-Checks: controlled-source networks against an exact sympy solve
-(tests/reference.py); the textbook voltage-divider bias case (10 V, 10k/2.2k,
-RE 1k, RC 3.6k, V_BE 0.7 V: I_E = 1.10328 mA and V_C = 6.0282 V as β → ∞,
-I_E = 1.08393 mA at β = 100; FACTS.md section 6, computed exactly; the bias
-rules from standard electronics texts, from memory); op-amp gains 1 + Rf/Rg
-and −Rf/Rin (standard op-amp texts).
+Checks: controlled-source networks [HB-controlled-sources] against an exact
+sympy solve (tests/reference.py) [CALC-exact-nodal]; the textbook
+voltage-divider bias case [HB-bjt-bias] (10 V, 10k/2.2k, RE 1k, RC 3.6k,
+V_BE 0.7 V: I_E = 1.10328 mA and V_C = 6.0282 V as β → ∞, I_E = 1.08393 mA at
+β = 100; computed exactly [CALC-bjt-bias]; the bias rules from standard
+electronics texts, from memory [MEM-bjt-rules]); op-amp gains 1 + Rf/Rg and
+−Rf/Rin (standard op-amp texts) [HB-opamp].
 """
 
 from __future__ import annotations
@@ -59,6 +60,7 @@ def test_controlled_sources_match_exact_solve(table, reference):
     data = {**NETWORK, "controlled": [{"ref": "X1", **table}]}
     design = design_from_dict(data)
     result = check(design, verify=True)
+    # controlled sources [HB-controlled-sources] against the exact solve [CALC-exact-nodal]
     voltages, _, _ = exact_nodal(["gnd", "a", "b", "c", "d"], PLAIN, [("a", "gnd", 5)],
                                  [("gnd", "c", 0.002)], [reference])
     for node in ("a", "b", "c", "d"):
@@ -83,13 +85,14 @@ def bias_design(beta, vce_sat="0.2 V", rc="3.6k", polarity="npn", exact_parts=Fa
 
 
 def test_textbook_divider_bias():
+    # the worked textbook case, β → ∞ and β = 100 [CALC-bjt-bias]
     ideal = check(bias_design(1e12), verify=True)
     assert ideal.nodes["e"] / 1e3 == pytest.approx(1.10328e-3, rel=1e-5)
     assert ideal.nodes["c"] == pytest.approx(6.0282, rel=1e-5)
     finite = check(bias_design(100), verify=True)
     assert finite.nodes["e"] / 1e3 == pytest.approx(1.08393e-3, rel=1e-5)
     assert finite.verify_difference < 1e-12
-    # exact: I_E = (V_TH - V_BE) / (R_E + R_TH / (beta + 1))
+    # exact: I_E = (V_TH - V_BE) / (R_E + R_TH / (beta + 1)) [HB-bjt-bias]
     v_th, r_th = 10 * 2.2 / 12.2, 10e3 * 2.2e3 / 12.2e3
     assert finite.nodes["e"] / 1e3 == pytest.approx((v_th - 0.7) / (1e3 + r_th / 101),
                                                     rel=1e-12)
@@ -135,6 +138,7 @@ def test_amplifier_gain_formulas(inverting):
     tables = gain_tables("10", QuickSettings(series="E24"), inverting=inverting)
     best = synthesize(design_from_dict(tables), top=1).candidates[0]
     gain = best.targets[0].value
+    # the closed-loop gains of standard op-amp texts [HB-opamp]
     if inverting:  # -Rf/Rin
         assert gain == pytest.approx(-best.values["RF"] / best.values["RIN"], rel=1e-12)
     else:  # 1 + Rf/Rg
@@ -142,7 +146,7 @@ def test_amplifier_gain_formulas(inverting):
 
 
 def test_finite_open_loop_gain():
-    # closed loop A / (1 + A·RG/(RF+RG)) (standard op-amp texts)
+    # closed loop A / (1 + A·RG/(RF+RG)) (standard op-amp texts) [HB-opamp]
     design = design_from_dict({
         "source": [{"ref": "VIN", "kind": "voltage", "plus": "in", "minus": "gnd",
                     "value": "0.1 V"}],

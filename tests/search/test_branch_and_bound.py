@@ -1,9 +1,9 @@
 """The branch-and-bound search gives the same optimum as an independent exhaustive search.
 
-The brute force (tests/brute.py) enumerates every combination and solves
-each by nodal analysis; objectives are compared with a small tolerance since
-several designs can be exact and their order is then the documented
-tie-break.
+The brute force (tests/brute.py) [CALC-exhaustive] enumerates every
+combination and solves each by nodal analysis [HB-mna]; objectives are
+compared with a small tolerance since several designs can be exact and their
+order is then the documented tie-break.
 """
 
 from __future__ import annotations
@@ -86,6 +86,7 @@ ALL = {**PROBLEMS, **quick_problems()}
 def test_same_optimum_as_exhaustive_search(name):
     design = design_from_dict(ALL[name], origin=name)
     result = synthesize(design, top=5)
+    # the independent exhaustive search, objectives to rtol 1e-9 [CALC-exhaustive]
     objectives, total = exhaustive(design)
     assert total == result.combinations == combinations_of(design)
     assert result.proven_optimal
@@ -101,9 +102,10 @@ def test_same_optimum_as_exhaustive_search(name):
 
 
 def test_millions_of_combinations():
-    # the T pad over E96 from 10 to 1k: 193^3 = 7.2 million combinations; exhaustive check
-    # by the published T-pad relations (independent of any network solve): with both ports
-    # terminated in Z0, Rin = R1 + R2 || (R3 + Z0), Rout = R3 + R2 || (R1 + Z0),
+    # the T pad over E96 from 10 to 1k: 193^3 = 7.2 million combinations [CALC-exhaustive];
+    # exhaustive check by the published T-pad relations [HB-pad] (independent of any
+    # network solve): with both ports terminated in Z0, Rin = R1 + R2 || (R3 + Z0),
+    # Rout = R3 + R2 || (R1 + Z0),
     # V(out)/V(in) = [R2 || (R3 + Z0)] / [R1 + R2 || (R3 + Z0)] * Z0 / (R3 + Z0).
     design = design_from_dict(pad_tables("50", "10 dB", "T", QuickSettings(
         series="E96", value_range="10:1k")), origin="pad")

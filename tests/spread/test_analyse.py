@@ -1,9 +1,10 @@
 """Spread: worst case, RSS, Monte Carlo and yield, against handbook formulas.
 
-Worst-case analysis handbooks (RIAC "Worst Case Analysis"; Smith, RAMS):
-EVA Δy = Σ|∂y/∂xᵢ|Δxᵢ, RSS σ² = Σ(∂y/∂xᵢ)²σᵢ²; tolerance = 3σ for a normal
-spread, σ = t/√3 for a uniform one (common practice).  Check values from
-FACTS.md sections 4 and 5.
+Worst-case analysis handbooks (RIAC "Worst Case Analysis"; Smith, RAMS)
+[HB-wca]: EVA Δy = Σ|∂y/∂xᵢ|Δxᵢ, RSS σ² = Σ(∂y/∂xᵢ)²σᵢ²; tolerance = 3σ for a
+normal spread, σ = t/√3 for a uniform one (common practice) [CP-sigma].  Check
+values: the worked divider [CALC-wca-divider], vertex extremes [HB-bilinear]
+and the interior dissipation peak [CALC-interior-power].
 """
 
 from __future__ import annotations
@@ -40,7 +41,7 @@ def divider(tolerance="1%", tcr="0 ppm/C", within=None, temperature=None):
 
 def test_divider_worst_case_sensitivities_and_rss():
     # 10k/10k at ±1 % with 10 V: exact vertex range 4.95..5.05 V, sensitivities ±0.5,
-    # EVA ±1 %, RSS ±0.707 % (FACTS.md section 4 [CALC])
+    # EVA ±1 %, RSS ±0.707 % [HB-wca] [CALC-wca-divider]
     t = analyse_spread(divider(), settings=SpreadSettings(samples=0)).targets[0]
     assert (t.worst_low, t.worst_high) == pytest.approx((4.95, 5.05), rel=1e-12)
     assert t.low_corner == {"R1": "+", "R2": "-"} and t.high_corner == {"R1": "-", "R2": "+"}
@@ -86,7 +87,7 @@ def test_yield_of_a_known_case():
 
 def test_dissipation_worst_case_finds_the_interior_peak():
     # Rs = RL = 100 ohm, RL ±10 %, 10 V: 0.25 W at RL = Rs inside the box, only
-    # 0.24931 W and 0.24943 W at its vertices (FACTS.md section 5 [CALC])
+    # 0.24931 W and 0.24943 W at its vertices [HB-max-power] [CALC-interior-power]
     design = design_from_dict({
         "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
                     "value": "10 V"}],
@@ -100,11 +101,12 @@ def test_dissipation_worst_case_finds_the_interior_peak():
     assert vertex_powers == pytest.approx([0.24931, 0.24943], abs=1e-5)
     assert rl.worst_power == pytest.approx(0.25, rel=1e-9)
     assert rl.worst_power_bound >= rl.worst_power
-    assert rl.allowed_power_hot == pytest.approx(1.0 * 0.5)  # 2512 at 25 °C, 50 % margin [CP]
+    # 2512: 1 W [CP-chip-ratings], full rating at 25 °C [CP-derating], 50 % margin [CP-margin]
+    assert rl.allowed_power_hot == pytest.approx(1.0 * 0.5)  # 2512 at 25 °C, 50 % margin
 
 
 def test_temperature_coefficient_moves_resistance_by_tcr_times_delta_t():
-    # ΔR/R = TCR · ΔT (common practice): 100 ppm/K over 25 -> 125 °C is ±1 %
+    # ΔR/R = TCR · ΔT (common practice) [CP-tcr]: 100 ppm/K over 25 -> 125 °C is ±1 %
     design = design_from_dict({
         "design": {"temperature": ["25 C", "125 C"]},
         "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
@@ -137,7 +139,8 @@ def test_source_tolerance_is_a_quantity():
 
 def test_ranking_by_worst_case_matches_a_brute_force_over_the_catalogue():
     # divider V = 12 R2 / (R1 + R2); over ±5 % its extremes are R1(1+t), R2(1-t) and the
-    # opposite corner (monotone in each resistance)
+    # opposite corner (monotone in each resistance) [CALC-wca-divider]; the brute force
+    # tries every catalogue pair [CALC-exhaustive]
     design = design_from_dict({
         "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
                     "value": "12 V"}],

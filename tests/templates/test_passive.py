@@ -25,7 +25,7 @@ def run(*args):
 
 
 @pytest.mark.parametrize(("shape", "db", "arm", "middle"), [
-    # published matched-pad values, 50 ohm (FACTS.md section 6; K = 10^(dB/20))
+    # published matched-pad values, 50 ohm (K = 10^(dB/20)) [HB-pad]
     ("T", 3, 8.5499, 141.9262), ("T", 6, 16.6139, 66.9310), ("T", 10, 25.9747, 35.1364),
     ("T", 20, 40.9091, 10.1010),
     ("Pi", 3, 292.4022, 17.6148), ("Pi", 6, 150.4760, 37.3519), ("Pi", 10, 96.2475, 71.1512),
@@ -42,7 +42,7 @@ def test_pad_formulas_and_ideal_values(shape, db, arm, middle):
 
 
 def test_feedback_formula():
-    # V = Vref (1 + Rtop/Rbottom) + I Rtop, I into the feedback pin (common practice)
+    # V = Vref (1 + Rtop/Rbottom) + I Rtop, I into the feedback pin [CP-regulator-fb]
     design = design_from_dict(regulator_tables("feedback", "0.6 V", "3.3 V", QuickSettings(),
                                                pin_current="2 uA"))
     best = synthesize(design, top=1).candidates[0]
@@ -51,8 +51,8 @@ def test_feedback_formula():
 
 
 def test_adjust_formula():
-    # V = Vref (1 + Rbottom/Rtop) + I Rbottom, I out of the adjust pin (common practice);
-    # 1.25 V, 50 uA with 240/390 gives 3.30075 V (FACTS.md section 6)
+    # V = Vref (1 + Rbottom/Rtop) + I Rbottom, I out of the adjust pin (handbook);
+    # 1.25 V, 50 uA with 240/390 gives 3.30075 V [HB-regulator-adj]
     design = design_from_dict(regulator_tables("adjust", "1.25 V", "3.3 V", QuickSettings(
         series="E24", value_range="200:1k"), pin_current="50 uA", min_current="5 mA"))
     result = synthesize(design, top=10)
@@ -65,7 +65,7 @@ def test_adjust_formula():
 
 
 @pytest.mark.parametrize(("supply", "forward", "count", "current", "ohms"), [
-    # R = (Vs - n Vf) / I (common practice; FACTS.md section 6)
+    # R = (Vs - n Vf) / I (common practice) [CP-led]
     ("5 V", "2.0 V", 1, "20 mA", 150.0), ("3.3 V", "2.0 V", 1, "10 mA", 130.0),
     ("12 V", "2.0 V", 2, "20 mA", 400.0),
 ])
