@@ -10,8 +10,9 @@ every physical part's current, voltage and dissipation comes from
 from __future__ import annotations
 
 __all__ = [
-    "MAX_PARTS", "PART_SUFFIXES", "TARGET_KINDS", "TARGET_UNITS", "ControlledSource", "Design",
-    "PartShares", "Position", "Regulator", "Resistor", "Source", "Target", "Transistor",
+    "MAX_PARTS", "PART_SUFFIXES", "REQUIREMENTS", "TARGET_KINDS", "TARGET_UNITS",
+    "ControlledSource", "Design", "PartShares", "Position", "Regulator", "Resistor", "Source",
+    "Target", "Transistor",
 ]
 
 import math
@@ -26,6 +27,8 @@ from synth.rating import Allowance, allowance
 
 TARGET_KINDS = ("voltage", "current", "ratio", "power", "resistance")
 TARGET_UNITS = {"voltage": "V", "current": "A", "power": "W", "resistance": "Ω", "ratio": ""}
+REQUIREMENTS = ("nominal", "worst-case", "yield")
+"""Bases a design's windows and limits may be required to hold on."""
 MAX_PARTS = 6
 """Most physical parts one position may hold (series strings of 3-6 parts carry high voltage)."""
 PART_SUFFIXES = "ABCDEF"
@@ -333,7 +336,7 @@ class Target:
     Attributes
     ----------
     label : str
-        Name shown in tables, e.g. ``"V(sense)"`` or the user's ``name``.
+        Name shown in tables, e.g. ``"voltage at sense"`` or the user's ``name``.
     kind : {"voltage", "current", "ratio", "power", "resistance"}
         What is measured.
     nodes : tuple of str
@@ -454,6 +457,14 @@ class Design:
         The package table in force.
     sources, resistors, regulators, targets : tuple
         The parts and requirements, in file order.
+    require : {"nominal", "worst-case", "yield"}
+        On which basis every window, bound and limit must hold: at nominal
+        values, over the whole tolerance box, or in at least ``min_yield`` of
+        Monte Carlo samples (95 % lower confidence bound).
+    min_yield : float or None
+        The least yield (fraction) with ``require = "yield"``.
+    deprecations : tuple of str
+        One note per old key name the file used (still read for one version).
     """
 
     origin: str
@@ -470,6 +481,9 @@ class Design:
     packages: Mapping[str, PackageRating] = field(repr=False)
     controlled: tuple[ControlledSource, ...] = ()
     transistors: tuple[Transistor, ...] = ()
+    require: str = "nominal"
+    min_yield: float | None = None
+    deprecations: tuple[str, ...] = ()
 
     @property
     def free_resistors(self) -> tuple[Resistor, ...]:

@@ -36,6 +36,7 @@ from synth.design.fields import (
 )
 from synth.design.model import (
     MAX_PARTS,
+    REQUIREMENTS,
     TARGET_KINDS,
     TARGET_UNITS,
     Design,
@@ -59,7 +60,8 @@ _TOP_KEYS = ("design", "source", "resistor", "regulator", "controlled", "transis
 
 _DESIGN_KEYS = (
     "title", "ground", "ambient", "max_power_use", "max_voltage_use", "temperature",
-    "package", "packages", "tolerance", "tcr", "notes", "margin", "voltage_margin",
+    "package", "packages", "tolerance", "tcr", "require", "min_yield", "notes", "margin",
+    "voltage_margin",
 )
 
 
@@ -122,6 +124,18 @@ def _read_design_table(origin: str, raw: Any) -> dict[str, Any]:
     settings["packages_path"] = reader.text("packages") if reader.has("packages") else None
     settings["default_tolerance"] = reader.fraction("tolerance", _DEFAULT_TOLERANCE, upper=0.99)
     settings["default_tcr"] = reader.parsed("tcr", parse_tcr, _DEFAULT_TCR)
+    settings["require"] = reader.text("require", "nominal")
+    if settings["require"] not in REQUIREMENTS:
+        reader.fail(f"require {settings['require']!r} is not known"
+                    f"{nearest_name(settings['require'], REQUIREMENTS)}; use one of "
+                    f"{', '.join(REQUIREMENTS)}")
+    settings["min_yield"] = None
+    if reader.has("min_yield"):
+        if settings["require"] != "yield":
+            reader.fail('min_yield applies with require = "yield"; add it or drop min_yield')
+        settings["min_yield"] = reader.fraction("min_yield", "0%", strict=True)
+    elif settings["require"] == "yield":
+        reader.fail('require = "yield" needs min_yield, such as min_yield = "99%"')
     if reader.has("notes") and not isinstance(reader.table["notes"], str):
         reader.fail("notes must be text")
     for note in notes:  # once the table has read cleanly
@@ -449,6 +463,8 @@ def design_from_dict(data: Mapping[str, Any], origin: str = "<design>") -> Desig
         temperature_c=settings["temperature_c"], packages=packages,
         sources=sources, resistors=resistors, regulators=regulators, targets=targets,
         controlled=active.controlled, transistors=active.transistors,
+        require=settings["require"], min_yield=settings["min_yield"],
+        deprecations=settings["deprecations"],
     )
     check_references(design)
     return design

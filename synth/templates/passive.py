@@ -66,7 +66,7 @@ def design_table(title: str, settings: QuickSettings) -> dict[str, Any]:
     read_option("--ambient", parse_temperature, settings.ambient)
     read_option("--margin", parse_fraction, settings.margin)
     table = {"title": title, "ground": "gnd", "ambient": settings.ambient,
-             "margin": settings.margin}
+             "max_power_use": settings.margin}
     if settings.package:
         table["package"] = settings.package
     return table
