@@ -105,3 +105,67 @@ def test_progress_bar_after_a_second(monkeypatch, capsys):
     quiet = cli_module._Progress(enabled=False)
     quiet(0.9)
     assert capsys.readouterr().err == "" and not quiet.shown
+
+
+@pytest.mark.parametrize(("args", "fragment"), [
+    (("divider", "--input", "12 V", "--output", "3.3 V", "--within", "10 mA"),
+     "--within: '10 mA' is not a voltage"),
+    (("divider", "--input", "12 V", "--output", "3.3 V", "--ambient", "hot"),
+     "--ambient: 'hot' is not a temperature"),
+    (("divider", "--input", "12 V", "--output", "3.3 V", "--margin", "lots"),
+     "--margin: 'lots' is not a percentage"),
+    (("divider", "--input", "12 V", "--output", "3.3 V", "--load", "big"),
+     "--load: 'big' is not a resistance"),
+    (("led", "--supply", "5 V", "--forward", "2 V", "--current", "20 mV"),
+     "--current: '20 mV' is not a current"),
+    (("gain", "--gain", "10", "--within", "tight"), "--within: 'tight' is neither"),
+    (("regulator", "--reference", "0.8 V", "--output", "3.3 V", "--range", "1k-10k"),
+     "separated by a colon"),
+])
+def test_option_values_refused_while_parsing(args, fragment):
+    result = run(*args)
+    assert result.exit_code == 2, result.output
+    assert fragment in result.stderr
+    assert len(result.stderr.strip().splitlines()) == 1 and "Traceback" not in result.stderr
+
+
+def test_range_option_reads_one_rule_for_series_and_quick_commands():
+    for args in (("series", "E12", "--range", "10k:1k"),
+                 ("divider", "--input", "12 V", "--output", "3.3 V", "--range", "10k:1k")):
+        result = run(*args)
+        assert result.exit_code == 2 and "is empty or not positive" in result.stderr
+
+
+@pytest.mark.parametrize(("options", "axis", "deprecated"), [
+    ((), "supply", False),
+    (("--plot-x", "hottest"), "hottest", False),
+    (("--cost", "distinct"), "distinct", True),
+])
+def test_plot_axis_option_and_its_old_name(monkeypatch, tmp_path, options, axis, deprecated):
+    from synth.report import plots
+
+    seen = []
+
+    def scatter(result, folder, cost="supply"):
+        seen.append(cost)
+        return []
+
+    monkeypatch.setattr(plots, "candidate_scatter", scatter)
+    monkeypatch.setattr(plots, "target_histograms", lambda *args: [])
+    result = run("divider", "--input", "12 V", "--output", "3.3 V", "--samples", "0",
+                 "--top", "2", "--plots", str(tmp_path), *options)
+    assert result.exit_code == 0, result.output
+    assert seen == [axis]
+    note = [line for line in result.stderr.splitlines() if "deprecated" in line]
+    assert note == (["rnsynth: --cost is deprecated and goes in the next version; use --plot-x"]
+                    if deprecated else [])
+
+
+def test_bias_rules_use_the_supply_and_least_beta_given():
+    result = run("bias", "--supply", "10 V", "--collector-current", "1 mA",
+                 "--collector-voltage", "5 V", "--beta", "100:40:300", "--samples", "0",
+                 "--top", "1", "--json")
+    assert result.exit_code == 0, result.output
+    rules = json.loads(result.output)["rules"]
+    assert any("least β 40" in line for line in rules)
+    assert any("% of the supply" in line for line in rules)
