@@ -303,6 +303,17 @@ class SynthesisResult:
         Search time, s.
     rank_by : str
         ``"nominal"``, ``"worst-case"`` or ``"yield"``: what ordered the candidates.
+    require : str
+        The basis every window and limit had to hold on (see ``Design.require``).
+    min_yield : float or None
+        The least yield required, with ``require = "yield"``.
+    considered : int
+        How many candidates were re-checked (and, by yield, ranked or filtered).
+    unlimited_objective : float or None
+        When a part limit costs the best design accuracy: the objective the
+        catalogue reaches with every part limit dropped.
+    binding_limits : tuple of Problem
+        The part limits that cost that accuracy (the limit-free best design breaks them).
     """
 
     design: Design
@@ -315,3 +326,8 @@ class SynthesisResult:
     combinations: int
     elapsed_s: float
     rank_by: str = "nominal"
+    require: str = "nominal"
+    min_yield: float | None = None
+    considered: int = 0
+    unlimited_objective: float | None = None
+    binding_limits: tuple[Problem, ...] = ()

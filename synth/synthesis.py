@@ -11,24 +11,25 @@ limit.
 
 from __future__ import annotations
 
-__all__ = ["RANKINGS", "synthesize"]
+__all__ = ["RANKINGS", "YIELD_POOL", "synthesize"]
 
-import math
 from collections.abc import Callable
 from dataclasses import replace
 
 import numpy as np
 
+from synth.binding import limit_text, nearest_text
 from synth.catalog.series import coarsest_series
 from synth.checking import check_block
 from synth.circuit.measure import Evaluator
-from synth.design.model import Design
+from synth.design.model import REQUIREMENTS, Design
 from synth.errors import DesignError
-from synth.results import Candidate, SynthesisResult, TargetReport
+from synth.results import Candidate, Problem, SynthesisResult, TargetReport
 from synth.search.branch_and_bound import SearchOutcome, search
 from synth.search.choices import Choices, choices_for, combination_count
 from synth.search.ideal import ideal_values
 from synth.search.problem import SearchProblem
+from synth.search.ranking import TIE_TOLERANCE
 from synth.spread.analyse import analyse_spread
 from synth.spread.records import SpreadSettings
 from synth.spread.worst_case import WorstCase
@@ -90,23 +91,59 @@ def _objective(design: Design, reports: tuple[TargetReport, ...]) -> float:
     return max(terms, default=0.0)
 
 
-def _binding(candidate: Candidate) -> str:
-    """The problem the nearest design breaks most, in words."""
-    worst, text = -math.inf, "a target or limit"
-    for problem in candidate.problems:
-        if problem.kind == "window":
-            target = next(t for t in candidate.targets if t.label == problem.subject)
-            scale = abs(target.goal) if target.goal else max(abs(problem.limit), 1e-300)
-            gap = abs(problem.value - problem.limit) / scale
-            described = f"target {problem.subject!r} ({problem})"
-        else:
-            gap = problem.value / problem.limit - 1 if problem.limit > 0 else math.inf
-            what = "dissipation" if problem.kind == "power" else "voltage"
-            described = (f"the {what} limit of {problem.subject} ({problem.value:.4g} "
-                         f"{problem.unit} against {problem.limit:.4g} {problem.unit} allowed)")
-        if gap > worst:
-            worst, text = gap, described
-    return text
+YIELD_POOL = 50
+"""Candidates ranked or filtered by yield: the nominal best this many, whatever ``top`` is."""
+
+
+def _limit_cost(design: Design, evaluator: Evaluator, choices: list[Choices],
+                seeds: np.ndarray | None, best: Candidate | None, time_limit_s: float | None
+                ) -> tuple[tuple[Problem, ...], Candidate | None]:
+    """The part limits that cost the best design accuracy, and the limit-free best.
+
+    Searches again with every part's power and voltage limit dropped (windows
+    kept).  When that finds a design although none met everything (``best``
+    None), or reaches a smaller objective than ``best``, the limits its best
+    design breaks are the ones that bind.
+    """
+    if not any(r.package for r in design.resistors):
+        return (), None
+    free = search(design, evaluator, choices, top=1, time_limit_s=time_limit_s, seeds=seeds,
+                  part_limits=False)
+    if not len(free.ranked.objective):
+        return (), None
+    unlimited = _candidates(design, evaluator, choices, free.ranked.indices[:1])[0]
+    if best is not None and unlimited.objective >= best.objective - TIE_TOLERANCE:
+        return (), None
+    return tuple(p for p in unlimited.problems if p.kind != "window"), unlimited
+
+
+def _with_goal_status(candidate: Candidate, binding: str | None,
+                      unlimited: Candidate | None) -> Candidate:
+    """Mark each soft goal that a limit costs accuracy as ``goal missed``."""
+    if binding is None or unlimited is None:
+        return candidate
+    targets = []
+    for report, free in zip(candidate.targets, unlimited.targets, strict=True):
+        if (report.status == "soft goal" and report.error is not None
+                and free.error is not None and abs(free.error) < abs(report.error)):
+            report = replace(report, status="goal missed", binding=binding,
+                             unlimited_error=free.error)
+        targets.append(report)
+    return replace(candidate, targets=tuple(targets))
+
+
+def _spread_of(design: Design, evaluator: Evaluator, candidate: Candidate,
+               settings: SpreadSettings) -> Candidate:
+    parts = np.array([candidate.check.values[ref] for ref in design.part_refs])
+    return replace(candidate, spread=analyse_spread(design, candidate.positions, settings,
+                                                    evaluator, part_values=parts))
+
+
+def _yield_low(candidate: Candidate) -> float:
+    spread = candidate.spread
+    if spread is None or spread.yield_interval is None:
+        return 0.0
+    return spread.yield_interval[0]
 
 
 def synthesize(
@@ -117,6 +154,8 @@ def synthesize(
     progress: Callable[[float], None] | None = None,
     spread: SpreadSettings | None = None,
     rank_by: str = "nominal",
+    require: str | None = None,
+    min_yield: float | None = None,
 ) -> SynthesisResult:
     """Choose standard values for a design's free parts.
 
@@ -138,7 +177,17 @@ def synthesize(
         ``"worst-case"`` the largest worst-case relative error over the
         tolerance box (exact, by the same branch and bound); ``"yield"``
         finds the nominal best candidates, then orders them by Monte Carlo
-        yield (highest first; ties keep the nominal order).
+        yield (highest first; ties keep the nominal order), considering the
+        nominal best :data:`YIELD_POOL` whatever ``top`` is.
+    require : {"nominal", "worst-case", "yield"}, optional
+        On which basis every window, bound and limit must hold (the design's
+        ``require`` by default): at nominal values; over the whole tolerance
+        box (exact: the search keeps only candidates that hold at every vertex,
+        and every part's interior dissipation peak); or in at least
+        ``min_yield`` of Monte Carlo samples, judged by the 95 % Clopper–Pearson
+        lower bound, among the nominal best :data:`YIELD_POOL`.
+    min_yield : float, optional
+        Least yield (fraction) with ``require="yield"``; the design's by default.
 
     Returns
     -------
@@ -167,43 +216,84 @@ def synthesize(
     """
     if rank_by not in RANKINGS:
         raise DesignError(f"rank_by {rank_by!r} is not known; use one of {', '.join(RANKINGS)}")
+    require = require or design.require
+    if require not in REQUIREMENTS:
+        raise DesignError(f"require {require!r} is not known; use one of "
+                          f"{', '.join(REQUIREMENTS)}")
+    min_yield = design.min_yield if min_yield is None else min_yield
+    if require == "yield" and min_yield is None:
+        raise DesignError(f"{design.origin}: require = \"yield\" needs min_yield, such as 99%")
+    if time_limit_s is not None and not time_limit_s > 0:
+        raise DesignError(f"time limit {time_limit_s!r} s must be a positive number of seconds")
     choices = [choices_for(r, design.origin) for r in design.free_resistors]
     evaluator = Evaluator(design)
-    ranges = WorstCase(design, evaluator).ranges if rank_by == "worst-case" else None
+    worst = (WorstCase(design, evaluator)
+             if rank_by == "worst-case" or require == "worst-case" else None)
+    ranges = worst.ranges if worst is not None and rank_by == "worst-case" else None
+    robust = worst.holds if worst is not None and require == "worst-case" else None
     ideal = ideal_values(design, evaluator)
     seeds = _seeds(choices, ideal)
-    outcome: SearchOutcome = search(design, evaluator, choices, top=top,
+    by_yield = rank_by == "yield" or require == "yield"
+    pool = max(top, YIELD_POOL) if by_yield else top
+    outcome: SearchOutcome = search(design, evaluator, choices, top=pool,
                                     time_limit_s=time_limit_s, seeds=seeds, progress=progress,
-                                    target_ranges=ranges)
+                                    target_ranges=ranges, robust=robust)
     feasible = len(outcome.ranked.objective) > 0
-    binding = None
-    if not feasible:
-        remaining = None if time_limit_s is None else max(time_limit_s - outcome.elapsed_s, 1.0)
-        relaxed = search(design, evaluator, choices, top=min(top, 5), time_limit_s=remaining,
-                         seeds=seeds, relaxed=True)
-        ranked = relaxed.ranked
-        proven = outcome.proven and relaxed.proven
-        evaluated = outcome.evaluated + relaxed.evaluated
-        elapsed = outcome.elapsed_s + relaxed.elapsed_s
+    evaluated, elapsed, proven = outcome.evaluated, outcome.elapsed_s, outcome.proven
+
+    def remaining() -> float | None:
+        return None if time_limit_s is None else max(time_limit_s - elapsed, 1.0)
+
+    if feasible:
+        candidates = _candidates(design, evaluator, choices, outcome.ranked.indices)
     else:
-        ranked, proven = outcome.ranked, outcome.proven
-        evaluated, elapsed = outcome.evaluated, outcome.elapsed_s
-    candidates = _candidates(design, evaluator, choices, ranked.indices)
-    if spread is not None or rank_by == "yield":
-        settings = spread or SpreadSettings()
-        candidates = [replace(c, spread=analyse_spread(
-            design, c.positions, settings, evaluator,
-            part_values=np.array([c.check.values[ref] for ref in design.part_refs])))
-            for c in candidates]
-    if rank_by == "yield" and candidates:
-        order = sorted(candidates, key=lambda c: (-(c.spread.yield_fraction or 0.0)
-                                                  if c.spread else 0.0, c.rank))
-        candidates = [replace(c, rank=k) for k, c in enumerate(order, start=1)]
-    if not feasible and candidates:
-        binding = _binding(candidates[0])
+        relaxed = search(design, evaluator, choices, top=min(top, 5),
+                         time_limit_s=remaining(), seeds=seeds, relaxed=True)
+        proven = proven and relaxed.proven
+        evaluated += relaxed.evaluated
+        elapsed += relaxed.elapsed_s
+        candidates = _candidates(design, evaluator, choices, relaxed.ranked.indices)
+    settings = spread or (SpreadSettings() if by_yield else None)
+    if settings is not None:
+        candidates = [_spread_of(design, evaluator, c, settings) for c in candidates]
+    considered = len(candidates)
+    yield_short = False
+    if feasible and require == "yield":
+        assert min_yield is not None
+        passing = [c for c in candidates if _yield_low(c) >= min_yield]
+        if not passing:
+            feasible = yield_short = False
+            yield_short = True
+            candidates = sorted(candidates, key=lambda c: (-_yield_low(c), c.rank))[:top]
+        else:
+            candidates = passing
+    if by_yield and candidates:
+        candidates = sorted(candidates, key=lambda c: (
+            -(c.spread.yield_fraction or 0.0) if c.spread else 0.0, c.rank))
+    candidates = [replace(c, rank=k) for k, c in enumerate(candidates[:top], start=1)]
+    binding = None
+    limits: tuple[Problem, ...] = ()
+    unlimited: Candidate | None = None
+    if candidates and (not feasible or any(t.status == "soft goal"
+                                           for t in candidates[0].targets)):
+        limits, unlimited = _limit_cost(design, evaluator, choices, seeds,
+                                        candidates[0] if feasible else None, remaining())
+    if limits:
+        binding = "; ".join(limit_text(design, p) for p in limits)
+    elif yield_short and candidates and min_yield is not None:
+        binding = (f"yield: the best of {considered} candidates reaches "
+                   f"{_yield_low(candidates[0]) * 100:.3g} % (95 % lower bound), short of "
+                   f"min_yield {min_yield * 100:g} %")
+    elif not feasible and candidates:
+        binding = nearest_text(candidates[0])
+    if feasible and binding is not None:
+        candidates = [_with_goal_status(c, binding, unlimited) for c in candidates]
     return SynthesisResult(
         design=design, ideal=ideal, candidates=tuple(candidates),
         proven_optimal=proven, feasible=feasible and bool(candidates),
         binding=binding, evaluated=evaluated, combinations=combination_count(choices),
-        elapsed_s=elapsed, rank_by=rank_by,
+        elapsed_s=elapsed, rank_by=rank_by, require=require, min_yield=min_yield,
+        considered=considered,
+        unlimited_objective=None if unlimited is None else unlimited.objective,
+        binding_limits=limits,
     )

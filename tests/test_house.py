@@ -21,6 +21,7 @@ LAYERS = (
     ("templates",),
     ("bom",),
     ("checking", "synthesis"),
+    ("binding",),
     ("results", "cautions"),
     ("search",),
     ("spread",),

@@ -96,7 +96,8 @@ def test_infeasible_power_limit_is_named():
     })
     result = synthesize(design)
     assert not result.feasible
-    assert result.binding is not None and "dissipation limit" in result.binding
+    assert result.binding is not None and "would dissipate" in result.binding
+    assert "0201 allows 25 mW" in result.binding
 
 
 def test_time_limit_marks_the_result_unproven():

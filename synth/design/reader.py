@@ -250,14 +250,17 @@ def _read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
     else:
         tolerance = settings["default_tolerance"]
     tcr = reader.parsed("tcr", parse_tcr) if reader.has("tcr") else settings["default_tcr"]
-    package = reader.text("package") if reader.has("package") else settings["default_package"]
+    bom = raw.get("bom", True)
+    if not isinstance(bom, bool):
+        reader.fail(f"bom must be true or false, not {bom!r}")
+    # a part left off the BOM models something else (a load, a sensor, a termination): the
+    # design's default package does not rate it, only a package given on the part itself
+    default_package = settings["default_package"] if bom else None
+    package = reader.text("package") if reader.has("package") else default_package
     if package is not None and package not in packages:
         hint = nearest_name(package, packages)
         reader.fail(f"package {package!r} is not in the package table{hint}; "
                     f"use one of {', '.join(sorted(packages))} or add a row to your table")
-    bom = raw.get("bom", True)
-    if not isinstance(bom, bool):
-        reader.fail(f"bom must be true or false, not {bom!r}")
     return Resistor(
         ref=ref, nodes=(a, b), value=value, choose=choose, stock_path=stock_path, range=span,
         tolerance=tolerance, tcr=tcr, package=package, position=position, bom=bom,

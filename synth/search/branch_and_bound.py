@@ -36,7 +36,7 @@ import numpy as np
 from synth.circuit.measure import Evaluator
 from synth.design.model import Design
 from synth.search.choices import Choices
-from synth.search.problem import SearchProblem, TargetRanges
+from synth.search.problem import RobustCheck, SearchProblem, TargetRanges
 from synth.search.ranking import TIE_TOLERANCE, RankedCandidates
 
 _LEAF_PER_VERTEX = 4  # enumerate a box outright once it holds at most 4 x 2^k candidates
@@ -109,6 +109,8 @@ def search(
     relaxed: bool = False,
     progress: Callable[[float], None] | None = None,
     target_ranges: TargetRanges | None = None,
+    robust: RobustCheck | None = None,
+    part_limits: bool = True,
 ) -> SearchOutcome:
     """Find the ``top`` best candidates by branch and bound.
 
@@ -136,6 +138,13 @@ def search(
         (the tolerance box, computed by the spread)
         instead of the nominal error.  A candidate's worst-case error is at
         least its nominal error, so the nominal box bounds stay sound.
+    robust : callable, optional
+        Keeps only the nominally feasible candidates for which it returns True
+        (every window and limit over the tolerance box): a subset of the
+        nominally feasible ones, so the nominal box bounds stay sound.
+    part_limits : bool
+        False drops every part's power and voltage limit (windows stay): used
+        to find what a limit costs a goal.
 
     Returns
     -------
@@ -149,7 +158,8 @@ def search(
     lower choice indices, position by position.
     """
     start = time.perf_counter()
-    problem = SearchProblem(design, evaluator, choices, relaxed, target_ranges)
+    problem = SearchProblem(design, evaluator, choices, relaxed, target_ranges, robust,
+                            part_limits)
     k = len(choices)
     sizes = np.array([len(c) for c in choices], dtype=np.int64)
     total = math.prod(int(s) for s in sizes)

@@ -4,7 +4,7 @@ over boxes.
 
 from __future__ import annotations
 
-__all__ = ["SearchProblem", "TargetRanges", "distinct_values"]
+__all__ = ["RobustCheck", "SearchProblem", "TargetRanges", "distinct_values"]
 
 from collections.abc import Callable
 
@@ -21,6 +21,11 @@ TargetRanges = Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]]
 target, ``(M, targets)`` each: the worst-case ranges a caller ranks by (the spread owns how they
 are computed)."""
 
+RobustCheck = Callable[[np.ndarray, np.ndarray], np.ndarray]
+"""Given positions ``(M, resistors)`` and parts ``(M, parts)`` ohm of nominally feasible
+candidates, True where every window and limit also holds on the basis the design requires
+(for example over the whole tolerance box)."""
+
 
 class SearchProblem:
     """A design's targets and limits as arrays, evaluated over candidate blocks.
@@ -32,9 +37,11 @@ class SearchProblem:
     """
 
     def __init__(self, design: Design, evaluator: Evaluator, choices: list[Choices],
-                 relaxed: bool, target_ranges: TargetRanges | None = None):
+                 relaxed: bool, target_ranges: TargetRanges | None = None,
+                 robust: RobustCheck | None = None, part_limits: bool = True):
         self.design, self.ev, self.choices, self.relaxed = design, evaluator, choices, relaxed
         self.target_ranges = target_ranges
+        self.robust = robust
         self.free = np.array([evaluator.resistor_index[c.ref] for c in choices], dtype=int)
         self.base = np.array([r.value if r.value is not None else 1.0 for r in design.resistors])
         self.base_parts = evaluator.part_values(self.base[None, :])[0]
@@ -51,8 +58,11 @@ class SearchProblem:
                           for k, t in enumerate(targets) if t.kind == "ratio"}
         self.power_of = {k: evaluator.resistor_index[t.ref or ""]
                          for k, t in enumerate(targets) if t.kind == "power"}
-        self.allowed_p = evaluator.allowed_power
-        self.allowed_v = evaluator.allowed_voltage
+        # without part limits (to find what a limit costs) every part is unrated here
+        self.allowed_p = (evaluator.allowed_power if part_limits
+                          else np.full_like(evaluator.allowed_power, np.nan))
+        self.allowed_v = (evaluator.allowed_voltage if part_limits
+                          else np.full_like(evaluator.allowed_voltage, np.nan))
         first = np.array([cols.start for cols in evaluator.part_columns], dtype=int)
         # every part of a position shares its package, so one allowance per position
         self.position_allowed_p = self.allowed_p[first] if len(first) else np.zeros(0)
@@ -129,6 +139,8 @@ class SearchProblem:
             keep = np.isfinite(objective)
         else:
             keep = self.feasible(ev.targets, ev.part_power, ev.part_voltage) & np.isfinite(error)
+            if self.robust is not None and keep.any():
+                keep[keep] = self.robust(r[keep], parts[keep])
             objective = error
             if self.target_ranges is not None and keep.any() and self.has_goal.any():
                 objective = error.copy()

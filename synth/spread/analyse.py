@@ -39,7 +39,7 @@ import numpy as np
 
 from synth.circuit.measure import Evaluator
 from synth.design.model import Design
-from synth.spread.monte_carlo import monte_carlo
+from synth.spread.monte_carlo import monte_carlo, yield_interval
 from synth.spread.records import PartSpread, SpreadResult, SpreadSettings, TargetSpread
 from synth.spread.variables import SpreadVariables, box_corners
 from synth.spread.worst_case import EXACT_VARIABLES, part_spread
@@ -140,11 +140,13 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
     parts = part_spread(design, ev, var, bits if exact else None, vertices, nominal, p_v)
     targets = _with_power_peaks(design, ev, targets, parts)
     yield_fraction = None
+    interval = None
     if settings.samples > 0:
         targets, yield_fraction = monte_carlo(design, ev, var, parts0, src, settings, targets)
+        interval = yield_interval(round(yield_fraction * settings.samples), settings.samples)
     return SpreadResult(variables=var.names, targets=tuple(targets), parts=tuple(parts),
                         yield_fraction=yield_fraction, settings=settings,
-                        temperature_c=design.temperature_c)
+                        temperature_c=design.temperature_c, yield_interval=interval)
 
 
 def _with_power_peaks(design: Design, ev: Evaluator, targets: list[TargetSpread],

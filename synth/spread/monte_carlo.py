@@ -3,7 +3,7 @@
 
 from __future__ import annotations
 
-__all__ = ["monte_carlo"]
+__all__ = ["YIELD_CONFIDENCE", "monte_carlo", "yield_interval"]
 
 import numpy as np
 
@@ -12,6 +12,9 @@ from synth.design.model import Design
 from synth.rating import exceeds
 from synth.spread.records import SpreadSettings, TargetSpread
 from synth.spread.variables import REFERENCE_C, SpreadVariables, inside_windows
+
+YIELD_CONFIDENCE = 0.95
+"""Confidence level of the yield interval."""
 
 _MC_BLOCK = 1 << 15
 """Samples drawn and solved per block: arrays stay in cache; the random stream is drawn
@@ -80,3 +83,27 @@ def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, parts0: np.
             **{**t.__dict__, "mc_mean": float(np.mean(drawn)), "mc_std": float(np.std(drawn)),
                "mc_values": drawn, "inside": float(np.mean(inside[:, j]))}))
     return updated, float(np.mean(ok))
+
+
+def yield_interval(passed: int, samples: int, confidence: float = YIELD_CONFIDENCE
+                   ) -> tuple[float, float]:
+    """Clopper–Pearson interval of a yield from ``passed`` of ``samples``, fractions.
+
+    Examples
+    --------
+    >>> low, high = yield_interval(50, 100)
+    >>> round(low, 4), round(high, 4)
+    (0.3983, 0.6017)
+
+    Notes
+    -----
+    The exact binomial interval (Clopper & Pearson, Biometrika 26, 1934), from
+    the beta distribution's quantiles (scipy.stats.beta).
+    """
+    from scipy.stats import beta  # here: scipy loads only when a yield is estimated
+
+    alpha = 1 - confidence
+    low = 0.0 if passed == 0 else float(beta.ppf(alpha / 2, passed, samples - passed + 1))
+    high = 1.0 if passed == samples else float(beta.ppf(1 - alpha / 2, passed + 1,
+                                                         samples - passed))
+    return low, high

@@ -124,6 +124,9 @@ class SpreadResult:
     settings : SpreadSettings
     temperature_c : tuple of float
         Operating range used, °C.
+    yield_interval : tuple of float or None
+        The 95 % Clopper–Pearson confidence interval of the yield (exact
+        binomial), or None without Monte Carlo.
     """
 
     variables: tuple[str, ...]
@@ -132,6 +135,7 @@ class SpreadResult:
     yield_fraction: float | None
     settings: SpreadSettings
     temperature_c: tuple[float, float]
+    yield_interval: tuple[float, float] | None = None
 
     @property
     def worst_error(self) -> float:

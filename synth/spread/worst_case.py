@@ -13,7 +13,7 @@ import numpy as np
 from synth.circuit.measure import Evaluation, Evaluator
 from synth.design.model import Design
 from synth.errors import DesignError
-from synth.rating import use_of
+from synth.rating import exceeds, falls_short, use_of
 from synth.spread.records import PartSpread
 from synth.spread.variables import SpreadVariables, box_corners
 
@@ -138,6 +138,23 @@ class WorstCase:
                         high[start:start + count, k_t] = np.maximum(
                             high[start:start + count, k_t], worst[:, cols.start])
         return low, high, power, voltage
+
+    def holds(self, positions: np.ndarray, parts: np.ndarray) -> np.ndarray:
+        """``(M,)`` True where every window and part limit holds over the whole box.
+
+        Targets at their vertex extremes (exact for linear-fractional targets;
+        a power target with its interior peak), each physical part at its
+        largest dissipation (vertices and interior peaks) and voltage; the
+        comparisons are those of :mod:`synth.rating`, slack included.
+        """
+        low, high, power, voltage = self.stress(positions, parts)
+        ok = np.all(np.isfinite(low) & np.isfinite(high), axis=1)
+        for j, target in enumerate(self.design.targets):
+            w_low, w_high = target.bounds
+            ok &= ~falls_short(low[:, j], w_low) & ~exceeds(high[:, j], w_high)
+        ok &= ~np.any(exceeds(power, self.ev.allowed_power)
+                      | exceeds(voltage, self.ev.allowed_voltage), axis=1)
+        return ok
 
     def ranges(self, positions: np.ndarray, parts: np.ndarray
                ) -> tuple[np.ndarray, np.ndarray]:

@@ -9,7 +9,8 @@ runs the same engine as for any design file.
 from __future__ import annotations
 
 __all__ = [
-    "QuickSettings", "design_table", "divider_tables", "free_part", "led_tables", "pad_ideal",
+    "QuickSettings",
+    "default_window", "design_table", "divider_tables", "free_part", "led_tables", "pad_ideal",
     "pad_tables", "read_option", "regulator_tables", "value_range", "with_goal",
 ]
 
@@ -17,6 +18,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from synth.catalog.packages import load_package_table
+from synth.catalog.series import load_series
 from synth.errors import DesignError
 from synth.rating import allowed_power
 from synth.units import (
@@ -78,10 +80,27 @@ def free_part(ref: str, nodes: list[str], settings: QuickSettings,
             "range": value_range(settings, default_range)}
 
 
+def default_window(settings: QuickSettings) -> str:
+    """The window a quick command's main goal gets unless ``--within`` is given.
+
+    The tolerance usually paired with the chosen series (E96: 1 %), so that a
+    goal the limits push out of reach fails instead of passing as the nearest
+    value; 1 % for a stock list.
+    """
+    if settings.within:
+        return settings.within
+    if settings.series.lower().endswith(".csv"):
+        return "1%"
+    try:
+        tolerance = load_series(settings.series).tolerance
+    except DesignError:
+        return "1%"  # the design reader names the unknown series
+    return f"{tolerance * 100:g}%"
+
+
 def with_goal(target: dict[str, Any], goal: str, settings: QuickSettings) -> dict[str, Any]:
     target["equals"] = goal
-    if settings.within:
-        target["within"] = settings.within
+    target["within"] = default_window(settings)
     return target
 
 
@@ -102,8 +121,8 @@ def divider_tables(input_voltage: str, output_voltage: str, settings: QuickSetti
     if load is not None:
         if read_option("--load", parse_resistance, load) <= 0:
             raise DesignError(f"--load {load!r} must be positive")
-        resistors.append({"ref": "RLOAD", "nodes": ["out", "gnd"], "value": load,
-                          "note": "the load the divider drives"})
+        resistors.append({"ref": "RLOAD", "nodes": ["out", "gnd"], "value": load, "bom": False,
+                          "note": "the load the divider drives (a model, not a part)"})
     targets = [with_goal({"name": "output", "voltage": "out"}, output_voltage, settings)]
     if max_current is not None:
         read_option("--max-current", parse_quantity, max_current, "A")
@@ -152,7 +171,8 @@ def regulator_tables(style: str, reference: str, output_voltage: str, settings: 
     resistors = [free_part("RTOP", ["out", tap], settings),
                  free_part("RBOT", [tap, "gnd"], settings)]
     if load is not None:
-        resistors.append({"ref": "RLOAD", "nodes": ["out", "gnd"], "value": load})
+        resistors.append({"ref": "RLOAD", "nodes": ["out", "gnd"], "value": load, "bom": False,
+                          "note": "the load the regulator drives (a model, not a part)"})
     targets = [with_goal({"name": "output", "voltage": "out"}, output_voltage, settings)]
     bound: dict[str, Any] = {"name": "divider current", "current": "RTOP"}
     if min_current is not None:
@@ -264,11 +284,11 @@ def pad_tables(impedance: str, loss: str, shape: str, settings: QuickSettings
         "source": [{"ref": "ITEST", "kind": "current", "from": "gnd", "to": "in",
                     "value": "1 mA", "note": "test drive; the pad's response is linear"}],
         "resistor": [
-            {"ref": "RS", "nodes": ["in", "gnd"], "value": impedance,
-             "note": "source termination"},
+            {"ref": "RS", "nodes": ["in", "gnd"], "value": impedance, "bom": False,
+             "note": "source termination (a model, not a part)"},
             *pad,
-            {"ref": "RL", "nodes": ["out", "gnd"], "value": impedance,
-             "note": "load termination"},
+            {"ref": "RL", "nodes": ["out", "gnd"], "value": impedance, "bom": False,
+             "note": "load termination (a model, not a part)"},
         ],
         "target": [
             with_goal({"name": "input match", "resistance": ["in", "gnd"]}, half, settings),

@@ -72,8 +72,10 @@ def quick_problems():
     settings = QuickSettings(series="E96", value_range="1k:100k")
     feedback = regulator_tables("feedback", "0.6 V", "3.3 V", settings, pin_current="1 uA",
                                 max_current="200 uA")
+    # 0805: an 0603 RBOT would have to dissipate about 54 mW against its 50 mW allowance
     adjust = regulator_tables("adjust", "1.25 V", "12 V", QuickSettings(
-        series="E48", value_range="100:10k"), pin_current="50 uA", min_current="5 mA")
+        series="E48", value_range="100:10k", package="0805"), pin_current="50 uA",
+        min_current="5 mA")
     pad = pad_tables("50", "6 dB", "T", QuickSettings(series="E48", value_range="10:1k"))
     return {"feedback regulator with pin current": feedback,
             "adjustable regulator with adjust current": adjust, "T pad": pad}
