@@ -28,7 +28,7 @@ from synth.units import parse_decibels, parse_fraction, parse_quantity, parse_re
 
 if TYPE_CHECKING:
     from synth.design.model import Design
-    from synth.results import Candidate
+    from synth.results import Candidate, SynthesisResult
     from synth.spread.records import SpreadSettings
     from synth.templates.passive import QuickSettings
 
@@ -300,6 +300,8 @@ class _Search:
     time_limit: float | None
     as_json: bool
     quiet: bool
+    require: str | None
+    min_yield: _Given | None
 
     @property
     def plot_axis(self) -> str:
@@ -322,6 +324,12 @@ _search_group = _option_group(_Search, [
                       "marked unproven."),
     click.option("--json", "as_json", is_flag=True, help="Print the results as JSON."),
     click.option("--quiet", is_flag=True, help="No progress bar."),
+    click.option("--require", type=click.Choice(["nominal", "worst-case", "yield"]),
+                 default=None,
+                 help="Basis every window and limit must hold on [default: the design's "
+                      "require, else nominal]."),
+    click.option("--min-yield", type=PERCENT, default=None,
+                 help='Least Monte Carlo yield with --require yield, e.g. "99%".'),
 ])
 
 
@@ -420,7 +428,7 @@ Rules = Callable[["Candidate"], list[str]]
 
 
 def _run_design(design: Design, search: _Search, spread: _Spread,
-                rules: Rules | None = None) -> None:
+                rules: Rules | None = None, prepared: SynthesisResult | None = None) -> None:
     from synth.report.synthesis import design_json, design_text
     from synth.synthesis import synthesize
 
@@ -430,10 +438,19 @@ def _run_design(design: Design, search: _Search, spread: _Spread,
     if search.top < 1:
         raise DesignError(f"--top {search.top} must be at least 1")
     settings = spread.settings()
+    if search.time_limit is not None and not search.time_limit > 0:
+        raise DesignError(f"--time-limit {search.time_limit} must be a positive number of "
+                          "seconds")
+    if search.min_yield is not None and search.require not in (None, "yield"):
+        raise DesignError("--min-yield goes with --require yield; add it or drop --min-yield")
+    for note in design.deprecations:
+        click.echo(f"rnsynth: note: {note}", err=True)
     progress = _Progress(enabled=not search.quiet and sys.stderr.isatty())
     try:
-        result = synthesize(design, top=search.top, time_limit_s=search.time_limit,
-                            progress=progress, spread=settings, rank_by=search.rank_by)
+        result = (prepared if prepared is not None else synthesize(
+            design, top=search.top, time_limit_s=search.time_limit, progress=progress,
+            spread=settings, rank_by=search.rank_by, require=search.require,
+            min_yield=None if search.min_yield is None else search.min_yield.value))
     finally:
         progress.close()
     if search.as_json:
@@ -464,14 +481,30 @@ def _quick_run(tables: dict[str, Any], origin: str, quick: _Quick, search: _Sear
     from synth.design.reader import design_from_dict
     from synth.files import write_atomic
 
-    design = design_from_dict(tables, origin=origin)
+    prepared = None
+    if quick.package.lower() == "auto":
+        from synth.synthesis import synthesize
+        from synth.templates.packages import synthesize_auto
+
+        def run(candidate_design: Design) -> SynthesisResult:
+            return synthesize(candidate_design, top=search.top, time_limit_s=search.time_limit,
+                              spread=spread.settings(), rank_by=search.rank_by,
+                              require=search.require,
+                              min_yield=None if search.min_yield is None
+                              else search.min_yield.value)
+
+        tables, design, prepared, chosen = synthesize_auto(tables, origin, run)
+        if not search.as_json:
+            click.echo("packages chosen: " + ", ".join(map(str, chosen)))
+    else:
+        design = design_from_dict(tables, origin=origin)
     if quick.save is not None:
         import tomli_w
 
         write_atomic(quick.save, tomli_w.dumps(tables), force=quick.force)
         if not search.as_json:
             click.echo(f"design file written: {quick.save}")
-    _run_design(design, search, spread, rules)
+    _run_design(design, search, spread, rules, prepared)
 
 
 # -- commands ----------------------------------------------------------------------------
@@ -649,10 +682,10 @@ def led_command(supply: _Given, forward: _Given, count: int, current: _Given, qu
 
     settings = quick.settings()
     if quick.package.lower() == "auto":
-        settings = replace(settings, package=None)
+        settings = replace(settings, package="0603")  # the automatic choice follows
     tables, chosen = led_tables(supply=supply.text, forward=forward.text, count=count,
                                 current=current.text, settings=settings)
-    if not search.as_json:
+    if not search.as_json and quick.package.lower() != "auto":
         click.echo(f"package: {chosen}")
     _quick_run(tables, "rnsynth led options", quick, search, spread)
 

@@ -135,6 +135,8 @@ def target_json(target: TargetReport) -> dict[str, Any]:
         "value": json_number(target.value), "goal": json_number(target.goal),
         "low": json_number(target.low), "high": json_number(target.high),
         "error": json_number(target.error), "met": target.met,
+        "error_unit": "" if target.relative else target.unit, "status": target.status,
+        "binding": target.binding, "unlimited_error": json_number(target.unlimited_error),
     }
 
 

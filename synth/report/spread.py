@@ -40,7 +40,8 @@ def spread_text(spread: SpreadResult, units: list[str]) -> str:
             t.label, _value(t.nominal, unit),
             f"{_value(t.worst_low, unit)} ({_corner(t.low_corner)})",
             f"{_value(t.worst_high, unit)} ({_corner(t.high_corner)})",
-            f"±{t.rss * 100:.3g}%", _value(t.mc_mean, unit), _value(t.mc_std, unit),
+            (f"±{_value(t.rss_abs, unit)}" if t.goal == 0 else f"±{t.rss * 100:.3g}%"),
+            _value(t.mc_mean, unit), _value(t.mc_std, unit),
             "-" if t.inside is None else f"{t.inside * 100:.4g}%",
         ])
     if rows:

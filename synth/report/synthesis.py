@@ -11,19 +11,51 @@ from tabulate import tabulate
 from synth.report.check import part_json, problem_json, target_json
 from synth.report.numbers import json_number
 from synth.report.spread import spread_json, spread_text
-from synth.results import Candidate, SynthesisResult
+from synth.report.verdict import error_text, verdict_text
+from synth.results import Candidate, SynthesisResult, TargetReport
 from synth.units import format_eng
 
 _UNIT_DIGITS = 5
 
 
-def _target_cell(t: Any) -> str:
+def _target_cell(t: TargetReport) -> str:
     value = format_eng(t.value, t.unit, _UNIT_DIGITS) if t.unit else f"{t.value:.6g}"
     if t.goal is not None and t.goal != 0 and t.error is not None:
-        value += f" ({t.error * 100:+.3g}%)"
+        value += f" ({error_text(t)})"
     if not t.met:
         value += " OUT"
+    elif t.status == "goal missed":
+        value += " MISSED"
     return value
+
+
+def _worst_term(candidate: Candidate) -> TargetReport | None:
+    """The goal target whose error sets the candidate's objective."""
+    goals = [t for t in candidate.targets if t.goal is not None and t.error is not None]
+    if not goals:
+        return None
+
+    def term(t: TargetReport) -> float:
+        scale = abs(t.goal or 0.0) or max(abs(t.high - (t.goal or 0.0)), 1e-300)
+        return abs(t.value - (t.goal or 0.0)) / scale
+
+    return max(goals, key=term)
+
+
+def _error_cells(candidate: Candidate) -> list[str]:
+    """Nominal, worst-case and RSS error of the target that sets the objective, in its terms."""
+    worst = _worst_term(candidate)
+    s = candidate.spread
+    if worst is None or s is None:
+        return ["-", "-", "-"]
+    spread = next(x for x in s.targets if x.label == worst.label)
+    goal = worst.goal or 0.0
+    if worst.relative:
+        wc = max(abs(spread.worst_low - goal), abs(spread.worst_high - goal)) / abs(goal)
+        return [error_text(worst), f"{wc * 100:.3g}%", f"{spread.rss * 100:.3g}%"]
+    wc = max(abs(spread.worst_low - goal), abs(spread.worst_high - goal))
+    return [error_text(worst), format_eng(wc, worst.unit, 4), format_eng(spread.rss_abs,
+                                                                         worst.unit, 4)]
 
 
 def _row(candidate: Candidate, refs: list[str]) -> list[str]:
@@ -39,8 +71,7 @@ def _row(candidate: Candidate, refs: list[str]) -> list[str]:
     cells.append(format_eng(candidate.supply_current, "A"))
     if candidate.spread is not None:
         s = candidate.spread
-        cells += [f"{candidate.objective * 100:.3g}%", f"{s.worst_error * 100:.3g}%",
-                  f"{s.rss_error * 100:.3g}%",
+        cells += [*_error_cells(candidate),
                   "-" if s.yield_fraction is None else f"{s.yield_fraction * 100:.4g}%"]
     return cells
 
@@ -71,16 +102,11 @@ def design_text(result: SynthesisResult) -> str:
                           disable_numparse=True))
     lines.append("")
     best = result.candidates[0]
-    if result.feasible:
-        lines.append("result: the best design meets every target window and limit")
-    else:
-        head = ("NO standard values meet every window and limit" if result.proven_optimal
-                else "no design meeting every window and limit was found within the time "
-                     "limit (give the search more time)")
-        tail = f"; the nearest designs are shown. Binding: {result.binding}" if (
-            result.binding) else ""
-        lines.append(f"result: {head}{tail}")
-        lines.extend(f"  best design: {p}" for p in best.problems)
+    lines.extend(verdict_text(result))
+    if result.considered > len(result.candidates) and (result.rank_by == "yield"
+                                                       or result.require == "yield"):
+        lines.append(f"yield was estimated for the nominal best {result.considered} "
+                     "candidates and ranks them all")
     hot = best.hottest
     if hot is not None and hot.utilization is not None:
         lines.append(f"hottest part of the best design: {hot.ref} at "
@@ -125,6 +151,12 @@ def design_json(result: SynthesisResult) -> dict[str, Any]:
         "evaluated": result.evaluated,
         "elapsed_s": result.elapsed_s,
         "rank_by": result.rank_by,
+        "require": result.require,
+        "min_yield": json_number(result.min_yield),
+        "considered": result.considered,
+        "unlimited_objective": json_number(result.unlimited_objective),
+        "binding_limits": [problem_json(p) for p in result.binding_limits],
+        "verdict": verdict_text(result)[0].removeprefix("result: "),
         "candidates": [_candidate_json(c) for c in result.candidates],
         "cautions": list(best.check.cautions) if best else [],
     }

@@ -105,6 +105,7 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
             sens = slope / nominal_targets[None, :]
     else:
         sens = np.zeros((0, len(design.targets)))
+        slope = sens
 
     # worst case over the vertices (or sensitivity-sign corners when too many)
     exact = n <= EXACT_VARIABLES
@@ -128,13 +129,15 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
         widths = np.concatenate([var.tolerance, var.drift])
         both = np.concatenate([sens[:, j], sens[:, j]]) if n else np.zeros(0)
         rss = float(np.sqrt(np.nansum((both * widths) ** 2))) if n else 0.0
+        slopes = np.concatenate([slope[:, j], slope[:, j]]) if n else np.zeros(0)
+        rss_abs = float(np.sqrt(np.nansum((slopes * widths) ** 2))) if n else 0.0
         targets.append(TargetSpread(
             label=t.label, goal=t.equals, nominal=float(nominal_targets[j]),
             worst_low=float(min(column[lo_at], nominal_targets[j])),
             worst_high=float(max(column[hi_at], nominal_targets[j])),
             low_corner=corner(lo_at), high_corner=corner(hi_at), exact=exact, rss=rss,
             sensitivities={name: float(sens[i, j]) for i, name in enumerate(var.names)},
-            mc_mean=None, mc_std=None, mc_values=None, inside=None,
+            mc_mean=None, mc_std=None, mc_values=None, inside=None, rss_abs=rss_abs,
         ))
 
     parts = part_spread(design, ev, var, bits if exact else None, vertices, nominal, p_v)

@@ -47,7 +47,12 @@ class TargetSpread:
         True when every vertex was solved (else the corners come from the
         sensitivity signs).
     rss : float
-        Root-sum-square deviation, as a fraction of the nominal value.
+        Root-sum-square deviation, as a fraction of the nominal value (each
+        tolerance and each part's TCR drift over the temperature range is one
+        term of the root-sum-square).
+    rss_abs : float
+        The same root-sum-square deviation in the target's unit (what a zero
+        goal, such as a bridge null, is judged by).
     sensitivities : dict of str to float
         % change of the target per % change of each quantity.
     mc_mean, mc_std : float or None
@@ -72,6 +77,7 @@ class TargetSpread:
     mc_std: float | None
     mc_values: np.ndarray | None
     inside: float | None
+    rss_abs: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -139,7 +145,10 @@ class SpreadResult:
 
     @property
     def worst_error(self) -> float:
-        """Largest worst-case relative error over targets with a non-zero goal (0 if none)."""
+        """Largest worst-case relative error over targets with a non-zero goal (0 if none).
+
+        Zero goals are judged in their unit: see :attr:`TargetSpread.worst_low`.
+        """
         errors = [max(abs(t.worst_low - t.goal), abs(t.worst_high - t.goal)) / abs(t.goal)
                   for t in self.targets if t.goal]
         return max(errors, default=0.0)
