@@ -196,7 +196,7 @@ def exceeds(value: ArrayLike, limit: ArrayLike) -> np.ndarray:
     value = np.asarray(value, dtype=float)
     limit = np.asarray(limit, dtype=float)
     with np.errstate(invalid="ignore"):
-        return value > limit + LIMIT_SLACK * np.abs(limit)
+        return value > limit + LIMIT_SLACK * np.abs(limit)  # type: ignore[no-any-return]  # numpy types this array expression as Any
 
 
 def falls_short(value: ArrayLike, limit: ArrayLike) -> np.ndarray:
@@ -210,4 +210,4 @@ def falls_short(value: ArrayLike, limit: ArrayLike) -> np.ndarray:
     value = np.asarray(value, dtype=float)
     limit = np.asarray(limit, dtype=float)
     with np.errstate(invalid="ignore"):
-        return value < limit - LIMIT_SLACK * np.abs(limit)
+        return value < limit - LIMIT_SLACK * np.abs(limit)  # type: ignore[no-any-return]  # numpy types this array expression as Any

@@ -29,6 +29,7 @@ __all__ = [
 import math
 import re
 from decimal import Decimal
+from typing import TypeGuard
 
 from synth.errors import DesignError
 
@@ -55,7 +56,7 @@ _MEG = re.compile(rf"^(?P<num>{_NUMBER})\s*meg$", re.IGNORECASE)  # SI writes M 
 _UNIT_NAME = {"V": "voltage", "A": "current", "W": "power", "Hz": "frequency"}
 
 
-def _is_number(value: object) -> bool:
+def _is_number(value: object) -> TypeGuard[int | float]:
     return isinstance(value, (int, float)) and not isinstance(value, bool)
 
 
@@ -103,7 +104,7 @@ def parse_resistance(text: object) -> float:
     """
     expected = "write a resistance such as 4k7, 4.7k, 4700, 2R2, R47 or 4.7 kΩ"
     if _is_number(text):
-        return _finite(float(text), text, "resistance")  # type: ignore[arg-type]
+        return _finite(float(text), text, "resistance")
     if not isinstance(text, str):
         raise DesignError(f"{text!r} is not a resistance; {expected}")
     raw = text.strip()
@@ -160,7 +161,7 @@ def parse_quantity(text: object, unit: str) -> float:
     what = _UNIT_NAME.get(unit, unit)
     expected = f"write a {what} such as 3.3 {unit}, 250 m{unit} or 1.5k{unit}"
     if _is_number(text):
-        return _finite(float(text), text, what)  # type: ignore[arg-type]
+        return _finite(float(text), text, what)
     if not isinstance(text, str):
         raise DesignError(f"{text!r} is not a {what}; {expected}")
     pattern = rf"^(?P<num>{_NUMBER})\s*(?P<prefix>[pnuµμmkMGT]?)\s*(?P<unit>[A-Za-zΩ%/°]*)$"
@@ -256,7 +257,7 @@ def parse_temperature(text: object) -> float:
     """
     expected = 'write a temperature such as "70 C" or "-20 C"'
     if _is_number(text):
-        return _finite(float(text), text, "temperature")  # type: ignore[arg-type]
+        return _finite(float(text), text, "temperature")
     if not isinstance(text, str):
         raise DesignError(f"{text!r} is not a temperature; {expected}")
     match = re.match(
@@ -281,7 +282,7 @@ def parse_decibels(text: object) -> float:
     6.0
     """
     if _is_number(text):
-        return _finite(float(text), text, "level in dB")  # type: ignore[arg-type]
+        return _finite(float(text), text, "level in dB")
     match = re.match(rf"^(?P<num>{_NUMBER})\s*(?:dB)?$", str(text).strip())
     if not isinstance(text, str) or not match:
         raise DesignError(f"{text!r} is not a level in dB; write e.g. \"6 dB\"")

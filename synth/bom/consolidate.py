@@ -164,7 +164,7 @@ def consolidate(pools: Sequence[Pool], in_stock: frozenset[Hashable] | None = No
         if stage < len(stages) - 1:
             model.add(objective <= reached)
             # the previous assignment is a solution of the next stage: hand all of it over
-            model.clear_hints()
+            model.clear_hints()  # type: ignore[no-untyped-call]  # ortools leaves it unannotated
             for row, chosen in zip(picks, values, strict=True):
                 for var, on in zip(row, chosen, strict=True):
                     model.add_hint(var, on)

@@ -165,7 +165,7 @@ class Evaluator:
         sol = self._solve(solver, resistances, np.zeros(len(self.network.vsource_refs)), test,
                           np.zeros(len(self.network.regulator_refs)), gains)
         v = sol.node_voltages
-        return v[:, self.node_index[plus]] - v[:, self.node_index[minus]]
+        return v[:, self.node_index[plus]] - v[:, self.node_index[minus]]  # type: ignore[no-any-return]  # numpy types this array expression as Any
 
     def part_values(self, resistances: np.ndarray) -> np.ndarray:
         """Physical part values ``(N, parts)`` for position values ``(N, resistors)``, ohm.
@@ -269,11 +269,11 @@ class Evaluator:
         idx = self.node_index
         if target.kind == "voltage":
             a, b = target.nodes
-            return v[:, idx[a]] - v[:, idx[b]]
+            return v[:, idx[a]] - v[:, idx[b]]  # type: ignore[no-any-return]  # numpy types this array expression as Any
         if target.kind == "ratio":
             a, b, c, d = target.nodes
             with np.errstate(divide="ignore", invalid="ignore"):
-                return (v[:, idx[a]] - v[:, idx[b]]) / (v[:, idx[c]] - v[:, idx[d]])
+                return (v[:, idx[a]] - v[:, idx[b]]) / (v[:, idx[c]] - v[:, idx[d]])  # type: ignore[no-any-return]  # numpy types this array expression as Any
         if target.kind == "current":
             return sol.branch_currents[:, self.branch_index[target.ref or ""]]
         if target.kind == "power":

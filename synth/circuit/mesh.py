@@ -440,5 +440,5 @@ class MeshSolver:
         determinant[...] = lhs[0, 0] if self.n_g == 1 else np.linalg.det(lhs.transpose(2, 0, 1))
         if self.n_g == 1:
             with np.errstate(divide="ignore", invalid="ignore"):
-                return rhs / lhs[0]
+                return rhs / lhs[0]  # type: ignore[no-any-return]  # numpy types this array expression as Any
         return np.linalg.solve(lhs.transpose(2, 0, 1), rhs.T[:, :, None])[:, :, 0].T

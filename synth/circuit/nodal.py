@@ -51,7 +51,7 @@ def _control_row(network: Network, c: ControlledBranch, r: np.ndarray, j: np.nda
         add_node(c.control_nodes[0], 1.0)
         add_node(c.control_nodes[1], -1.0)
         return coeff, const
-    b = int(c.control_branch)  # type: ignore[arg-type]
+    b = int(c.control_branch)  # type: ignore[arg-type]  # set whenever control_nodes is None
     n_r, n_v, n_i = len(network.resistor_refs), len(network.vsource_refs), len(network.isource_refs)
     if b < n_r:  # a resistor's current (V(a) - V(b)) / R
         a, z = network.resistor_ends[b]

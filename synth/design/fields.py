@@ -6,7 +6,7 @@ from __future__ import annotations
 __all__ = ["ItemReader", "node_pair", "range_end", "read_ohms", "table_array", "temperature_end"]
 
 from collections.abc import Callable, Mapping, Sequence
-from typing import Any
+from typing import Any, NoReturn
 
 from synth.errors import DesignError, nearest_name
 from synth.units import parse_fraction, parse_resistance, parse_temperature
@@ -26,7 +26,7 @@ class ItemReader:
                     f"(allowed: {', '.join(allowed)})"
                 )
 
-    def fail(self, problem: str) -> None:
+    def fail(self, problem: str) -> NoReturn:
         raise DesignError(f"{self.origin}, {self.item}: {problem}")
 
     def has(self, key: str) -> bool:
@@ -36,7 +36,7 @@ class ItemReader:
         if key not in self.table:
             if default is None:
                 self.fail(f"key {key!r} is missing; add {key} = \"...\"")
-            return default  # type: ignore[return-value]
+            return default
         value = self.table[key]
         if not isinstance(value, str) or not value.strip():
             self.fail(f"{key} must be a non-empty text in quotes, not {value!r}")

@@ -104,8 +104,8 @@ class Position:
         """Effective resistance of ``(M, count)`` part values, ohm, ``(M,)``."""
         values = np.asarray(part_values, dtype=float)
         if self.arrangement == "parallel":
-            return 1.0 / np.sum(1.0 / values, axis=1)
-        return np.sum(values, axis=1)
+            return 1.0 / np.sum(1.0 / values, axis=1)  # type: ignore[no-any-return]  # numpy types this array expression as Any
+        return np.sum(values, axis=1)  # type: ignore[no-any-return]  # numpy types this array expression as Any
 
     def equal_split(self, effective: np.ndarray) -> np.ndarray:
         """Part values ``(M, count)`` of equal parts giving ``effective`` ohm."""

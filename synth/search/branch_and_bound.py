@@ -96,7 +96,7 @@ def _enumerate_boxes(lo: np.ndarray, hi: np.ndarray) -> np.ndarray:
     # C order: the last axis varies fastest
     strides = np.cumprod(counts[:, ::-1], axis=1)[:, ::-1]
     strides = np.concatenate([strides[:, 1:], np.ones((len(lo), 1), np.int64)], axis=1)
-    return lo[box] + (offset[:, None] // strides[box]) % counts[box]
+    return lo[box] + (offset[:, None] // strides[box]) % counts[box]  # type: ignore[no-any-return]  # numpy types this array expression as Any
 
 
 def search(

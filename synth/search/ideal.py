@@ -78,17 +78,17 @@ def ideal_values(design: Design, evaluator: Evaluator | None = None) -> dict[str
         r[:, index] = np.exp(points)
         with np.errstate(all="ignore"):
             res = _residuals(design, ev.evaluate(r).targets)
-        return np.nan_to_num(res, nan=1e6, posinf=1e6, neginf=-1e6)
+        return np.nan_to_num(res, nan=1e6, posinf=1e6, neginf=-1e6)  # type: ignore[no-any-return]  # numpy types this array expression as Any
 
     def residual(logs: np.ndarray) -> np.ndarray:
-        return residuals(logs[None, :])[0]
+        return residuals(logs[None, :])[0]  # type: ignore[no-any-return]  # numpy types this array expression as Any
 
     def jacobian(logs: np.ndarray) -> np.ndarray:
         # forward differences, all perturbed points in one batched solve
         step = 1e-7
         points = np.vstack([logs, logs + step * np.eye(len(logs))])
         values = residuals(points)
-        return (values[1:] - values[0]).T / step
+        return (values[1:] - values[0]).T / step  # type: ignore[no-any-return]  # numpy types this array expression as Any
 
     start = (lo + hi) / 2
     if residual(start).size == 0:

@@ -94,7 +94,7 @@ class SearchProblem:
     def feasible(self, targets: np.ndarray, power: np.ndarray, volts: np.ndarray
                  ) -> np.ndarray:
         """``(M,)`` True where every window and every part's limits hold (with the slack)."""
-        ok = np.all(np.isfinite(targets), axis=1)
+        ok: np.ndarray = np.all(np.isfinite(targets), axis=1)
         ok &= ~np.any(falls_short(targets, self.low) | exceeds(targets, self.high), axis=1)
         if power.shape[1]:
             ok &= ~np.any(exceeds(power, self.allowed_p) | exceeds(volts, self.allowed_v), axis=1)
@@ -252,4 +252,4 @@ def distinct_values(values: np.ndarray) -> np.ndarray:
     finite = np.isfinite(ordered)
     changes = np.concatenate([finite[:, :1], (np.diff(ordered, axis=1) != 0) & finite[:, 1:]],
                              axis=1)
-    return changes.sum(axis=1).astype(np.int64)
+    return changes.sum(axis=1).astype(np.int64)  # type: ignore[no-any-return]  # numpy types this array expression as Any

@@ -148,7 +148,7 @@ class WorstCase:
         comparisons are those of :mod:`synth.rating`, slack included.
         """
         low, high, power, voltage = self.stress(positions, parts)
-        ok = np.all(np.isfinite(low) & np.isfinite(high), axis=1)
+        ok: np.ndarray = np.all(np.isfinite(low) & np.isfinite(high), axis=1)
         for j, target in enumerate(self.design.targets):
             w_low, w_high = target.bounds
             ok &= ~falls_short(low[:, j], w_low) & ~exceeds(high[:, j], w_high)
