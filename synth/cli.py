@@ -60,6 +60,17 @@ def _friendly(command: F) -> F:
         except (DesignError, RnsynthError) as exc:
             click.echo(f"rnsynth: {exc}", err=True)
             sys.exit(2)
+        except KeyboardInterrupt:
+            # outputs are written atomically: an interrupted run leaves no partial file
+            click.echo("rnsynth: interrupted; nothing was written", err=True)
+            sys.exit(130)
+        except (ArithmeticError, RuntimeError, ValueError, MemoryError) as exc:
+            # a numerical or solver failure (a singular network, CP-SAT refusing a model)
+            # is reported, never shown as a traceback
+            name = type(exc).__name__
+            click.echo(f"rnsynth: the calculation could not be completed ({name}: {exc}); "
+                       "check the design's values and limits", err=True)
+            sys.exit(2)
 
     return cast(F, run)
 

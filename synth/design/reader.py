@@ -267,6 +267,21 @@ def _read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
     )
 
 
+def _bare_number(raw: Any) -> bool:
+    """True for a number written without a unit (``1``, ``0.5`` or ``"1"``)."""
+    if isinstance(raw, bool):
+        return False
+    if isinstance(raw, (int, float)):
+        return True
+    if isinstance(raw, str):
+        try:
+            float(raw.strip())
+        except ValueError:
+            return False
+        return True
+    return False
+
+
 def _part_value(reader: ItemReader, raw: Any) -> float:
     value = range_end(reader, "value", raw)
     if value <= 0:
@@ -382,6 +397,10 @@ def _read_target(origin: str, index: int, raw: Any, ground: str) -> Target:
         if equals is None:
             reader.fail("within needs equals; give the goal the window is around")
         text = raw["within"]
+        if kind != "ratio" and _bare_number(text):
+            unit = TARGET_UNITS[kind]
+            reader.fail(f"within {text!r} has no unit; write it with its unit or as a share of "
+                        f"the goal, such as within = \"10 m{unit}\" or \"1%\"")
         if isinstance(text, str) and text.strip().endswith(("%", "ppm")):
             within_rel = reader.fraction("within", "0%", upper=10.0, strict=True)
         else:

@@ -16,6 +16,9 @@ from scipy.optimize import least_squares
 from synth.circuit.measure import Evaluator
 from synth.design.model import Design
 
+_EXTRA_STARTS = 6
+"""Seeded random starts tried besides the middle of the box (stopping once one fits exactly)."""
+
 
 def _residuals(design: Design, targets: np.ndarray) -> np.ndarray:
     out = []
@@ -23,8 +26,7 @@ def _residuals(design: Design, targets: np.ndarray) -> np.ndarray:
         value = targets[:, k]
         low, high = target.bounds
         if target.equals is not None:
-            scale = abs(target.equals) if target.equals else (target.within_abs or 1.0)
-            out.append((value - target.equals) / scale)
+            out.append((value - target.equals) / target.scale)
         else:
             scale = max(abs(b) for b in (low, high) if np.isfinite(b))
             scale = scale or 1.0
@@ -54,9 +56,12 @@ def ideal_values(design: Design, evaluator: Evaluator | None = None) -> dict[str
     -----
     Solved by :func:`scipy.optimize.least_squares` (trust-region reflective,
     bounds on the logarithm of each free value) from the geometric middle of
-    each range; the residuals are the relative errors of the ``equals``
-    targets and the relative violations of the bounds.  With more free parts
-    than targets many sets are ideal; this returns the one nearest the start.
+    each range and from :data:`_EXTRA_STARTS` seeded random points, keeping the
+    best fit (a controlled source can give the network a negative conductance,
+    and a single start can stall at the edge of the box); the residuals are
+    the goal errors by :attr:`synth.design.model.Target.scale` and the relative
+    violations of the bounds.  With more free parts than targets many sets are
+    ideal; this returns the one nearest the first start that reaches it.
     """
     free = design.free_resistors
     if not free or not design.targets:
@@ -90,9 +95,19 @@ def ideal_values(design: Design, evaluator: Evaluator | None = None) -> dict[str
         values = residuals(points)
         return (values[1:] - values[0]).T / step  # type: ignore[no-any-return]  # numpy types this array expression as Any
 
-    start = (lo + hi) / 2
-    if residual(start).size == 0:
+    middle = (lo + hi) / 2
+    if residual(middle).size == 0:
         return {}
-    fit = least_squares(residual, start, jac=jacobian, bounds=(lo, hi), method="trf",
-                        xtol=1e-14, ftol=1e-14, gtol=1e-14, max_nfev=2000)
-    return {r.ref: float(np.exp(v)) for r, v in zip(free, fit.x, strict=True)}
+    # several starts: a network with a negative conductance (a controlled source) can
+    # have a local minimum at the edge of the box far from a near-zero-error point
+    rng = np.random.default_rng(0)
+    starts = [middle, *(lo + (hi - lo) * rng.random(len(lo)) for _ in range(_EXTRA_STARTS))]
+    best_x, best_cost = middle, np.inf
+    for start in starts:
+        fit = least_squares(residual, start, jac=jacobian, bounds=(lo, hi), method="trf",
+                            xtol=1e-14, ftol=1e-14, gtol=1e-14, max_nfev=2000)
+        if fit.cost < best_cost * (1 - 1e-9):
+            best_x, best_cost = fit.x, float(fit.cost)
+        if best_cost < 1e-24:
+            break
+    return {r.ref: float(np.exp(v)) for r, v in zip(free, best_x, strict=True)}

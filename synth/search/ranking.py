@@ -3,7 +3,7 @@
 
 from __future__ import annotations
 
-__all__ = ["TIE_TOLERANCE", "RankedCandidates"]
+__all__ = ["TIE_TOLERANCE", "RankedCandidates", "significant"]
 
 from dataclasses import dataclass
 
@@ -54,10 +54,12 @@ class RankedCandidates:
         if len(obj) == 0:
             return self
         quantised = np.floor(obj / TIE_TOLERANCE)
+        # the supply current breaks ties only beyond float noise: 12 significant digits
+        supply_key = significant(sup, 12)
         keys = [idx[:, c] for c in range(idx.shape[1] - 1, -1, -1)]
         # duplicates only pair a row of self with one of other: the best top + len(self)
         # rows hold the best top distinct ones
-        order = np.lexsort((*keys, sup, coa, dis, quantised))[: top + len(self.objective)]
+        order = np.lexsort((*keys, supply_key, coa, dis, quantised))[: top + len(self.objective)]
         if idx.shape[1]:
             # the same candidate can arrive twice (a seed, then its box): keep it once
             _, first = np.unique(idx[order], axis=0, return_index=True)
@@ -66,3 +68,20 @@ class RankedCandidates:
             order = order[:1]
         order = order[:top]
         return RankedCandidates(idx[order], obj[order], dis[order], coa[order], sup[order])
+
+
+def significant(values: np.ndarray, digits: int) -> np.ndarray:
+    """``values`` rounded to ``digits`` significant digits (zeros and non-finite kept).
+
+    Examples
+    --------
+    >>> significant(np.array([3.0000000000000004e-05, 0.0, 123456.789]), 6).tolist()
+    [3e-05, 0.0, 123457.0]
+    """
+    values = np.asarray(values, dtype=float)
+    out = values.copy()
+    ok = np.isfinite(values) & (values != 0)
+    exponent = np.floor(np.log10(np.abs(values[ok])))
+    scale = 10.0 ** (digits - 1 - exponent)
+    out[ok] = np.round(values[ok] * scale) / scale
+    return out

@@ -202,6 +202,9 @@ def led_tables(supply: str, forward: str, count: int, current: str,
     that is None) the smallest bundled chip package whose derated allowance
     covers the ideal resistor's dissipation I²R.
     """
+    if settings.value_range:
+        raise DesignError("--range does not apply to led: the resistor is searched around its "
+                          "ideal value (a third to three times it); drop --range")
     vs = read_option("--supply", parse_quantity, supply, "V")
     vf = read_option("--forward", parse_quantity, forward, "V")
     amps = read_option("--current", parse_quantity, current, "A")
