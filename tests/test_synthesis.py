@@ -131,10 +131,24 @@ def test_examples_design(name):
     assert "proven optimal" in result.output and "ideal values" in result.output
 
 
-def test_progress_bar_hidden_when_not_a_terminal(tmp_design):
+def test_progress_bar_hidden_when_not_a_terminal(tmp_design, monkeypatch):
+    import types
+
+    import click.testing
+
+    from synth import cli as cli_module
+
+    # a clock on which every reading is 2 s after the last: the bar is due at once
+    ticks = iter(range(0, 10**6, 2))
+    monkeypatch.setattr(cli_module, "time", types.SimpleNamespace(monotonic=lambda: next(ticks)))
     path = tmp_design(DIVIDER.replace("WINDOW", "2%"))
-    result = run("design", path)
+    result = run("design", path)  # CliRunner's stderr is not a terminal
     assert result.exit_code == 0 and "searching" not in result.stderr
+    # the same run on a terminal draws the bar, so only the terminal check hid it
+    monkeypatch.setattr(click.testing._NamedTextIOWrapper, "isatty", lambda self: True)
+    shown = run("design", path)
+    assert shown.exit_code == 0 and "searching [" in shown.stderr
+    assert "searching" not in run("design", path, "--quiet").stderr
 
 
 def test_stock_list_and_parallel_combination(tmp_path):

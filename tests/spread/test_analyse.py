@@ -166,19 +166,48 @@ def test_ranking_by_worst_case_matches_a_brute_force_over_the_catalogue():
 
 
 def test_ranking_by_yield():
+    # an exact 10k load makes large values spread less: yield order differs from nominal
     design = design_from_dict({
         "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
                     "value": "12 V"}],
         "resistor": [{"ref": "R1", "nodes": ["in", "out"], "choose": "E24",
                       "range": ["1k", "100k"], "tolerance": "1%"},
                      {"ref": "R2", "nodes": ["out", "gnd"], "choose": "E24",
-                      "range": ["1k", "100k"], "tolerance": "1%"}],
-        "target": [{"voltage": "out", "equals": "3.3 V", "within": "1.5%"}],
+                      "range": ["1k", "100k"], "tolerance": "1%"},
+                     {"ref": "RL", "nodes": ["out", "gnd"], "value": "10k", "tolerance": "0%"}],
+        "target": [{"voltage": "out", "equals": "3.3 V", "within": "0.8%"}],
     })
-    result = synthesize(design, top=6, rank_by="yield", spread=SpreadSettings(samples=20_000))
+
+    def exact_yield(r1, r2, t=0.01, n=200_000):
+        # as [CALC-yield], over R1's uniform deviation: the output 12·p/(R1 + p), p = R2‖RL,
+        # is in the window exactly when R2's deviation lies in an interval [HB-loaded-divider]
+        d1 = -t + (np.arange(n) + 0.5) * (2 * t / n)
+        a = r1 * (1 + d1)
+
+        def r2_giving(v):
+            p = a * v / (12 - v)
+            return p * 10e3 / (10e3 - p)
+
+        lo = np.maximum(r2_giving(3.3 * 0.992) / r2 - 1, -t)
+        hi = np.minimum(r2_giving(3.3 * 1.008) / r2 - 1, t)
+        return float(np.mean(np.clip(hi - lo, 0, None)) / (2 * t))
+
+    samples = 20_000
+    result = synthesize(design, top=6, rank_by="yield", spread=SpreadSettings(samples=samples))
+    nominal = synthesize(design, top=50)  # the nominal best: the pool the yield ranks
     yields = [c.spread.yield_fraction for c in result.candidates]
     assert yields == sorted(yields, reverse=True)
     assert [c.rank for c in result.candidates] == list(range(1, len(yields) + 1))
+    for c in result.candidates:  # four standard errors [HB-sampling-error]
+        exact = exact_yield(c.values["R1"], c.values["R2"])
+        assert abs(c.spread.yield_fraction - exact) < 4 * math.sqrt(exact * (1 - exact)
+                                                                    / samples) + 1e-4
+    by_exact = sorted(nominal.candidates, key=lambda c: -exact_yield(c.values["R1"],
+                                                                     c.values["R2"]))
+    # the two clear leaders by exact yield (0.981, 0.950; then 0.849) come first, and
+    # the best by yield is not the nominal best
+    assert [c.values for c in result.candidates[:2]] == [c.values for c in by_exact[:2]]
+    assert result.candidates[0].values != nominal.candidates[0].values
 
 
 def test_cli_spread_json_and_plots(tmp_path):
