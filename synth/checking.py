@@ -9,7 +9,10 @@ one batched solve (the re-check of ranked candidates).
 
 from __future__ import annotations
 
-__all__ = ["check", "check_block", "part_problems", "resolve_values", "target_reports"]
+__all__ = [
+    "check", "check_block", "part_problems", "required_problems", "resolve_values",
+    "target_reports",
+]
 
 from collections.abc import Mapping
 
@@ -24,7 +27,7 @@ from synth.rating import exceeds, falls_short, use_of
 from synth.results import CheckResult, PartReport, Problem, TargetReport
 from synth.search.ideal import ideal_values
 from synth.spread.analyse import analyse_spread
-from synth.spread.records import SpreadSettings
+from synth.spread.records import SpreadResult, SpreadSettings
 
 
 def target_reports(design: Design, values: np.ndarray) -> tuple[TargetReport, ...]:
@@ -327,8 +330,46 @@ def check(design: Design, *, values: Mapping[str, float] | None = None,
             float(np.abs(other.branch_currents - solved.branch_currents).max()) / scale_i,
         )
     spread_result = None
+    if spread is None and design.require != "nominal":
+        spread = SpreadSettings(samples=0) if design.require == "worst-case" else SpreadSettings()
     if spread is not None:
         spread_result = analyse_spread(design, result.positions, spread, ev,
                                        part_values=parts)
+    problems = result.problems + required_problems(design, spread_result)
     return CheckResult(**{**result.__dict__, "verify_difference": difference,
-                          "filled": filled, "spread": spread_result})
+                          "filled": filled, "spread": spread_result, "problems": problems})
+
+
+def required_problems(design: Design, spread: SpreadResult | None) -> tuple[Problem, ...]:
+    """What fails on the basis the design requires beyond nominal values.
+
+    With ``require = "worst-case"``: each target's worst low and high against
+    its window and each physical part's worst dissipation and voltage against
+    its allowance; with ``require = "yield"``: the yield's 95 % lower bound
+    against ``min_yield``.
+    """
+    if spread is None or design.require == "nominal":
+        return ()
+    problems: list[Problem] = []
+    if design.require == "worst-case":
+        for target, ts in zip(design.targets, spread.targets, strict=True):
+            low, high = target.bounds
+            for value in (ts.worst_low, ts.worst_high):
+                if not np.isfinite(value) or falls_short(value, low) or exceeds(value, high):
+                    edge = low if value < low else high
+                    problems.append(Problem("window", target.label, value, edge, target.unit,
+                                            low=low, high=high, basis="worst case"))
+        for ps in spread.parts:
+            if ps.allowed_power_hot is not None and exceeds(ps.worst_power,
+                                                            ps.allowed_power_hot):
+                problems.append(Problem("power", ps.ref, ps.worst_power, ps.allowed_power_hot,
+                                        "W", basis="worst case"))
+            if ps.allowed_voltage is not None and exceeds(ps.worst_voltage, ps.allowed_voltage):
+                problems.append(Problem("voltage", ps.ref, ps.worst_voltage, ps.allowed_voltage,
+                                        "V", basis="worst case"))
+    elif spread.yield_interval is not None and design.min_yield is not None:
+        low_bound = spread.yield_interval[0]
+        if low_bound < design.min_yield:
+            problems.append(Problem("yield", "yield", low_bound, design.min_yield, "",
+                                    basis="yield"))
+    return tuple(problems)

@@ -15,8 +15,9 @@ from synth.design.model import Design
 from synth.spread.records import SpreadResult
 from synth.units import format_eng
 
-PROBLEM_KINDS = ("power", "voltage", "window")
-"""A part over its power allowance, over its voltage allowance, a target out of its window."""
+PROBLEM_KINDS = ("power", "voltage", "window", "yield")
+"""A part over its power allowance, over its voltage allowance, a target out of its window,
+a Monte Carlo yield short of ``min_yield``."""
 
 
 @dataclass(frozen=True)
@@ -37,6 +38,9 @@ class Problem:
         Unit of ``value`` and ``limit`` (W, V, A, Ω, "" for a ratio).
     low, high : float or None
         The whole window of a target (None for a part's limit).
+    basis : {"nominal", "worst case", "yield"}
+        Where it fails: at nominal values, somewhere in the tolerance box, or
+        in the Monte Carlo yield.
     """
 
     kind: str
@@ -46,8 +50,16 @@ class Problem:
     unit: str
     low: float | None = None
     high: float | None = None
+    basis: str = "nominal"
 
     def __str__(self) -> str:
+        text = self._text()
+        return f"at worst case, {text}" if self.basis == "worst case" else text
+
+    def _text(self) -> str:
+        if self.kind == "yield":
+            return (f"the Monte Carlo yield's 95 % lower bound {self.value * 100:.4g} % is short "
+                    f"of min_yield {self.limit * 100:g} %")
         if self.kind == "power":
             return (f"{self.subject} dissipates {format_eng(self.value, 'W')}, over its allowed "
                     f"{format_eng(self.limit, 'W')}")

@@ -161,6 +161,9 @@ class Source:
         V or A.
     tolerance : float
         Relative tolerance of the value (fraction).
+    tolerance_abs : float or None
+        Absolute tolerance, V or A, when the file gives one with a unit
+        (``tolerance = "10 uA"``): the value may then span zero.
     """
 
     ref: str
@@ -169,6 +172,7 @@ class Source:
     neg: str
     value: float
     tolerance: float
+    tolerance_abs: float | None = None
 
 
 @dataclass(frozen=True)

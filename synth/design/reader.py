@@ -168,8 +168,18 @@ def _read_source(origin: str, index: int, raw: Any) -> Source:
                     "use \"voltage\" or \"current\"")
     if pos == neg:
         reader.fail(f"both terminals are on node {pos!r}; connect it between two nodes")
-    tolerance = reader.fraction("tolerance", "0%", upper=0.99)
-    return Source(ref=ref, kind=kind, pos=pos, neg=neg, value=value, tolerance=tolerance)
+    tolerance, tolerance_abs = 0.0, None
+    raw_tol = raw.get("tolerance")
+    if isinstance(raw_tol, str) and not raw_tol.strip().endswith(("%", "ppm")):
+        # an absolute tolerance in the source's unit (a leakage of ±10 µA around 0 A)
+        unit = "V" if kind == "voltage" else "A"
+        tolerance_abs = abs(reader.parsed("tolerance", lambda x: parse_quantity(x, unit)))
+        if tolerance_abs == 0:
+            tolerance_abs = None
+    else:
+        tolerance = reader.fraction("tolerance", "0%", upper=0.99)
+    return Source(ref=ref, kind=kind, pos=pos, neg=neg, value=value, tolerance=tolerance,
+                  tolerance_abs=tolerance_abs)
 
 
 def _resolve_stock(origin: str, reader: ItemReader, choose: str) -> Path:

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 __all__ = ["spread_json", "spread_text"]
 
+import math
 from typing import Any
 
 from tabulate import tabulate
@@ -54,7 +55,8 @@ def spread_text(spread: SpreadResult, units: list[str]) -> str:
         lines.append("")
         lines.append("sensitivities (% change of the target per % change of each quantity)")
         lines.append(tabulate(
-            [[t.label, *[f"{t.sensitivities[v]:+.3g}" for v in spread.variables]]
+            [[t.label, *[f"{t.sensitivities[v]:+.3g}" if math.isfinite(t.sensitivities[v])
+                         else "n/a" for v in spread.variables]]
              for t in spread.targets],
             headers=["target", *spread.variables], disable_numparse=True))
     lines.append("")

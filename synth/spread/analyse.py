@@ -128,7 +128,8 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
 
         widths = np.concatenate([var.tolerance, var.drift])
         both = np.concatenate([sens[:, j], sens[:, j]]) if n else np.zeros(0)
-        rss = float(np.sqrt(np.nansum((both * widths) ** 2))) if n else 0.0
+        with np.errstate(invalid="ignore"):
+            rss = float(np.sqrt(np.nansum((both * widths) ** 2))) if n else 0.0
         slopes = np.concatenate([slope[:, j], slope[:, j]]) if n else np.zeros(0)
         rss_abs = float(np.sqrt(np.nansum((slopes * widths) ** 2))) if n else 0.0
         targets.append(TargetSpread(

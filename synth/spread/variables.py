@@ -24,7 +24,9 @@ class SpreadVariables:
     Every physical part with a tolerance or a TCR is its own variable (the
     two parts of ``R1`` are ``R1A`` and ``R1B``, each with its own deviation),
     then each controlled source with a gain range, then each toleranced
-    source and setpoint.
+    source and setpoint.  A source toleranced absolutely (``"10 uA"``) varies
+    by addition, so it may span zero; its sensitivity is per its whole
+    tolerance rather than per per cent.
     """
 
     def __init__(self, design: Design, evaluator: Evaluator):
@@ -61,14 +63,24 @@ class SpreadVariables:
             drift.append(0.0)
             tcr.append(0.0)
             self.kind.append(("gain", k))
+        self.offset: dict[int, float] = {}
+        """Variable column -> half-width (V or A) of an absolutely toleranced source: its
+        factor f gives nominal + (f - 1) x half-width, f from 0 to 2."""
         for group, items in groups:
             for k, item in enumerate(items):
-                if item.tolerance == 0:
+                absolute = getattr(item, "tolerance_abs", None)
+                if item.tolerance == 0 and not absolute:
                     continue
+                if absolute:
+                    self.offset[len(names)] = absolute
+                    low.append(0.0)
+                    high.append(2.0)
+                    tol.append(1.0)
+                else:
+                    low.append(1 - item.tolerance)
+                    high.append(1 + item.tolerance)
+                    tol.append(item.tolerance)
                 names.append(item.ref)
-                low.append(1 - item.tolerance)
-                high.append(1 + item.tolerance)
-                tol.append(item.tolerance)
                 drift.append(0.0)
                 tcr.append(0.0)
                 self.kind.append((group, k))
@@ -119,6 +131,8 @@ class SpreadVariables:
         for column, (group, k) in enumerate(self.kind):
             if group == "part":
                 parts[:, k] *= factors[:, column]
+            elif column in self.offset:
+                values[group][:, k] += (factors[:, column] - 1.0) * self.offset[column]
             else:
                 values[group][:, k] *= factors[:, column]
         return (self.evaluator.effective(parts), parts,
