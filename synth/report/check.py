@@ -157,6 +157,7 @@ def problem_json(problem: Problem) -> dict[str, Any]:
                            "limit": json_number(problem.limit), "unit": problem.unit}
     if problem.kind == "window":
         out["low"], out["high"] = json_number(problem.low), json_number(problem.high)
+    out["basis"] = problem.basis
     return out
 
 
@@ -172,6 +173,7 @@ def part_json(part: PartReport) -> dict[str, Any]:
         "limiting_voltage": json_number(part.limiting_voltage),
         "allowed_voltage": json_number(part.allowed_voltage),
         "voltage_utilization": json_number(part.voltage_utilization),
+        "position": part.position,
     }
 
 

@@ -81,13 +81,15 @@ def spread_json(spread: SpreadResult) -> dict[str, Any]:
         "temperature": list(spread.temperature_c),
         "samples": s.samples, "distribution": s.distribution, "seed": s.seed,
         "yield": json_number(spread.yield_fraction),
+        "yield_interval": (None if spread.yield_interval is None
+                           else [json_number(v) for v in spread.yield_interval]),
         "worst_error": json_number(spread.worst_error),
         "rss_error": json_number(spread.rss_error),
         "targets": [{
             "label": t.label, "goal": json_number(t.goal), "nominal": json_number(t.nominal),
             "worst_low": json_number(t.worst_low), "worst_high": json_number(t.worst_high),
             "low_corner": t.low_corner, "high_corner": t.high_corner, "exact": t.exact,
-            "rss": json_number(t.rss),
+            "rss": json_number(t.rss), "rss_abs": json_number(t.rss_abs),
             "sensitivities": {k: json_number(v) for k, v in t.sensitivities.items()},
             "mc_mean": json_number(t.mc_mean), "mc_std": json_number(t.mc_std),
             "inside": json_number(t.inside),
@@ -99,5 +101,6 @@ def spread_json(spread: SpreadResult) -> dict[str, Any]:
             "allowed_power_hot": json_number(p.allowed_power_hot),
             "utilization": json_number(p.utilization),
             "worst_voltage": json_number(p.worst_voltage),
+            "allowed_voltage": json_number(p.allowed_voltage),
         } for p in spread.parts],
     }
