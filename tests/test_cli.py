@@ -267,3 +267,39 @@ def test_led_package_auto_names_the_package_chosen():
                  "--package", "auto", "--samples", "0", "--top", "1")
     assert result.exit_code == 0, result.output
     assert result.output.startswith("package")  # the package chosen is named first
+
+
+BIAS = ("bias", "--supply", "10 V", "--collector-current", "1 mA", "--collector-voltage", "5 V")
+DIVIDER = ("divider", "--input", "12 V", "--output", "3.3 V")
+LED = ("led", "--supply", "5 V", "--forward", "2 V", "--current", "20 mA")
+
+
+@pytest.mark.parametrize(("args", "fragment"), [
+    ((*BIAS, "--beta", "many"), "--beta 'many' must be a number or typical:least:greatest"),
+    ((*BIAS, "--beta", "100:200:300"), "0 < least <= typical <= greatest"),
+    (("bias", "--supply", "10 V", "--collector-current", "1 mA", "--collector-voltage",
+      "0.5 V"), "--collector-voltage must lie between a tenth of the supply and the supply"),
+    ((*BIAS, "--vbe", "8 V"), "--vbe 8 V must be positive and well below the supply"),
+    (("gain", "--gain", "ten"), "--gain 'ten' must be a plain number such as 10"),
+    (("gain", "--gain", "-2", "--inverting"), "--gain must be positive"),
+    (("gain", "--gain", "0.5"), "a non-inverting stage has a gain above 1"),
+    (("gain", "--gain", "10", "--open-loop-gain", "lots"), "--open-loop-gain 'lots' must be"),
+    (("gain", "--gain", "10", "--inverting", "--input-resistance", "0"),
+     "--input-resistance must be positive"),
+    (("gain", "--gain", "10", "--input-resistance", "10k"),
+     "a non-inverting stage's input resistance is the amplifier's own"),
+    ((*DIVIDER, "--load", "0"), "--load '0' must be positive"),
+    ((*DIVIDER, "--series", "E97"), "'E97' is not one of"),
+    ((*LED, "--range", "1k:10k"), "--range does not apply to led"),
+    ((*LED, "--count", "0"), "--count 0 must be at least 1"),
+    (("led", "--supply", "5 V", "--forward", "2 V", "--current", "0 A"),
+     "--current and --forward must be positive"),
+    (("pad", "--loss", "0 dB"), "--impedance and --loss must be positive"),
+    (("pad", "--loss", "6 dB", "--impedance", "fifty"), "--impedance: 'fifty' is not"),
+    (("regulator", "--reference", "0.8 V", "--output", "3.3 V", "--pin-current", "1 uV"),
+     "--pin-current: '1 uV' is not a current"),
+])
+def test_quick_commands_refuse_bad_options(args, fragment):
+    result = run(*args)
+    assert result.exit_code == 2, result.output
+    assert fragment in result.output + result.stderr and "Traceback" not in result.stderr
