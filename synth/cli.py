@@ -211,7 +211,7 @@ class _CatalogueChoice(click.Choice[str]):
         super().__init__((), case_sensitive=case_sensitive)
 
     @property
-    def choices(self) -> Sequence[str]:
+    def choices(self) -> tuple[str, ...]:
         if self._loaded is None:
             self._loaded = tuple(self._names())
         return self._loaded
