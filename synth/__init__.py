@@ -31,8 +31,9 @@ if TYPE_CHECKING:
     from synth.circuit.network import Network, build_network
     from synth.circuit.nodal import nodal_solve
     from synth.design.load import load_design
-    from synth.design.model import Design, Regulator, Resistor, Source, Target
+    from synth.design.model import Design, Regulator, Resistor, Source
     from synth.design.reader import design_from_dict
+    from synth.design.target import Target
     from synth.errors import DesignError, InfeasibleError, RnsynthError
     from synth.rating import allowed_power, derating_factor
     from synth.results import Candidate, CheckResult, PartReport, SynthesisResult, TargetReport

@@ -57,3 +57,14 @@ def test_sdist_carries_the_suite_and_its_data():
     for name in ("README.md", "DEVELOPERS.md", "LICENSE"):
         assert name in manifest and (ROOT / name).is_file()
 
+
+
+def test_ci_runs_the_readme_test_command():
+    readme = (ROOT / "README.md").read_text(encoding="utf-8")
+    command = "pip install '.[test]' && python -m pytest -q"
+    script = (ROOT / ".ci" / "run").read_text(encoding="utf-8")
+    assert command in readme and command in script
+    assert "set -euo pipefail" in script
+    for gate in ("ruff check synth tests benchmarks", "mypy --strict synth",
+                 "--cov=synth --cov-branch", "--cov-fail-under="):
+        assert gate in script

@@ -1,4 +1,7 @@
-"""Value notation: reading and writing (IEC 60062 letter-and-digit code, SI prefixes)."""
+"""Value notation: reading and writing (IEC 60062 letter-and-digit code, SI prefixes).
+
+Sources: the letter-and-digit code [IEC60062]; SI prefixes and units [SI-brochure].
+"""
 
 from __future__ import annotations
 
@@ -21,8 +24,8 @@ from synth.units import (
     parse_temperature,
 )
 
-# Letter-and-digit examples from IEC 60062 (via the RKM code article) [STD/HB]:
-# R47 = 0.47 ohm, 4R7, 470R, 4K7, 47K3 = 47.3 kohm, 4M7, 2R2, 1K0, 1M0.  Zero is 0R [CP].
+# Letter-and-digit examples from IEC 60062 (via the RKM code article) [IEC60062]:
+# R47 = 0.47 ohm, 4R7, 470R, 4K7, 47K3 = 47.3 kohm, 4M7, 2R2, 1K0, 1M0.  Zero is 0R [CP-zero-ohm].
 RKM_EXAMPLES = [
     ("R47", 0.47), ("4R7", 4.7), ("470R", 470.0), ("4K7", 4700.0), ("47K3", 47300.0),
     ("4M7", 4.7e6), ("2R2", 2.2), ("1K0", 1000.0), ("1M0", 1e6), ("0R1", 0.1), ("0R", 0.0),
@@ -135,7 +138,7 @@ def test_other_notations_refused(parser, text, fragment):
     (4990, "4K99"), (49.9, "49R9"), (0.1, "R10"),
 ])
 def test_rkm_codes_written(ohms, code):
-    # the same IEC 60062 examples, written
+    # the same IEC 60062 examples, written [IEC60062]; zero as 0R [CP-zero-ohm]
     assert format_rkm(ohms) == code
 
 

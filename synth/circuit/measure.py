@@ -18,7 +18,8 @@ from numpy.typing import ArrayLike
 from synth.circuit.controlled import ControlledSolver
 from synth.circuit.mesh import MeshSolution, MeshSolver
 from synth.circuit.network import Network, build_network
-from synth.design.model import Design, Target
+from synth.design.model import Design
+from synth.design.target import Target
 from synth.errors import DesignError
 
 

@@ -29,7 +29,8 @@ from dataclasses import dataclass
 from typing import Any
 
 from synth.design.fields import ItemReader, node_pair, table_array
-from synth.design.model import ControlledSource, Regulator, Source, Target, Transistor
+from synth.design.model import ControlledSource, Regulator, Source, Transistor
+from synth.design.target import Target
 from synth.errors import DesignError, nearest_name
 from synth.units import parse_quantity, parse_resistance
 

@@ -1,148 +1,27 @@
-"""The validated records of a design: sources, positions, regulators, active parts, targets.
+"""The validated records of a design: sources, resistor positions, regulators, active parts.
 
-A resistor entry of a design file is a *position*: one physical part, or
-N >= 2 parts in series or in parallel between the same two nodes
-(:class:`Position`).  The network sees the position's effective resistance;
-every physical part's current, voltage and dissipation comes from
-:meth:`Position.split`, the one place that divides a position into its parts.
+Positions are described in :mod:`synth.design.position`, targets in
+:mod:`synth.design.target`.
 """
 
 from __future__ import annotations
 
 __all__ = [
-    "MAX_PARTS", "PART_SUFFIXES", "REQUIREMENTS", "TARGET_KINDS", "TARGET_UNITS",
-    "ControlledSource", "Design", "PartShares", "Position", "Regulator", "Resistor", "Source",
-    "Target", "Transistor",
+    "REQUIREMENTS", "ControlledSource", "Design", "Regulator", "Resistor", "Source",
+    "Transistor",
 ]
 
-import math
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
-import numpy as np
-
 from synth.catalog.packages import PackageRating
+from synth.design.position import Position
+from synth.design.target import Target
 from synth.rating import Allowance, allowance
 
-TARGET_KINDS = ("voltage", "current", "ratio", "power", "resistance")
-TARGET_UNITS = {"voltage": "V", "current": "A", "power": "W", "resistance": "Ω", "ratio": ""}
 REQUIREMENTS = ("nominal", "worst-case", "yield")
 """Bases a design's windows and limits may be required to hold on."""
-MAX_PARTS = 6
-"""Most physical parts one position may hold (series strings of 3-6 parts carry high voltage)."""
-PART_SUFFIXES = "ABCDEF"
-"""Designator suffixes of a position's parts: R1 of three parts is R1A, R1B, R1C."""
-
-
-@dataclass(frozen=True)
-class PartShares:
-    """How a position's current, voltage and dissipation divide among its parts.
-
-    Every array is ``(M, parts)``: candidate axis first, then the position's
-    parts in designator order.
-
-    Attributes
-    ----------
-    current : numpy.ndarray
-        A through each part, in the position's sign convention.
-    voltage : numpy.ndarray
-        V across each part (absolute).
-    power : numpy.ndarray
-        W dissipated in each part.
-    """
-
-    current: np.ndarray
-    voltage: np.ndarray
-    power: np.ndarray
-
-
-@dataclass(frozen=True)
-class Position:
-    """A resistor position: one part, or N >= 2 parts in series or in parallel.
-
-    Attributes
-    ----------
-    ref : str
-        The position's designator (``"R1"``).
-    arrangement : {"single", "series", "parallel"}
-        How its parts are joined.
-    count : int
-        Number of physical parts (1 for a single part).
-    equal_parts : bool
-        Every part takes the same value (a string with an equal voltage share).
-    part_values : tuple of float or None
-        Each part's resistance, ohm, when the file gives them (a fixed
-        position, or the values ``check`` uses).
-
-    Examples
-    --------
-    >>> p = Position("R1", "series", 2)
-    >>> p.part_refs
-    ('R1A', 'R1B')
-    >>> float(p.effective(np.array([[442e3, 432e3]]))[0])
-    874000.0
-    >>> s = p.split(np.array([[442e3, 432e3]]), np.array([400 / 874e3]))
-    >>> [round(float(v), 2) for v in s.voltage[0]]
-    [202.29, 197.71]
-    """
-
-    ref: str
-    arrangement: str = "single"
-    count: int = 1
-    equal_parts: bool = False
-    part_values: tuple[float, ...] | None = None
-
-    @property
-    def part_refs(self) -> tuple[str, ...]:
-        """Designators of the physical parts: ``("R1",)`` or ``("R1A", "R1B", ...)``."""
-        if self.count == 1:
-            return (self.ref,)
-        return tuple(self.ref + PART_SUFFIXES[k] for k in range(self.count))
-
-    def effective(self, part_values: np.ndarray) -> np.ndarray:
-        """Effective resistance of ``(M, count)`` part values, ohm, ``(M,)``."""
-        values = np.asarray(part_values, dtype=float)
-        if self.arrangement == "parallel":
-            return 1.0 / np.sum(1.0 / values, axis=1)  # type: ignore[no-any-return]  # numpy types this array expression as Any
-        return np.sum(values, axis=1)  # type: ignore[no-any-return]  # numpy types this array expression as Any
-
-    def equal_split(self, effective: np.ndarray) -> np.ndarray:
-        """Part values ``(M, count)`` of equal parts giving ``effective`` ohm."""
-        effective = np.asarray(effective, dtype=float)
-        each = (effective / self.count if self.arrangement == "series"
-                else effective * self.count)
-        return np.repeat(each[:, None], self.count, axis=1)
-
-    def split(self, part_values: np.ndarray, current: np.ndarray) -> PartShares:
-        """Each part's current, voltage and dissipation from the position's current.
-
-        Parameters
-        ----------
-        part_values : numpy.ndarray
-            ``(M, count)`` ohm.
-        current : numpy.ndarray
-            ``(M,)`` A through the position (its sign kept).
-
-        Notes
-        -----
-        Series parts carry the position's current, each seeing I·R_k; parallel
-        parts share the position's voltage V = I·R_eff, each carrying V/R_k
-        (Ohm's and Kirchhoff's laws).
-        """
-        values = np.asarray(part_values, dtype=float)
-        current = np.asarray(current, dtype=float)
-        if self.arrangement == "parallel":
-            across = current * self.effective(values)
-            part_current = across[:, None] / values
-            part_voltage = np.repeat(np.abs(across)[:, None], self.count, axis=1)
-        else:
-            part_current = np.repeat(current[:, None], self.count, axis=1)
-            part_voltage = np.abs(current)[:, None] * values
-        return PartShares(current=part_current, voltage=part_voltage,
-                          power=part_current * part_current * values)
-
-
 @dataclass(frozen=True)
 class Source:
     """An independent source.
@@ -331,110 +210,6 @@ class Transistor:
     beta_low: float
     beta_high: float
     vce_sat: float
-
-
-@dataclass(frozen=True)
-class Target:
-    """One requirement on the network.
-
-    Attributes
-    ----------
-    label : str
-        Name shown in tables, e.g. ``"voltage at sense"`` or the user's ``name``.
-    kind : {"voltage", "current", "ratio", "power", "resistance"}
-        What is measured.
-    nodes : tuple of str
-        ``(a, b)`` for a voltage or resistance, ``(a, b, c, d)`` for a ratio
-        ``(V(a) - V(b)) / (V(c) - V(d))``; empty for current and power.
-    ref : str or None
-        The part a current or power target names.
-    equals : float or None
-        Goal value (V, A, W, ohm, or a plain ratio).
-    within_abs, within_rel : float or None
-        Half-width of the hard window around ``equals`` (absolute, or relative).
-    at_least, at_most : float or None
-        Bounds.
-    unit : str
-        Unit symbol for display.
-    """
-
-    label: str
-    kind: str
-    nodes: tuple[str, ...]
-    ref: str | None
-    equals: float | None
-    within_abs: float | None
-    within_rel: float | None
-    at_least: float | None
-    at_most: float | None
-    unit: str
-
-    @property
-    def bounds(self) -> tuple[float, float]:
-        """The hard window ``(low, high)``: ``within`` and the bounds combined."""
-        low, high = -math.inf, math.inf
-        if self.equals is not None:
-            half = None
-            if self.within_abs is not None:
-                half = self.within_abs
-            elif self.within_rel is not None:
-                half = abs(self.equals) * self.within_rel
-            if half is not None:
-                low, high = self.equals - half, self.equals + half
-        if self.at_least is not None:
-            low = max(low, self.at_least)
-        if self.at_most is not None:
-            high = min(high, self.at_most)
-        return low, high
-
-    @property
-    def relative(self) -> bool:
-        """True when the error is relative: the target has a non-zero goal."""
-        return self.equals is not None and self.equals != 0
-
-    @property
-    def scale(self) -> float:
-        """What one unit of the ranking objective means for this target.
-
-        ``|equals|`` for a non-zero goal (the objective is then the relative
-        error); the half window for a zero goal (a zero goal needs an absolute
-        ``within``); for bound-only targets the largest finite bound (or 1),
-        used to rank violations.
-        """
-        if self.equals is not None and self.equals != 0:
-            return abs(self.equals)
-        if self.within_abs is not None:
-            return self.within_abs
-        low, high = self.bounds
-        finite = [abs(b) for b in (low, high) if math.isfinite(b) and b != 0]
-        return max(finite) if finite else 1.0
-
-    def error(self, value: np.ndarray | float) -> np.ndarray:
-        """The error of achieved values against the goal: THE rule for every report.
-
-        Relative, ``(value - goal) / |goal|``, for a non-zero goal; absolute,
-        ``value - goal`` in the target's unit, for a zero goal (a bridge null
-        is judged in µV, not in per cent).  NaN when there is no goal.
-
-        Examples
-        --------
-        >>> t = Target("out", "voltage", ("out", "gnd"), None, 5.0, None, 0.01, None, None, "V")
-        >>> round(float(t.error(5.05)), 12)
-        0.01
-        """
-        value = np.asarray(value, dtype=float)
-        if self.equals is None:
-            return np.full(value.shape, np.nan)
-        if self.equals == 0:
-            return value - 0.0
-        return (value - self.equals) / abs(self.equals)
-
-    def objective(self, value: np.ndarray | float) -> np.ndarray:
-        """``|value - goal| / scale``: this target's term of the ranking objective."""
-        value = np.asarray(value, dtype=float)
-        if self.equals is None:
-            return np.zeros(value.shape)
-        return np.abs(value - self.equals) / self.scale
 
 
 @dataclass(frozen=True)

@@ -27,7 +27,8 @@ import numpy as np
 
 from synth.catalog.series import series_rank, series_values
 from synth.catalog.stock import load_stock
-from synth.design.model import Position, Resistor
+from synth.design.model import Resistor
+from synth.design.position import Position
 from synth.errors import DesignError
 
 _RANGE_SLACK = 1e-9  # a range end written as "10k" includes 4.7k + 5.3k = 10k exactly

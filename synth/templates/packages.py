@@ -24,7 +24,8 @@ from typing import Any
 
 from synth.catalog.packages import PackageRating
 from synth.checking import check
-from synth.design.model import MAX_PARTS, Design
+from synth.design.model import Design
+from synth.design.position import MAX_PARTS
 from synth.design.reader import design_from_dict
 from synth.rating import allowance
 from synth.results import SynthesisResult

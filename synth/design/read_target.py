@@ -1,0 +1,129 @@
+"""Reading one ``[[target]]`` table: the quantity, its goal, window and bounds.
+"""
+
+from __future__ import annotations
+
+__all__ = ["read_target"]
+
+import math
+from collections.abc import Mapping
+from typing import Any
+
+from synth.design.fields import (
+    ItemReader,
+    node_pair,
+)
+from synth.design.target import TARGET_KINDS, TARGET_UNITS, Target
+from synth.errors import DesignError
+from synth.units import (
+    parse_quantity,
+    parse_resistance,
+)
+
+_TARGET_KEYS = (*TARGET_KINDS, "name", "equals", "within", "at_least", "at_most", "note")
+
+
+def _bare_number(raw: Any) -> bool:
+    """True for a number written without a unit (``1``, ``0.5`` or ``"1"``)."""
+    if isinstance(raw, bool):
+        return False
+    if isinstance(raw, (int, float)):
+        return True
+    if isinstance(raw, str):
+        try:
+            float(raw.strip())
+        except ValueError:
+            return False
+        return True
+    return False
+
+
+def _target_quantity(reader: ItemReader, kind: str, key: str) -> float:
+    unit = TARGET_UNITS[kind]
+    if kind == "resistance":
+        return reader.parsed(key, parse_resistance)
+    if kind == "ratio":
+        return reader.parsed(key, _parse_ratio)
+    return reader.parsed(key, lambda t: parse_quantity(t, unit))
+
+
+def _parse_ratio(raw: Any) -> float:
+    if isinstance(raw, (int, float)) and not isinstance(raw, bool) and math.isfinite(raw):
+        return float(raw)
+    if isinstance(raw, str):
+        try:
+            value = float(raw)
+        except ValueError:
+            pass
+        else:
+            if math.isfinite(value):
+                return value
+    raise DesignError(f"{raw!r} is not a ratio; write a plain number such as 0.25")
+
+
+def read_target(origin: str, index: int, raw: Any, ground: str) -> Target:
+    label = f"target #{index}"
+    if isinstance(raw, Mapping) and isinstance(raw.get("name"), str):
+        label = f"target {raw['name']!r}"
+    reader = ItemReader(origin, label, raw, _TARGET_KEYS)
+    kinds = [k for k in TARGET_KINDS if reader.has(k)]
+    if len(kinds) != 1:
+        reader.fail(f"name exactly one of {', '.join(TARGET_KINDS)} (found {len(kinds)})")
+    kind = kinds[0]
+    nodes: tuple[str, ...] = ()
+    ref: str | None = None
+    if kind in ("voltage", "resistance"):
+        nodes = node_pair(reader, kind, ground)
+        if nodes[0] == nodes[1]:
+            reader.fail(f"{kind} between {nodes[0]!r} and itself is always zero; name two nodes")
+        if kind == "resistance":
+            default_label = f"resistance from {nodes[0]} to {nodes[1]}"
+        elif nodes[1] == ground:
+            default_label = f"voltage at {nodes[0]}"
+        else:
+            default_label = f"voltage from {nodes[0]} to {nodes[1]}"
+    elif kind == "ratio":
+        pair = raw["ratio"]
+        if not (isinstance(pair, list) and len(pair) == 2):
+            reader.fail('ratio must be two voltages such as [["out", "gnd"], ["in", "gnd"]]')
+        sub = [node_pair(ItemReader(origin, label, {"ratio": p}, ("ratio",)), "ratio", ground)
+               for p in pair]
+        nodes = sub[0] + sub[1]
+        if sub[1][0] == sub[1][1]:
+            reader.fail("the ratio's denominator is a voltage between a node and itself")
+        top, bottom = (a if b == ground else f"({a} - {b})" for a, b in sub)
+        default_label = f"ratio of {top} to {bottom}"
+    else:
+        ref = reader.text(kind)
+        default_label = f"{kind} in {ref}"
+    equals = _target_quantity(reader, kind, "equals") if reader.has("equals") else None
+    at_least = _target_quantity(reader, kind, "at_least") if reader.has("at_least") else None
+    at_most = _target_quantity(reader, kind, "at_most") if reader.has("at_most") else None
+    within_abs = within_rel = None
+    if reader.has("within"):
+        if equals is None:
+            reader.fail("within needs equals; give the goal the window is around")
+        text = raw["within"]
+        if kind != "ratio" and _bare_number(text):
+            unit = TARGET_UNITS[kind]
+            reader.fail(f"within {text!r} has no unit; write it with its unit or as a share of "
+                        f"the goal, such as within = \"10 m{unit}\" or \"1%\"")
+        if isinstance(text, str) and text.strip().endswith(("%", "ppm")):
+            within_rel = reader.fraction("within", "0%", upper=10.0, strict=True)
+        else:
+            within_abs = abs(_target_quantity(reader, kind, "within"))
+            if within_abs == 0:
+                reader.fail("within must be wider than zero")
+    if equals is None and at_least is None and at_most is None:
+        reader.fail("give equals (with an optional within), at_least or at_most")
+    if equals is not None and (at_least is not None or at_most is not None):
+        reader.fail("use equals (with within) or at_least/at_most, not both")
+    if at_least is not None and at_most is not None and at_most < at_least:
+        reader.fail(f"at_least {raw['at_least']!r} lies above at_most {raw['at_most']!r}; "
+                    "swap them")
+    if equals is not None and equals == 0 and within_abs is None:
+        reader.fail("equals 0 has no relative error; give within as an absolute window")
+    name = reader.text("name") if reader.has("name") else default_label
+    return Target(label=name, kind=kind, nodes=nodes, ref=ref, equals=equals,
+                  within_abs=within_abs, within_rel=within_rel, at_least=at_least,
+                  at_most=at_most, unit=TARGET_UNITS[kind])

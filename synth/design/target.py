@@ -1,0 +1,116 @@
+"""A target: what is measured, its goal, window and bounds, and THE rule for its error."""
+
+from __future__ import annotations
+
+__all__ = ["TARGET_KINDS", "TARGET_UNITS", "Target"]
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+TARGET_KINDS = ("voltage", "current", "ratio", "power", "resistance")
+TARGET_UNITS = {"voltage": "V", "current": "A", "power": "W", "resistance": "Ω", "ratio": ""}
+
+@dataclass(frozen=True)
+class Target:
+    """One requirement on the network.
+
+    Attributes
+    ----------
+    label : str
+        Name shown in tables, e.g. ``"voltage at sense"`` or the user's ``name``.
+    kind : {"voltage", "current", "ratio", "power", "resistance"}
+        What is measured.
+    nodes : tuple of str
+        ``(a, b)`` for a voltage or resistance, ``(a, b, c, d)`` for a ratio
+        ``(V(a) - V(b)) / (V(c) - V(d))``; empty for current and power.
+    ref : str or None
+        The part a current or power target names.
+    equals : float or None
+        Goal value (V, A, W, ohm, or a plain ratio).
+    within_abs, within_rel : float or None
+        Half-width of the hard window around ``equals`` (absolute, or relative).
+    at_least, at_most : float or None
+        Bounds.
+    unit : str
+        Unit symbol for display.
+    """
+
+    label: str
+    kind: str
+    nodes: tuple[str, ...]
+    ref: str | None
+    equals: float | None
+    within_abs: float | None
+    within_rel: float | None
+    at_least: float | None
+    at_most: float | None
+    unit: str
+
+    @property
+    def bounds(self) -> tuple[float, float]:
+        """The hard window ``(low, high)``: ``within`` and the bounds combined."""
+        low, high = -math.inf, math.inf
+        if self.equals is not None:
+            half = None
+            if self.within_abs is not None:
+                half = self.within_abs
+            elif self.within_rel is not None:
+                half = abs(self.equals) * self.within_rel
+            if half is not None:
+                low, high = self.equals - half, self.equals + half
+        if self.at_least is not None:
+            low = max(low, self.at_least)
+        if self.at_most is not None:
+            high = min(high, self.at_most)
+        return low, high
+
+    @property
+    def relative(self) -> bool:
+        """True when the error is relative: the target has a non-zero goal."""
+        return self.equals is not None and self.equals != 0
+
+    @property
+    def scale(self) -> float:
+        """What one unit of the ranking objective means for this target.
+
+        ``|equals|`` for a non-zero goal (the objective is then the relative
+        error); the half window for a zero goal (a zero goal needs an absolute
+        ``within``); for bound-only targets the largest finite bound (or 1),
+        used to rank violations.
+        """
+        if self.equals is not None and self.equals != 0:
+            return abs(self.equals)
+        if self.within_abs is not None:
+            return self.within_abs
+        low, high = self.bounds
+        finite = [abs(b) for b in (low, high) if math.isfinite(b) and b != 0]
+        return max(finite) if finite else 1.0
+
+    def error(self, value: np.ndarray | float) -> np.ndarray:
+        """The error of achieved values against the goal: THE rule for every report.
+
+        Relative, ``(value - goal) / |goal|``, for a non-zero goal; absolute,
+        ``value - goal`` in the target's unit, for a zero goal (a bridge null
+        is judged in µV, not in per cent).  NaN when there is no goal.
+
+        Examples
+        --------
+        >>> t = Target("out", "voltage", ("out", "gnd"), None, 5.0, None, 0.01, None, None, "V")
+        >>> round(float(t.error(5.05)), 12)
+        0.01
+        """
+        value = np.asarray(value, dtype=float)
+        if self.equals is None:
+            return np.full(value.shape, np.nan)
+        if self.equals == 0:
+            return value - 0.0
+        return (value - self.equals) / abs(self.equals)
+
+    def objective(self, value: np.ndarray | float) -> np.ndarray:
+        """``|value - goal| / scale``: this target's term of the ranking objective."""
+        value = np.asarray(value, dtype=float)
+        if self.equals is None:
+            return np.zeros(value.shape)
+        return np.abs(value - self.equals) / self.scale
