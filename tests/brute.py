@@ -67,15 +67,20 @@ def exhaustive(design: Design, chunk: int = 200_000):
         for t in design.targets:
             if t.kind == "voltage":
                 value = v[:, node[t.nodes[0]]] - v[:, node[t.nodes[1]]]
-            elif t.kind == "ratio":
+            elif t.kind in ("ratio", "loss"):
                 value = ((v[:, node[t.nodes[0]]] - v[:, node[t.nodes[1]]])
                          / (v[:, node[t.nodes[2]]] - v[:, node[t.nodes[3]]]))
+                if t.kind == "loss":  # -20 log10 of the voltage ratio [HB-pad]
+                    value = -20 * np.log10(value)
             elif t.kind == "current":
                 value = i[:, branch[t.ref]]
             elif t.kind == "power":
                 value = i[:, branch[t.ref]] ** 2 * r[:, col[t.ref]]
             else:  # resistance: 1 A into nodes[0] with every source zeroed
-                test = nodal_solve(net.with_test_source(t.nodes[0], t.nodes[1]), r,
+                seen = r.copy()
+                for left_out in t.without:  # opened: a conductance of 1e-30 S is nothing
+                    seen[:, col[left_out]] = 1e30
+                test = nodal_solve(net.with_test_source(t.nodes[0], t.nodes[1]), seen,
                                    np.zeros(len(volts)), np.r_[np.zeros(len(amps)), 1.0],
                                    np.zeros(len(sets)))
                 value = (test.node_voltages[:, node[t.nodes[0]]]

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 __all__ = ["Evaluation", "Evaluator", "SourceValues"]
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -104,6 +104,7 @@ class Evaluator:
             ControlledSolver(self.network, self.weights) if self.network.controlled
             else MeshSolver(self.network, self.weights))
         self._seen: dict[tuple[str, str], MeshSolver | ControlledSolver] = {}
+        self._without: dict[tuple[str, ...], tuple[Evaluator, np.ndarray]] = {}
         index = {n: i for i, n in enumerate(self.network.nodes)}
         self.node_index = index
         refs = self.network.branch_refs
@@ -271,16 +272,33 @@ class Evaluator:
         if target.kind == "voltage":
             a, b = target.nodes
             return v[:, idx[a]] - v[:, idx[b]]  # type: ignore[no-any-return]  # numpy types this array expression as Any
-        if target.kind == "ratio":
+        if target.kind in ("ratio", "loss"):
             a, b, c, d = target.nodes
             with np.errstate(divide="ignore", invalid="ignore"):
-                return (v[:, idx[a]] - v[:, idx[b]]) / (v[:, idx[c]] - v[:, idx[d]])  # type: ignore[no-any-return]  # numpy types this array expression as Any
+                ratio = (v[:, idx[a]] - v[:, idx[b]]) / (v[:, idx[c]] - v[:, idx[d]])
+                if target.kind == "ratio":
+                    return ratio  # type: ignore[no-any-return]  # numpy types this array expression as Any
+                # loss in dB, -20 log10 of the voltage ratio (NaN where the ratio is not positive)
+                return -20.0 * np.log10(np.where(ratio > 0, ratio, np.nan))  # type: ignore[no-any-return]  # numpy types this array expression as Any
         if target.kind == "current":
             return sol.branch_currents[:, self.branch_index[target.ref or ""]]
         if target.kind == "power":
             return power[:, self.resistor_index[target.ref or ""]]
         a, b = target.nodes
+        if target.without:
+            reduced, keep = self._reduced(target.without)
+            return reduced.seen_resistance(r[:, keep], a, b, gains)
         return self.seen_resistance(r, a, b, gains)
+
+    def _reduced(self, without: tuple[str, ...]) -> tuple[Evaluator, np.ndarray]:
+        """An evaluator of the network with the positions ``without`` opened (left out)."""
+        if without not in self._without:
+            kept = [k for k, r in enumerate(self.design.resistors) if r.ref not in without]
+            design = replace(self.design, resistors=tuple(self.design.resistors[k]
+                                                          for k in kept), targets=())
+            self._without[without] = (Evaluator(design, self.weights[kept]),
+                                      np.array(kept, dtype=int))
+        return self._without[without]
 
     def check_regulators(self, resistances: np.ndarray) -> None:
         """Refuse a design whose regulating element cannot move its sense node.

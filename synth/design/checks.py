@@ -61,6 +61,10 @@ def check_references(design: Design) -> None:
             raise DesignError(f"{item}: no part {target.ref!r}"
                               f"{nearest_name(target.ref or '', resistor_refs | source_refs)}; "
                               "name a resistor or a source")
+        for left_out in target.without:
+            if left_out not in resistor_refs:
+                raise DesignError(f"{item}: without names {left_out!r}, not a resistor"
+                                  f"{nearest_name(left_out, resistor_refs)}; name resistors")
         if target.kind == "power" and target.ref not in resistor_refs:
             raise DesignError(f"{item}: no resistor {target.ref!r}"
                               f"{nearest_name(target.ref or '', resistor_refs)}; name a resistor")

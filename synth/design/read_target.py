@@ -16,11 +16,13 @@ from synth.design.fields import (
 from synth.design.target import TARGET_KINDS, TARGET_UNITS, Target
 from synth.errors import DesignError
 from synth.units import (
+    parse_decibels,
     parse_quantity,
     parse_resistance,
 )
 
-_TARGET_KEYS = (*TARGET_KINDS, "name", "equals", "within", "at_least", "at_most", "note")
+_TARGET_KEYS = (*TARGET_KINDS, "name", "equals", "within", "at_least", "at_most", "without",
+                "note")
 
 
 def _bare_number(raw: Any) -> bool:
@@ -44,6 +46,8 @@ def _target_quantity(reader: ItemReader, kind: str, key: str) -> float:
         return reader.parsed(key, parse_resistance)
     if kind == "ratio":
         return reader.parsed(key, _parse_ratio)
+    if kind == "loss":
+        return reader.parsed(key, parse_decibels)
     return reader.parsed(key, lambda t: parse_quantity(t, unit))
 
 
@@ -82,17 +86,18 @@ def read_target(origin: str, index: int, raw: Any, ground: str) -> Target:
             default_label = f"voltage at {nodes[0]}"
         else:
             default_label = f"voltage from {nodes[0]} to {nodes[1]}"
-    elif kind == "ratio":
-        pair = raw["ratio"]
+    elif kind in ("ratio", "loss"):
+        pair = raw[kind]
         if not (isinstance(pair, list) and len(pair) == 2):
-            reader.fail('ratio must be two voltages such as [["out", "gnd"], ["in", "gnd"]]')
-        sub = [node_pair(ItemReader(origin, label, {"ratio": p}, ("ratio",)), "ratio", ground)
+            reader.fail(f'{kind} must be two voltages such as [["out", "gnd"], ["in", "gnd"]]')
+        sub = [node_pair(ItemReader(origin, label, {kind: p}, (kind,)), kind, ground)
                for p in pair]
         nodes = sub[0] + sub[1]
         if sub[1][0] == sub[1][1]:
-            reader.fail("the ratio's denominator is a voltage between a node and itself")
+            reader.fail(f"the {kind}'s reference voltage is between a node and itself")
         top, bottom = (a if b == ground else f"({a} - {b})" for a, b in sub)
-        default_label = f"ratio of {top} to {bottom}"
+        default_label = (f"ratio of {top} to {bottom}" if kind == "ratio"
+                         else f"loss from {bottom} to {top}")
     else:
         ref = reader.text(kind)
         default_label = f"{kind} in {ref}"
@@ -104,7 +109,7 @@ def read_target(origin: str, index: int, raw: Any, ground: str) -> Target:
         if equals is None:
             reader.fail("within needs equals; give the goal the window is around")
         text = raw["within"]
-        if kind != "ratio" and _bare_number(text):
+        if kind not in ("ratio", "loss") and _bare_number(text):
             unit = TARGET_UNITS[kind]
             reader.fail(f"within {text!r} has no unit; write it with its unit or as a share of "
                         f"the goal, such as within = \"10 m{unit}\" or \"1%\"")
@@ -123,7 +128,18 @@ def read_target(origin: str, index: int, raw: Any, ground: str) -> Target:
                     "swap them")
     if equals is not None and equals == 0 and within_abs is None:
         reader.fail("equals 0 has no relative error; give within as an absolute window")
+    without: tuple[str, ...] = ()
+    if reader.has("without"):
+        if kind != "resistance":
+            reader.fail("without applies to a resistance target; drop it here")
+        names = raw["without"]
+        if isinstance(names, str):
+            names = [names]
+        if not (isinstance(names, list) and names
+                and all(isinstance(n, str) and n.strip() for n in names)):
+            reader.fail('without must name resistors, such as without = ["RS"]')
+        without = tuple(n.strip() for n in names)
     name = reader.text("name") if reader.has("name") else default_label
     return Target(label=name, kind=kind, nodes=nodes, ref=ref, equals=equals,
                   within_abs=within_abs, within_rel=within_rel, at_least=at_least,
-                  at_most=at_most, unit=TARGET_UNITS[kind])
+                  at_most=at_most, unit=TARGET_UNITS[kind], without=without)

@@ -9,8 +9,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-TARGET_KINDS = ("voltage", "current", "ratio", "power", "resistance")
-TARGET_UNITS = {"voltage": "V", "current": "A", "power": "W", "resistance": "Ω", "ratio": ""}
+TARGET_KINDS = ("voltage", "current", "ratio", "power", "resistance", "loss")
+TARGET_UNITS = {"voltage": "V", "current": "A", "power": "W", "resistance": "Ω", "ratio": "",
+                "loss": "dB"}
 
 @dataclass(frozen=True)
 class Target:
@@ -35,6 +36,10 @@ class Target:
         Bounds.
     unit : str
         Unit symbol for display.
+    without : tuple of str
+        For a resistance: the positions left out (opened) while it is measured,
+        so a port's match is the resistance the network presents, not in
+        parallel with its own termination.
     """
 
     label: str
@@ -47,6 +52,7 @@ class Target:
     at_least: float | None
     at_most: float | None
     unit: str
+    without: tuple[str, ...] = ()
 
     @property
     def bounds(self) -> tuple[float, float]:

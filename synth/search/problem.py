@@ -55,7 +55,7 @@ class SearchProblem:
         self.kind = [t.kind for t in targets]
         node = evaluator.node_index
         self.ratio_den = {k: (node[t.nodes[2]], node[t.nodes[3]])
-                          for k, t in enumerate(targets) if t.kind == "ratio"}
+                          for k, t in enumerate(targets) if t.kind in ("ratio", "loss")}
         self.power_of = {k: evaluator.resistor_index[t.ref or ""]
                          for k, t in enumerate(targets) if t.kind == "power"}
         # without part limits (to find what a limit costs) every part is unrated here

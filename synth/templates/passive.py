@@ -267,9 +267,11 @@ def pad_tables(impedance: str, loss: str, shape: str, settings: QuickSettings
     """A matched attenuator pad between two terminations of ``impedance``.
 
     The pad sits between a source termination RS and a load termination RL,
-    both fixed at the impedance, and is driven by a test current.  Targets:
-    the resistance seen at each port is half the impedance (the termination in
-    parallel with a matched pad), and V(out)/V(in) = 1/K.
+    both fixed at the impedance (model parts, unrated and off the BOM), and is
+    driven by a test current.  Targets: each port's match, the resistance the
+    pad presents there with the far port terminated (measured with the port's
+    own termination left out), equals the impedance; the loss, -20 log10 of
+    V(out)/V(in), equals the asked loss in dB.
     """
     z0 = read_option("--impedance", parse_resistance, impedance)
     db = read_option("--loss", parse_decibels, loss)
@@ -280,8 +282,7 @@ def pad_tables(impedance: str, loss: str, shape: str, settings: QuickSettings
     nodes = ([["in", "mid"], ["mid", "gnd"], ["mid", "out"]] if shape == "T"
              else [["in", "gnd"], ["in", "out"], ["out", "gnd"]])
     pad = [free_part(f"R{k}", pair, settings, span) for k, pair in enumerate(nodes, start=1)]
-    half = f"{z0 / 2:.12g}"
-    gain = 10 ** (-db / 20)
+    line = f"{z0:.12g}"
     return {
         "design": design_table(f"{shape} pad, {loss} in a {impedance} ohm line", settings),
         "source": [{"ref": "ITEST", "kind": "current", "from": "gnd", "to": "in",
@@ -294,9 +295,11 @@ def pad_tables(impedance: str, loss: str, shape: str, settings: QuickSettings
              "note": "load termination (a model, not a part)"},
         ],
         "target": [
-            with_goal({"name": "input match", "resistance": ["in", "gnd"]}, half, settings),
-            with_goal({"name": "output match", "resistance": ["out", "gnd"]}, half, settings),
-            with_goal({"name": "loss", "ratio": [["out", "gnd"], ["in", "gnd"]]},
-                    f"{gain:.12g}", settings),
+            with_goal({"name": "input match", "resistance": ["in", "gnd"],
+                       "without": ["RS"]}, line, settings),
+            with_goal({"name": "output match", "resistance": ["out", "gnd"],
+                       "without": ["RL"]}, line, settings),
+            with_goal({"name": "loss", "loss": [["out", "gnd"], ["in", "gnd"]]},
+                      f"{db:.12g} dB", settings),
         ],
     }

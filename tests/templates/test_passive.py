@@ -126,3 +126,22 @@ def test_infeasible_quick_command_exits_one():
     result = run("divider", "--input", "12 V", "--output", "3.3 V", "--series", "E3",
                  "--within", "0.1%", "--range", "1k:10k")
     assert result.exit_code == 1 and "Binding: target 'output'" in result.output
+
+
+def test_pad_reports_its_loss_in_db_and_each_port_match_as_the_resistance_presented():
+    # the published 6 dB T pad in a 50 ohm line: series arms 16.6139, shunt 66.9310 [HB-pad];
+    # each port then presents 50 ohm (not 25 ohm, the port in parallel with its own
+    # termination) and the loss is 6 dB
+    from synth.checking import check
+    from synth.design.reader import design_from_dict
+
+    design = design_from_dict(pad_tables("50", "6 dB", "T", QuickSettings(series="E96")))
+    result = check(design, values={"R1": 16.6139, "R2": 66.9310, "R3": 16.6139})
+    by_label = {t.label: t for t in result.targets}
+    assert by_label["input match"].value == pytest.approx(50.0, rel=1e-5)
+    assert by_label["output match"].value == pytest.approx(50.0, rel=1e-5)
+    assert by_label["loss"].unit == "dB"
+    assert by_label["loss"].value == pytest.approx(6.0, rel=1e-5)
+    # the terminations are models: unrated and off the bill of materials
+    stand_ins = [r for r in design.resistors if r.ref in ("RS", "RL")]
+    assert all(not r.bom and r.package is None for r in stand_ins)
