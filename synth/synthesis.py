@@ -13,6 +13,7 @@ from __future__ import annotations
 
 __all__ = ["RANKINGS", "YIELD_POOL", "synthesize"]
 
+import math
 from collections.abc import Callable
 from dataclasses import replace
 
@@ -20,7 +21,7 @@ import numpy as np
 
 from synth.binding import limit_text, nearest_text
 from synth.catalog.series import coarsest_series
-from synth.checking import check_block
+from synth.checking import check_block, required_problems
 from synth.circuit.measure import Evaluator
 from synth.design.model import REQUIREMENTS, Design
 from synth.errors import DesignError
@@ -139,6 +140,32 @@ def _spread_of(design: Design, evaluator: Evaluator, candidate: Candidate,
                                                     evaluator, part_values=parts))
 
 
+def _on_basis(design: Design, candidate: Candidate) -> Candidate:
+    """The candidate with what fails on the design's required basis added to its problems."""
+    extra = required_problems(design, candidate.spread)
+    if not extra:
+        return candidate
+    broken = {p.subject for p in extra if p.kind == "window"}
+    targets = tuple(replace(t, status="out of band") if t.label in broken and t.met else t
+                    for t in candidate.targets)
+    return replace(candidate, problems=candidate.problems + extra, feasible=False,
+                   targets=targets)
+
+
+def _violation(candidate: Candidate) -> float:
+    """Distance from feasibility: the largest gap of a window, share over an allowance."""
+    worst = 0.0
+    for problem in candidate.problems:
+        if problem.kind == "window":
+            scale = max(abs(problem.limit), 1e-300)
+            worst = max(worst, abs(problem.value - problem.limit) / scale)
+        elif problem.limit > 0:
+            worst = max(worst, problem.value / problem.limit - 1)
+        else:
+            worst = math.inf
+    return worst
+
+
 def _yield_low(candidate: Candidate) -> float:
     spread = candidate.spread
     if spread is None or spread.yield_interval is None:
@@ -253,9 +280,14 @@ def synthesize(
         evaluated += relaxed.evaluated
         elapsed += relaxed.elapsed_s
         candidates = _candidates(design, evaluator, choices, relaxed.ranked.indices)
-    settings = spread or (SpreadSettings() if by_yield else None)
+    settings = spread or (SpreadSettings() if by_yield else
+                          SpreadSettings(samples=0) if require == "worst-case" else None)
     if settings is not None:
         candidates = [_spread_of(design, evaluator, c, settings) for c in candidates]
+    if require == "worst-case" and not feasible:
+        # the nearest designs, judged on the required basis, nearest first
+        candidates = sorted((_on_basis(replace(design, require=require), c)
+                             for c in candidates), key=lambda c: (_violation(c), c.rank))
     considered = len(candidates)
     yield_short = False
     if feasible and require == "yield":

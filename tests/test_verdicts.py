@@ -453,24 +453,13 @@ def test_require_worst_case_refuses_when_no_box_fits(tmp_path) -> None:
             "box (worst case)") in result.output
 
 
-WORST_CASE_61 = ("require worst-case, 6.1 V +-1.2 % from 10 V (E24 1k..100k, +-1 %, 10k +-5 % "
-                 "load), where no pair's box fits: ")
-
-
-@pytest.mark.xfail(strict=True, reason=WORST_CASE_61 + (
-    "the binding is the placeholder 'a target or limit' and names nothing, although the "
-    "shown best (4.7k/27k) breaks 'voltage at out' over its box (worst case 2.26 %, window "
-    "6.0268..6.1732 V)"))
 def test_require_worst_case_binding_names_the_target() -> None:
+    # 6.1 V +-1.2 % from 10 V (E24 1k..100k, +-1 %, 10k +-5 % load): no pair's box fits
     robust = synthesize(loaded_divider("6.1 V"), top=3, require="worst-case", spread=NO_MC)
     assert robust.feasible is False
     assert "voltage at out" in (robust.binding or "")
 
 
-@pytest.mark.xfail(strict=True, reason=WORST_CASE_61 + (
-    "the shown best (4.7k/27k, 6.0825 V nominal, worst case 2.26 %) reports its target "
-    "status as 'met'; TargetReport documents 'out of band' for met at nominal values, "
-    "broken on the basis the design requires"))
 def test_require_worst_case_best_target_is_out_of_band() -> None:
     robust = synthesize(loaded_divider("6.1 V"), top=3, require="worst-case", spread=NO_MC)
     assert robust.feasible is False
