@@ -15,8 +15,9 @@ from typing import Any
 
 from tabulate import tabulate
 
-from synth.report.numbers import json_number
+from synth.report.numbers import NOISE_FRACTION, json_number
 from synth.report.spread import spread_json, spread_text
+from synth.report.verdict import error_text
 from synth.results import CheckResult, PartReport, Problem, TargetReport
 from synth.units import format_eng, format_rkm
 
@@ -32,6 +33,8 @@ def _quantity(value: float, unit: str, digits: int = 5) -> str:
 def _percent(value: float | None, signed: bool = False) -> str:
     if value is None or not math.isfinite(value):
         return "-"
+    if abs(value) < NOISE_FRACTION:
+        return "0%"  # float noise of an exact result is not data
     return f"{value * 100:+.3g}%" if signed else f"{value * 100:.3g}%"
 
 
@@ -74,7 +77,7 @@ def _target_rows(targets: tuple[TargetReport, ...]) -> list[list[str]]:
             t.label,
             _quantity(t.value, t.unit, 6),
             "-" if t.goal is None else _quantity(t.goal, t.unit, 6),
-            _percent(t.error, signed=True) if t.goal not in (None, 0) else "-",
+            error_text(t),
             window_text(t),
             "yes" if t.met else "NO",
         ]

@@ -2,9 +2,12 @@
 
 from __future__ import annotations
 
-__all__ = ["json_number"]
+__all__ = ["NOISE_FRACTION", "json_number"]
 
 import math
+
+NOISE_FRACTION = 1e-12
+"""Relative errors smaller than this are float noise of an exact result: shown as 0 %."""
 
 
 def json_number(value: float | None) -> float | None:

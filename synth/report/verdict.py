@@ -13,6 +13,7 @@ __all__ = ["basis_text", "error_text", "status_text", "verdict_text"]
 
 from dataclasses import replace
 
+from synth.report.numbers import NOISE_FRACTION
 from synth.results import Candidate, SynthesisResult, TargetReport
 from synth.units import format_eng
 
@@ -22,6 +23,8 @@ def error_text(target: TargetReport) -> str:
     if target.error is None:
         return "-"
     if target.relative:
+        if abs(target.error) < NOISE_FRACTION:
+            return "0%"  # float noise of an exact result is not data
         return f"{target.error * 100:+.3g}%"
     return format_eng(target.error, target.unit, 4) if target.unit else f"{target.error:+.4g}"
 
