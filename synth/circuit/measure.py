@@ -279,7 +279,7 @@ class Evaluator:
                 if target.kind == "ratio":
                     return ratio  # type: ignore[no-any-return]  # numpy types this array expression as Any
                 # loss in dB, -20 log10 of the voltage ratio (NaN where the ratio is not positive)
-                return -20.0 * np.log10(np.where(ratio > 0, ratio, np.nan))  # type: ignore[no-any-return]  # numpy types this array expression as Any
+                return -20.0 * np.log10(np.where(ratio > 0, ratio, np.nan))
         if target.kind == "current":
             return sol.branch_currents[:, self.branch_index[target.ref or ""]]
         if target.kind == "power":
