@@ -4,14 +4,35 @@ branches, no cut of current sources.
 
 from __future__ import annotations
 
-__all__ = ["UnionFind", "check_topology"]
+__all__ = ["Graph", "UnionFind", "check_topology"]
 
-from typing import TYPE_CHECKING
+from collections.abc import Sequence
+from typing import Protocol
+
+import numpy as np
 
 from synth.errors import DesignError
 
-if TYPE_CHECKING:  # network.py imports this module
-    from synth.circuit.network import Network
+
+class Graph(Protocol):
+    """What the topology rules read of a network (see :class:`synth.circuit.network.Network`)."""
+
+    @property
+    def origin(self) -> str: ...
+    @property
+    def nodes(self) -> Sequence[str]: ...
+    @property
+    def branch_refs(self) -> Sequence[str]: ...
+    @property
+    def branch_ends(self) -> np.ndarray: ...
+    @property
+    def resistor_refs(self) -> Sequence[str]: ...
+    @property
+    def vsource_refs(self) -> Sequence[str]: ...
+    @property
+    def isource_refs(self) -> Sequence[str]: ...
+    @property
+    def regulator_refs(self) -> Sequence[str]: ...
 
 
 class UnionFind:
@@ -39,7 +60,7 @@ class UnionFind:
         return True
 
 
-def check_topology(network: Network) -> None:
+def check_topology(network: Graph) -> None:
     """Refuse a network without a unique DC solution (see :func:`build_network`)."""
     n = len(network.nodes)
     refs, ends = network.branch_refs, network.branch_ends
