@@ -13,7 +13,12 @@ from dataclasses import dataclass, field
 
 from synth.design.model import Design
 from synth.spread.records import SpreadResult
-from synth.units import format_eng
+from synth.units import format_eng, format_window
+
+
+def _edge(value: float | None, side: int) -> float:
+    return side * math.inf if value is None else value
+
 
 PROBLEM_KINDS = ("power", "voltage", "window", "yield")
 """A part over its power allowance, over its voltage allowance, a target out of its window,
@@ -67,19 +72,7 @@ class Problem:
             return (f"{self.subject} sees {format_eng(self.value, 'V')}, over its allowed "
                     f"{format_eng(self.limit, 'V')}")
         return (f"target {self.subject} = {format_eng(self.value, self.unit, 6)} lies outside "
-                f"{_window(self.low, self.high, self.unit)}")
-
-
-def _window(low: float | None, high: float | None, unit: str) -> str:
-    lo = -math.inf if low is None else low
-    hi = math.inf if high is None else high
-    if math.isinf(lo) and math.isinf(hi):
-        return "any value"
-    if math.isinf(lo):
-        return f"at most {format_eng(hi, unit, 6)}"
-    if math.isinf(hi):
-        return f"at least {format_eng(lo, unit, 6)}"
-    return f"{format_eng(lo, unit, 6)} .. {format_eng(hi, unit, 6)}"
+                f"{format_window(_edge(self.low, -1), _edge(self.high, 1), self.unit)}")
 
 
 @dataclass(frozen=True)

@@ -283,7 +283,11 @@ def synthesize(
     settings = spread or (SpreadSettings() if by_yield else
                           SpreadSettings(samples=0) if require == "worst-case" else None)
     if settings is not None:
-        candidates = [_spread_of(design, evaluator, c, settings) for c in candidates]
+        # Monte Carlo for every candidate only when yield ranks or filters them; else for
+        # the best, with worst case and RSS for all (the others' yield reads n/a)
+        quick = settings if by_yield else replace(settings, samples=0)
+        candidates = [_spread_of(design, evaluator, c, settings if k == 0 else quick)
+                      for k, c in enumerate(candidates)]
     if require == "worst-case" and not feasible:
         # the nearest designs, judged on the required basis, nearest first
         candidates = sorted((_on_basis(replace(design, require=require), c)

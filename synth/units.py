@@ -18,6 +18,7 @@ __all__ = [
     "format_eng",
     "format_percent",
     "format_rkm",
+    "format_window",
     "parse_decibels",
     "parse_fraction",
     "parse_quantity",
@@ -384,3 +385,20 @@ def format_percent(fraction: float, digits: int = 3) -> str:
     '1%'
     """
     return f"{fraction * 100:.{digits}g}%"
+
+
+def format_window(low: float, high: float, unit: str = "", digits: int = 6) -> str:
+    """A window or band as text: ``"2.97 V .. 3.03 V"``, ``"at most 30 µA"``, ``"any value"``.
+
+    Examples
+    --------
+    >>> format_window(2.97, 3.03, "V"), format_window(float("-inf"), 3e-5, "A")
+    ('2.97 V .. 3.03 V', 'at most 30 µA')
+    """
+    if math.isinf(low) and math.isinf(high):
+        return "any value"
+    if math.isinf(low):
+        return f"at most {format_eng(high, unit, digits)}"
+    if math.isinf(high):
+        return f"at least {format_eng(low, unit, digits)}"
+    return f"{format_eng(low, unit, digits)} .. {format_eng(high, unit, digits)}"

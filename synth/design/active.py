@@ -28,7 +28,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import Any
 
-from synth.design.fields import ItemReader, node_pair, table_array
+from synth.design.fields import ItemReader, item_label, node_pair, table_array
 from synth.design.model import ControlledSource, Regulator, Source, Transistor
 from synth.design.target import Target
 from synth.errors import DesignError, nearest_name
@@ -59,12 +59,6 @@ class ActiveParts:
     targets: tuple[Target, ...]
 
 
-def _label(kind: str, index: int, raw: Any) -> str:
-    if isinstance(raw, Mapping) and isinstance(raw.get("ref"), str):
-        return f"{kind} {raw['ref']}"
-    return f"{kind} #{index}"
-
-
 def _gain(reader: ItemReader, kind: str, raw: Any, key: str) -> float:
     """A gain: V/V and A/A plain numbers, A/V in S, V/A in ohm."""
     try:
@@ -86,7 +80,7 @@ def _gain(reader: ItemReader, kind: str, raw: Any, key: str) -> float:
 
 
 def _read_controlled(origin: str, index: int, raw: Any, ground: str) -> ControlledSource:
-    reader = ItemReader(origin, _label("controlled source", index, raw), raw, _CONTROLLED_KEYS)
+    reader = ItemReader(origin, item_label("controlled source", index, raw), raw, _CONTROLLED_KEYS)
     ref = reader.text("ref")
     kind = reader.text("kind").lower()
     if kind not in _KINDS:
@@ -124,7 +118,7 @@ def _read_controlled(origin: str, index: int, raw: Any, ground: str) -> Controll
 
 def _read_transistor(origin: str, index: int, raw: Any, ground: str
                      ) -> tuple[Transistor, Source, ControlledSource, Target]:
-    reader = ItemReader(origin, _label("transistor", index, raw), raw, _TRANSISTOR_KEYS)
+    reader = ItemReader(origin, item_label("transistor", index, raw), raw, _TRANSISTOR_KEYS)
     ref = reader.text("ref")
     polarity = reader.text("type").lower()
     if polarity not in ("npn", "pnp"):
@@ -168,7 +162,7 @@ def _read_transistor(origin: str, index: int, raw: Any, ground: str
 
 def _read_amplifier(origin: str, index: int, raw: Any, ground: str
                     ) -> Regulator | ControlledSource:
-    reader = ItemReader(origin, _label("amplifier", index, raw), raw, _AMPLIFIER_KEYS)
+    reader = ItemReader(origin, item_label("amplifier", index, raw), raw, _AMPLIFIER_KEYS)
     ref = reader.text("ref")
     plus, minus, output = reader.text("plus"), reader.text("minus"), reader.text("output")
     if plus == minus:

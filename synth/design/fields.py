@@ -3,7 +3,10 @@
 
 from __future__ import annotations
 
-__all__ = ["ItemReader", "node_pair", "range_end", "read_ohms", "table_array", "temperature_end"]
+__all__ = [
+    "ItemReader", "item_label", "node_pair", "range_end", "read_ohms", "table_array",
+    "temperature_end",
+]
 
 from collections.abc import Callable, Mapping, Sequence
 from typing import Any, NoReturn
@@ -110,3 +113,16 @@ def table_array(origin: str, data: Mapping[str, Any], key: str) -> list[Any]:
     if not isinstance(raw, list):
         raise DesignError(f"{origin}: {key} must be an array of tables; write each as [[{key}]]")
     return raw
+
+
+def item_label(kind: str, index: int, raw: Any, key: str = "ref") -> str:
+    """How errors name one table: ``"resistor R3"`` by its designator, else ``"resistor #3"``.
+
+    Examples
+    --------
+    >>> item_label("resistor", 3, {"ref": "R3"}), item_label("target", 2, {}, key="name")
+    ('resistor R3', 'target #2')
+    """
+    if isinstance(raw, Mapping) and isinstance(raw.get(key), str):
+        return f"{kind} {raw[key]!r}" if key == "name" else f"{kind} {raw[key]}"
+    return f"{kind} #{index}"

@@ -15,6 +15,7 @@ from synth.catalog.packages import PackageRating
 from synth.catalog.series import catalog_dir, load_series
 from synth.design.fields import (
     ItemReader,
+    item_label,
     range_end,
     read_ohms,
 )
@@ -43,10 +44,7 @@ def _resolve_stock(origin: str, reader: ItemReader, choose: str) -> Path:
 
 def read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
                    packages: Mapping[str, PackageRating]) -> Resistor:
-    label = f"resistor #{index}"
-    if isinstance(raw, Mapping) and isinstance(raw.get("ref"), str):
-        label = f"resistor {raw['ref']}"
-    reader = ItemReader(origin, label, raw, _RESISTOR_KEYS)
+    reader = ItemReader(origin, item_label("resistor", index, raw), raw, _RESISTOR_KEYS)
     ref = reader.text("ref")
     nodes = raw.get("nodes")
     if not (isinstance(nodes, list) and len(nodes) == 2

@@ -6,11 +6,11 @@ from __future__ import annotations
 __all__ = ["read_target"]
 
 import math
-from collections.abc import Mapping
 from typing import Any
 
 from synth.design.fields import (
     ItemReader,
+    item_label,
     node_pair,
 )
 from synth.design.target import TARGET_KINDS, TARGET_UNITS, Target
@@ -66,9 +66,7 @@ def _parse_ratio(raw: Any) -> float:
 
 
 def read_target(origin: str, index: int, raw: Any, ground: str) -> Target:
-    label = f"target #{index}"
-    if isinstance(raw, Mapping) and isinstance(raw.get("name"), str):
-        label = f"target {raw['name']!r}"
+    label = item_label("target", index, raw, key="name")
     reader = ItemReader(origin, label, raw, _TARGET_KEYS)
     kinds = [k for k in TARGET_KINDS if reader.has(k)]
     if len(kinds) != 1:

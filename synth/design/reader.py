@@ -24,6 +24,7 @@ from synth.design.active import read_active_parts
 from synth.design.checks import check_references
 from synth.design.fields import (
     ItemReader,
+    item_label,
     table_array,
     temperature_end,
 )
@@ -123,10 +124,7 @@ def _read_design_table(origin: str, raw: Any) -> dict[str, Any]:
 
 
 def _read_source(origin: str, index: int, raw: Any) -> Source:
-    label = f"source #{index}"
-    if isinstance(raw, Mapping) and isinstance(raw.get("ref"), str):
-        label = f"source {raw['ref']}"
-    reader = ItemReader(origin, label, raw, _SOURCE_KEYS)
+    reader = ItemReader(origin, item_label("source", index, raw), raw, _SOURCE_KEYS)
     ref = reader.text("ref")
     kind = reader.text("kind")
     if kind == "voltage":
@@ -171,10 +169,7 @@ def _read_source(origin: str, index: int, raw: Any) -> Source:
 
 
 def _read_regulator(origin: str, index: int, raw: Any) -> Regulator:
-    label = f"regulator #{index}"
-    if isinstance(raw, Mapping) and isinstance(raw.get("ref"), str):
-        label = f"regulator {raw['ref']}"
-    reader = ItemReader(origin, label, raw, _REGULATOR_KEYS)
+    reader = ItemReader(origin, item_label("regulator", index, raw), raw, _REGULATOR_KEYS)
     ref = reader.text("ref")
     output, sense, reference = reader.text("output"), reader.text("sense"), reader.text("reference")
     if sense == reference:

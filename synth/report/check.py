@@ -19,7 +19,7 @@ from synth.report.numbers import NOISE_FRACTION, json_number
 from synth.report.spread import spread_json, spread_text
 from synth.report.verdict import error_text
 from synth.results import CheckResult, PartReport, Problem, TargetReport
-from synth.units import format_eng, format_rkm
+from synth.units import format_eng, format_rkm, format_window
 
 _UNIT_OF = {"voltage": "V", "current": "A", "power": "W", "resistance": "Ω", "ratio": ""}
 
@@ -39,15 +39,9 @@ def _percent(value: float | None, signed: bool = False) -> str:
 
 
 def window_text(target: TargetReport) -> str:
-    """The hard window of a target as text (``"2.97 V .. 3.03 V"``, ``"<= 1 mA"``)."""
-    low, high = target.low, target.high
-    if math.isinf(low) and math.isinf(high):
-        return "-"
-    if math.isinf(low):
-        return f"<= {_quantity(high, target.unit)}"
-    if math.isinf(high):
-        return f">= {_quantity(low, target.unit)}"
-    return f"{_quantity(low, target.unit)} .. {_quantity(high, target.unit)}"
+    """The hard window of a target as text (``"2.97 V .. 3.03 V"``, ``"at most 1 mA"``)."""
+    text = format_window(target.low, target.high, target.unit, 5)
+    return "-" if text == "any value" else text
 
 
 def _part_row(part: PartReport) -> list[str]:
