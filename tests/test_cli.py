@@ -91,18 +91,18 @@ package = "0603"
 
 
 def test_progress_bar_after_a_second(monkeypatch, capsys):
-    from synth import cli as cli_module
+    from synth.cli import options as cli_module
 
     clock = iter([0.0, 0.5, 1.5, 1.6])
     monkeypatch.setattr(cli_module.time, "monotonic", lambda: next(clock))
-    bar = cli_module._Progress(enabled=True)  # started at t = 0
+    bar = cli_module.Progress(enabled=True)  # started at t = 0
     bar(0.1)  # t = 0.5: too early, nothing shown
     assert capsys.readouterr().err == ""
     bar(0.5)  # t = 1.5
     assert "searching [" in capsys.readouterr().err and bar.shown
     bar.close()
     assert capsys.readouterr().err.strip() == ""  # the line is wiped
-    quiet = cli_module._Progress(enabled=False)
+    quiet = cli_module.Progress(enabled=False)
     quiet(0.9)
     assert capsys.readouterr().err == "" and not quiet.shown
 

@@ -136,7 +136,7 @@ def test_progress_bar_hidden_when_not_a_terminal(tmp_design, monkeypatch):
 
     import click.testing
 
-    from synth import cli as cli_module
+    from synth.cli import options as cli_module
 
     # a clock on which every reading is 2 s after the last: the bar is due at once
     ticks = iter(range(0, 10**6, 2))

@@ -1,0 +1,185 @@
+"""The general commands: series, check, design and bom, on the ``rnsynth`` group.
+"""
+
+from __future__ import annotations
+
+__all__ = ["bom_command", "check_command", "cli", "design_command", "series_command"]
+
+import sys
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+import click
+
+from synth.errors import DesignError
+
+if TYPE_CHECKING:
+    pass
+
+from synth.cli.options import (
+    RESISTANCE,
+    RESISTANCE_RANGE,
+    CatalogueChoice,
+    Given,
+    Range,
+    SearchOptions,
+    SpreadOptions,
+    emit_json,
+    friendly,
+    search_options,
+    series_name_choices,
+    spread_options,
+    write_plots,
+)
+from synth.cli.run import run_design
+
+# -- commands ----------------------------------------------------------------------------
+
+
+def _print_version(ctx: click.Context, param: click.Parameter, value: bool) -> None:
+    if not value or ctx.resilient_parsing:
+        return
+    from synth import __version__
+
+    click.echo(f"rnsynth, version {__version__}")
+    ctx.exit()
+
+
+@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+@click.option("--version", is_flag=True, expose_value=False, is_eager=True,
+              callback=_print_version, help="Show the version and exit.")
+def cli() -> None:
+    """rnsynth: from electrical targets to standard resistor values.
+
+    Shell completion follows click's convention, e.g. for bash:
+    eval "$(_RNSYNTH_COMPLETE=bash_source rnsynth)".
+    """
+
+
+@cli.command("series")
+@click.argument("name", type=CatalogueChoice(series_name_choices, case_sensitive=False))
+@click.option("--range", "span", type=RESISTANCE_RANGE, default="1:9.99", show_default=True,
+              help="Resistance range to list, e.g. 1k:10k.")
+@click.option("--nearest", type=RESISTANCE, metavar="VALUE",
+              help="Print only the value nearest to this one.")
+@click.option("--json", "as_json", is_flag=True, help="Print a JSON list of ohms.")
+@friendly
+def series_command(name: str, span: Range, nearest: Given | None, as_json: bool) -> None:
+    """List the values of an IEC 60063 series (E3 ... E192)."""
+    from synth.catalog.series import nearest_value, series_values
+    from synth.units import format_eng, format_rkm
+
+    if nearest is not None:
+        values = [nearest_value(nearest.value, name)]
+    else:
+        values = [float(v) for v in series_values(name, span.low, span.high)]
+    if as_json:
+        emit_json(values)
+        return
+    for value in values:
+        click.echo(f"{format_eng(value, 'Ω'):>10}  {format_rkm(value)}")
+
+
+@cli.command("check")
+@click.argument("design_file", type=click.Path(dir_okay=False))
+@click.option("--json", "as_json", is_flag=True, help="Print the results as JSON.")
+@click.option("--verify", is_flag=True,
+              help="Also solve by nodal analysis and report the largest difference.")
+@spread_options
+@friendly
+def check_command(design_file: str, as_json: bool, verify: bool, spread: SpreadOptions) -> None:
+    """Analyse a design whose values are all given.
+
+    Prints node voltages, each part's current, dissipation and use of its
+    derated rating, and whether each target is met.  Exits 1 when a target
+    is missed or a part is over its allowance.
+    """
+    from synth.checking import check
+    from synth.design.load import load_design
+    from synth.report.check import check_json, check_text
+
+    design = load_design(design_file)
+    result = check(design, verify=verify, spread=spread.settings())
+    if as_json:
+        emit_json(check_json(result))
+    else:
+        click.echo(check_text(result))
+    if spread.plots and result.spread is not None:
+        from synth.report.plots import target_histograms
+
+        write_plots(target_histograms(design, result.spread, spread.plots), as_json)
+    if not result.ok:
+        sys.exit(1)
+
+
+@cli.command("design")
+@click.argument("design_file", type=click.Path(dir_okay=False))
+@search_options
+@friendly
+def design_command(design_file: str, search: SearchOptions, spread: SpreadOptions) -> None:
+    """Choose standard values for the free parts of a design.
+
+    Shows the ideal continuous values, then the best candidates, each
+    re-checked by a full mesh solve: values, each target's value and error,
+    the hottest part and supply current.  Exits 1 when no standard values
+    meet every window and limit (the nearest designs are shown and the binding
+    target or limit named).
+    """
+    from synth.design.load import load_design
+
+    run_design(load_design(design_file), search, spread)
+
+
+
+
+@cli.command("bom")
+@click.argument("files", nargs=-1, required=True, type=click.Path(dir_okay=False))
+@click.option("--stock", type=click.Path(dir_okay=False), default=None,
+              help="House stock list (CSV: value, package, tolerance, quantity).")
+@click.option("--stock-only", is_flag=True,
+              help="Choose only values the stock list holds.")
+@click.option("--pool", type=int, default=None,
+              help="Feasible candidates kept per network for consolidation [default: 200].")
+@click.option("--format", "form", type=click.Choice(["csv", "json", "markdown"]),
+              default="csv", show_default=True, help="Output format.")
+@click.option("--output", type=click.Path(dir_okay=False), default=None,
+              help="Write the BOM to this file instead of standard output.")
+@click.option("--force", is_flag=True, help="Replace an existing output file.")
+@click.option("--time-limit", type=float, default=30.0, show_default=True,
+              metavar="SECONDS", help="Time limit of the consolidation.")
+@click.option("--quiet", is_flag=True, help="No summary and no progress lines.")
+@friendly
+def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, pool: int | None,
+                form: str, output: str | None, force: bool, time_limit: float,
+                quiet: bool) -> None:
+    """Bill of materials for a board: design files and/or board files.
+
+    Designs every network, then chooses one design per network so that the
+    board has the fewest distinct BOM lines (CP-SAT, exact within the time
+    limit), and writes one line per distinct orderable part.
+    """
+    from synth.bom.build import build_bom
+    from synth.design.board import load_board
+    from synth.files import write_atomic
+    from synth.report.bom import bom_summary, render_bom
+
+    if output is not None and Path(output).exists() and not force:
+        raise DesignError(f"{output}: already exists; pass --force to replace it")
+    board = load_board(list(files), stock=stock, pool=pool)
+    if stock_only and board.stock_path is None:
+        raise DesignError("--stock-only needs a stock list; give --stock FILE")
+
+    def note(name: str) -> None:
+        if not quiet:
+            click.echo(f"designing {name} ...", err=True)
+
+    result = build_bom(board, stock_only=stock_only, time_limit_s=time_limit, progress=note)
+    text = render_bom(result, form)
+    if output is None:
+        click.echo(text, nl=False)
+    else:
+        write_atomic(output, text, force=force)
+    if not quiet:
+        click.echo(bom_summary(result), err=output is None)
+        if output is not None:
+            click.echo(f"BOM written: {output}")

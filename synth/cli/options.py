@@ -1,0 +1,433 @@
+"""The command line's shared pieces: errors to exit codes, typed option values, option groups,
+output helpers.
+"""
+
+from __future__ import annotations
+
+__all__ = [
+    "CURRENT", "DECIBELS", "PERCENT", "PLOT_AXES", "RESISTANCE", "RESISTANCE_RANGE",
+    "TEMPERATURE", "VOLTAGE", "BadInput", "CatalogueChoice", "Given", "Measured", "Progress",
+    "QuickOptions", "Range", "SearchOptions", "SpreadOptions", "Window", "emit_json",
+    "friendly", "option_group", "option_name", "quick_options", "ranking_choices",
+    "search_options", "series_name_choices", "spread_options", "write_plots",
+]
+
+import functools
+import json
+import sys
+import time
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, fields
+from typing import IO, TYPE_CHECKING, Any, TypeVar, cast
+
+import click
+
+from synth.errors import DesignError, InfeasibleError, RnsynthError
+from synth.units import parse_decibels, parse_fraction, parse_quantity, parse_resistance
+
+if TYPE_CHECKING:
+    from synth.spread.records import SpreadSettings
+    from synth.templates.passive import QuickSettings
+
+F = TypeVar("F", bound=Callable[..., Any])
+
+
+
+# -- errors ------------------------------------------------------------------------------
+
+
+class BadInput(click.ClickException):
+    """Bad input found while parsing options: one line on stderr, exit code 2."""
+
+    exit_code = 2
+
+    def show(self, file: IO[Any] | None = None) -> None:
+        click.echo(f"rnsynth: {self.format_message()}", err=True)
+
+
+def friendly(command: F) -> F:
+    """Turn rnsynth errors into one line on stderr and the documented exit code."""
+
+    @functools.wraps(command)
+    def run(*args: Any, **kwargs: Any) -> Any:
+        try:
+            return command(*args, **kwargs)
+        except InfeasibleError as exc:
+            click.echo(f"rnsynth: {exc}", err=True)
+            sys.exit(1)
+        except (DesignError, RnsynthError) as exc:
+            click.echo(f"rnsynth: {exc}", err=True)
+            sys.exit(2)
+        except KeyboardInterrupt:
+            # outputs are written atomically: an interrupted run leaves no partial file
+            click.echo("rnsynth: interrupted; nothing was written", err=True)
+            sys.exit(130)
+        except (ArithmeticError, RuntimeError, ValueError, MemoryError) as exc:
+            # a numerical or solver failure (a singular network, CP-SAT refusing a model)
+            # is reported, never shown as a traceback
+            name = type(exc).__name__
+            click.echo(f"rnsynth: the calculation could not be completed ({name}: {exc}); "
+                       "check the design's values and limits", err=True)
+            sys.exit(2)
+
+    return cast(F, run)
+
+
+# -- option types ------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class Given:
+    """An option's value as the user wrote it (kept for design files) and its number."""
+
+    text: str
+    value: float
+
+
+@dataclass(frozen=True)
+class Range:
+    """A resistance range LOW:HIGH as written, and its ends in ohm."""
+
+    text: str
+    low: float
+    high: float
+
+
+def option_name(param: click.Parameter | None) -> str:
+    if param is None:
+        return "value"
+    if isinstance(param, click.Option) and param.opts:
+        return max(param.opts, key=len)
+    return param.human_readable_name
+
+
+class Measured(click.ParamType[Given]):
+    """A value with a unit ("12 V", "20 mA", "4k7", "60 C", "50%", "6 dB")."""
+
+    def __init__(self, name: str, parse: Callable[[str], float]):
+        self.name = name
+        self._parse = parse
+
+    def convert(self, value: Any, param: click.Parameter | None,
+                ctx: click.Context | None) -> Given:
+        if isinstance(value, Given):
+            return value
+        text = str(value).strip()
+        try:
+            return Given(text, float(self._parse(text)))
+        except DesignError as exc:
+            raise BadInput(f"{option_name(param)}: {exc}") from None
+
+
+def _voltage(text: str) -> float:
+    return parse_quantity(text, "V")
+
+
+def _current(text: str) -> float:
+    return parse_quantity(text, "A")
+
+
+def _temperature(text: str) -> float:
+    from synth.units import parse_temperature
+
+    return parse_temperature(text)
+
+
+VOLTAGE = Measured("voltage", _voltage)
+CURRENT = Measured("current", _current)
+RESISTANCE = Measured("resistance", parse_resistance)
+TEMPERATURE = Measured("temperature", _temperature)
+PERCENT = Measured("percent", parse_fraction)
+DECIBELS = Measured("dB", parse_decibels)
+
+
+class Window(click.ParamType[str]):
+    """A hard window on the main target: relative ("1%", "50 ppm") or in the target's unit.
+
+    The design reader has the last word on each target; this refuses the
+    obvious mistakes while the options are parsed.
+    """
+
+    name = "window"
+
+    def __init__(self, unit: str):
+        self.unit = unit
+
+    def convert(self, value: Any, param: click.Parameter | None,
+                ctx: click.Context | None) -> str:
+        text = str(value).strip()
+        try:
+            if text.endswith(("%", "ppm")):
+                parse_fraction(text)
+            elif self.unit == "Ω":
+                parse_resistance(text)
+            elif self.unit:
+                parse_quantity(text, self.unit)
+            else:
+                _plain_number(text)
+        except DesignError as exc:
+            raise BadInput(f"{option_name(param)}: {exc}") from None
+        return text
+
+
+def _plain_number(text: str) -> float:
+    try:
+        return float(text)
+    except ValueError:
+        raise DesignError(f"{text!r} is neither a percentage nor a plain number; "
+                          'write e.g. "1%" or 0.05') from None
+
+
+class _ResistanceRange(click.ParamType[Range]):
+    """A resistance range LOW:HIGH, read by the quick designs' own range rule."""
+
+    name = "LOW:HIGH"
+
+    def convert(self, value: Any, param: click.Parameter | None,
+                ctx: click.Context | None) -> Range:
+        if isinstance(value, Range):
+            return value
+        from synth.templates.passive import QuickSettings, value_range
+
+        text = str(value).strip()
+        try:
+            low, high = value_range(QuickSettings(value_range=text))
+            return Range(text, parse_resistance(low), parse_resistance(high))
+        except DesignError as exc:
+            raise BadInput(str(exc)) from None
+
+
+RESISTANCE_RANGE = _ResistanceRange()
+
+
+class CatalogueChoice(click.Choice[str]):
+    """A choice whose names come from the library, read on first use (not at start-up)."""
+
+    def __init__(self, names: Callable[[], Sequence[str]], case_sensitive: bool = True):
+        self._names = names
+        self._loaded: tuple[str, ...] | None = None
+        super().__init__((), case_sensitive=case_sensitive)
+
+    @property
+    def choices(self) -> tuple[str, ...]:
+        if self._loaded is None:
+            self._loaded = tuple(self._names())
+        return self._loaded
+
+    @choices.setter
+    def choices(self, value: Sequence[str]) -> None:
+        """The parent's constructor stores an empty placeholder; the names load lazily."""
+
+    def convert(self, value: Any, param: click.Parameter | None,
+                ctx: click.Context | None) -> str:
+        if ctx is not None and ctx.resilient_parsing:
+            return str(value)  # shell completion: leave the check (and its imports) to a run
+        return super().convert(value, param, ctx)
+
+
+def series_name_choices() -> Sequence[str]:
+    from synth.catalog.series import series_names
+
+    return series_names()
+
+
+def ranking_choices() -> Sequence[str]:
+    from synth.synthesis import RANKINGS
+
+    return RANKINGS
+
+
+# -- shared option groups ----------------------------------------------------------------
+
+
+def option_group(record: type, options: Sequence[Callable[[F], F]]) -> Callable[[F], F]:
+    """Add ``options`` to a command and hand their values to it as one ``record``.
+
+    The command receives a keyword argument named after the record's class
+    (``SpreadOptions`` -> ``spread``) instead of one argument per option.
+    """
+    keyword = record.__name__.removesuffix("Options").lower()
+    names = [f.name for f in fields(record)]
+
+    def decorate(command: F) -> F:
+        @functools.wraps(command)
+        def run(*args: Any, **kwargs: Any) -> Any:
+            values = {name: kwargs.pop(name) for name in names}
+            return command(*args, **{keyword: record(**values)}, **kwargs)
+
+        for option in reversed(options):
+            run = option(run)
+        return cast(F, run)
+
+    return decorate
+
+
+@dataclass(frozen=True)
+class SpreadOptions:
+    samples: int
+    distribution: str
+    seed: int
+    plots: str | None
+
+    def settings(self) -> SpreadSettings:
+        from synth.spread.records import SpreadSettings
+
+        if self.samples < 0:
+            raise DesignError(f"--samples {self.samples} must be 0 (no Monte Carlo) or more")
+        return SpreadSettings(samples=self.samples, distribution=self.distribution,
+                              seed=self.seed)
+
+
+spread_options = option_group(SpreadOptions, [
+    click.option("--samples", default=100_000, show_default=True,
+                 help="Monte Carlo samples for the spread (0: none)."),
+    click.option("--distribution", type=click.Choice(["uniform", "normal"]),
+                 default="uniform", show_default=True,
+                 help="Shape of each tolerance; normal reads tolerance as 3 sigma."),
+    click.option("--seed", default=1, show_default=True, help="Monte Carlo seed."),
+    click.option("--plots", type=click.Path(file_okay=False), default=None,
+                 metavar="FOLDER", help="Write PNG and SVG plots into this folder."),
+])
+
+PLOT_AXES = ("supply", "hottest", "distinct")
+
+
+def _deprecated_cost(ctx: click.Context, param: click.Parameter, value: str | None
+                     ) -> str | None:
+    if value is not None and not ctx.resilient_parsing:
+        click.echo("rnsynth: --cost is deprecated and goes in the next version; "
+                   "use --plot-x", err=True)
+    return value
+
+
+@dataclass(frozen=True)
+class SearchOptions:
+    top: int
+    rank_by: str
+    plot_x: str
+    cost: str | None
+    time_limit: float | None
+    as_json: bool
+    quiet: bool
+    require: str | None
+    min_yield: Given | None
+
+    @property
+    def plot_axis(self) -> str:
+        """The candidate plot's x axis: ``--plot-x``, or the deprecated ``--cost``."""
+        return self.cost if self.cost is not None else self.plot_x
+
+
+_search_group = option_group(SearchOptions, [
+    click.option("--top", default=10, show_default=True, help="Candidates to show."),
+    click.option("--rank-by", type=CatalogueChoice(ranking_choices), default="nominal",
+                 show_default=True,
+                 help="nominal error, worst-case error over the tolerance box, or "
+                      "Monte Carlo yield."),
+    click.option("--plot-x", type=click.Choice(PLOT_AXES), default="supply",
+                 show_default=True, help="Horizontal axis of the candidate plot."),
+    click.option("--cost", type=click.Choice(PLOT_AXES), default=None, hidden=True,
+                 callback=_deprecated_cost, help="Deprecated name of --plot-x."),
+    click.option("--time-limit", type=float, default=None, metavar="SECONDS",
+                 help="Stop searching after this long and show the best so far, "
+                      "marked unproven."),
+    click.option("--json", "as_json", is_flag=True, help="Print the results as JSON."),
+    click.option("--quiet", is_flag=True, help="No progress bar."),
+    click.option("--require", type=click.Choice(["nominal", "worst-case", "yield"]),
+                 default=None,
+                 help="Basis every window and limit must hold on [default: the design's "
+                      "require, else nominal]."),
+    click.option("--min-yield", type=PERCENT, default=None,
+                 help='Least Monte Carlo yield with --require yield, e.g. "99%".'),
+])
+
+
+def search_options(command: F) -> F:
+    # applied inside out: help lists the spread options, then the search options
+    return spread_options(_search_group(command))
+
+
+@dataclass(frozen=True)
+class QuickOptions:
+    series: str
+    value_range: Range | None
+    within: str | None
+    package: str
+    ambient: Given
+    margin: Given
+    save: str | None
+    force: bool
+
+    def settings(self) -> QuickSettings:
+        """The library's quick settings (the options' text as typed)."""
+        from synth.templates.passive import QuickSettings
+
+        return QuickSettings(series=self.series.upper(),
+                             value_range=None if self.value_range is None
+                             else self.value_range.text,
+                             within=self.within, package=self.package,
+                             ambient=self.ambient.text, margin=self.margin.text)
+
+
+def quick_options(main_unit: str) -> Callable[[F], F]:
+    """The options every quick command shares; ``main_unit`` is its main target's unit."""
+    group = option_group(QuickOptions, [
+        click.option("--series", default="E96", show_default=True,
+                     type=CatalogueChoice(series_name_choices, case_sensitive=False),
+                     help="Series to choose from."),
+        click.option("--range", "value_range", type=RESISTANCE_RANGE, default=None,
+                     help="Values each chosen part may take [default: 100:10M; a pad: "
+                          "impedance/100 to impedance x 100]."),
+        click.option("--within", type=Window(main_unit), default=None,
+                     help='Hard window on the main target, e.g. "1%" or "10 mV".'),
+        click.option("--package", default="0603", show_default=True,
+                     help="Package of the chosen parts (name in the package table)."),
+        click.option("--ambient", type=TEMPERATURE, default="25 C", show_default=True,
+                     help="Ambient temperature for derating."),
+        click.option("--margin", type=PERCENT, default="50%", show_default=True,
+                     help="Share of the derated power a part may use."),
+        click.option("--save", type=click.Path(dir_okay=False), default=None,
+                     help="Also write the equivalent design file here."),
+        click.option("--force", is_flag=True, help="Let --save replace an existing file."),
+    ])
+
+    def decorate(command: F) -> F:
+        # applied inside out: help lists spread, search, then these shared options
+        return search_options(group(command))
+
+    return decorate
+
+
+# -- output helpers ----------------------------------------------------------------------
+
+
+def emit_json(document: Any) -> None:
+    click.echo(json.dumps(document, indent=2, ensure_ascii=False))
+
+
+def write_plots(paths: list[Any], as_json: bool) -> None:
+    if not as_json:
+        for path in paths:
+            click.echo(f"plot written: {path}")
+
+
+class Progress:
+    """A progress bar on stderr for searches longer than about a second."""
+
+    def __init__(self, enabled: bool):
+        self.enabled = enabled
+        self.start = time.monotonic()
+        self.shown = False
+
+    def __call__(self, fraction: float) -> None:
+        if not self.enabled or time.monotonic() - self.start < 1.0:
+            return
+        width = 30
+        done = int(fraction * width)
+        click.echo(f"\rsearching [{'#' * done}{'.' * (width - done)}] {fraction * 100:5.1f}%",
+                   err=True, nl=False)
+        self.shown = True
+
+    def close(self) -> None:
+        if self.shown:
+            click.echo("\r" + " " * 50 + "\r", err=True, nl=False)
