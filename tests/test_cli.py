@@ -220,9 +220,6 @@ NOT_UTF8 = b"[design]\ntitle = \"\xff\"\n"
 ])
 @pytest.mark.parametrize("command", ["check", "design", "bom"])
 def test_unreadable_design_files_exit_two(request, tmp_path, command, write, fragment):
-    if command == "bom" and write == NOT_UTF8:
-        request.applymarker(pytest.mark.xfail(
-            strict=True, reason="the board reader lets UnicodeDecodeError through"))
     path = tmp_path / "design.toml"
     if write == "folder":
         path.mkdir()

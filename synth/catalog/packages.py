@@ -86,6 +86,10 @@ def read_csv_rows(path: Path) -> Iterator[tuple[int, dict[str, str]]]:
         raise DesignError(f"{path}: the file has no header row; add one naming the columns")
     reader = csv.DictReader(line for _, line in numbered)
     for (number, _), row in zip(numbered[1:], reader, strict=False):
+        if None in row:  # csv puts the fields beyond the header under the key None
+            raise DesignError(f"{path}, line {number}: the row has more fields than the header "
+                              f"({len(reader.fieldnames or [])} columns); remove the extra "
+                              "fields or name their columns in the header")
         yield number, {(k or "").strip(): (v or "").strip() for k, v in row.items()}
 
 

@@ -85,6 +85,8 @@ def _read_toml(path: Path) -> dict[str, Any]:
         raise DesignError(f"{path}: is a folder; name a design or board file") from None
     except tomllib.TOMLDecodeError as exc:
         raise DesignError(f"{path}: not valid TOML ({exc}); fix the syntax there") from None
+    except UnicodeDecodeError:
+        raise DesignError(f"{path}: not UTF-8 text; save it as UTF-8") from None
     except OSError as exc:
         raise DesignError(f"{path}: cannot be read ({exc.strerror})") from None
 
