@@ -394,11 +394,18 @@ def format_window(low: float, high: float, unit: str = "", digits: int = 6) -> s
     --------
     >>> format_window(2.97, 3.03, "V"), format_window(float("-inf"), 3e-5, "A")
     ('2.97 V .. 3.03 V', 'at most 30 µA')
+    >>> format_window(0.495, 0.505)
+    '0.495 .. 0.505'
+
     """
+    def shown(value: float) -> str:
+        # a ratio has no unit: a plain number reads better than an SI prefix
+        return format_eng(value, unit, digits) if unit else f"{value:.{digits}g}"
+
     if math.isinf(low) and math.isinf(high):
         return "any value"
     if math.isinf(low):
-        return f"at most {format_eng(high, unit, digits)}"
+        return f"at most {shown(high)}"
     if math.isinf(high):
-        return f"at least {format_eng(low, unit, digits)}"
-    return f"{format_eng(low, unit, digits)} .. {format_eng(high, unit, digits)}"
+        return f"at least {shown(low)}"
+    return f"{shown(low)} .. {shown(high)}"
