@@ -1,0 +1,97 @@
+"""Refused options, interruptions and solver failures on the command line (synth.cli)."""
+
+from __future__ import annotations
+
+import pytest
+from click.testing import CliRunner
+
+from synth.cli import cli
+
+DIVIDER = ["divider", "--input", "12 V", "--output", "3.3 V", "--samples", "0"]
+
+
+def run(*args: str):
+    return CliRunner().invoke(cli, list(args))
+
+
+@pytest.mark.parametrize(("extra", "fragment"), [
+    (["--time-limit", "0"], "--time-limit 0.0 must be a positive number of seconds"),
+    (["--time-limit", "-3"], "must be a positive number of seconds"),
+    (["--time-limit", "nan"], "must be a positive number of seconds"),
+    (["--min-yield", "99%", "--require", "worst-case"], "--min-yield goes with --require yield"),
+])
+def test_search_options_that_cannot_hold_are_refused(extra, fragment):
+    result = run(*DIVIDER, *extra)
+    assert result.exit_code == 2, result.output
+    assert fragment in result.stderr and "Traceback" not in result.output
+    assert len(result.stderr.strip().splitlines()) == 1
+
+
+def test_led_refuses_the_range_it_would_ignore():
+    result = run("led", "--supply", "5 V", "--forward", "2 V", "--current", "20 mA",
+                 "--range", "1k:2k")
+    assert result.exit_code == 2
+    assert "--range does not apply to led" in result.stderr
+
+
+def test_a_bare_number_as_a_window_is_refused(tmp_path):
+    path = tmp_path / "d.toml"
+    path.write_text('''
+[[source]]
+ref = "V1"
+kind = "voltage"
+plus = "in"
+minus = "gnd"
+value = "12 V"
+[[resistor]]
+ref = "R1"
+nodes = ["in", "out"]
+choose = "E24"
+range = ["1k", "100k"]
+[[resistor]]
+ref = "R2"
+nodes = ["out", "gnd"]
+value = "10k"
+[[target]]
+voltage = "out"
+equals = "4 V"
+within = 1
+''', encoding="utf-8")
+    result = run("design", str(path))
+    assert result.exit_code == 2
+    assert "within 1 has no unit" in result.stderr and 'such as within = "10 mV"' in result.stderr
+
+
+def test_ctrl_c_during_a_search_exits_130_and_writes_nothing(monkeypatch, tmp_path):
+    import synth.synthesis
+
+    def interrupted(*args, **kwargs):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(synth.synthesis, "synthesize", interrupted)
+    saved = tmp_path / "saved.toml"
+    result = run(*DIVIDER, "--save", str(saved))
+    assert result.exit_code == 130
+    assert result.stderr.strip() == "rnsynth: interrupted; nothing was written"
+    # no half-written output: no temporary file is left, and the design file (written
+    # before the search) is whole
+    import tomllib
+
+    assert [p.name for p in tmp_path.iterdir()] == ["saved.toml"]
+    assert tomllib.loads(saved.read_text(encoding="utf-8"))["resistor"][0]["ref"] == "R1"
+
+
+@pytest.mark.parametrize("error", [RuntimeError("CP-SAT: MODEL_INVALID"),
+                                   ValueError("array is too big"),
+                                   ArithmeticError("overflow")])
+def test_a_solver_failure_is_one_line_and_exit_two(monkeypatch, error):
+    import synth.synthesis
+
+    def failing(*args, **kwargs):
+        raise error
+
+    monkeypatch.setattr(synth.synthesis, "synthesize", failing)
+    result = run(*DIVIDER)
+    assert result.exit_code == 2 and "Traceback" not in result.output
+    assert result.stderr.startswith("rnsynth: the calculation could not be completed (")
+    assert str(error) in result.stderr and len(result.stderr.strip().splitlines()) == 1
