@@ -33,7 +33,7 @@ def test_a_package_steps_up_when_the_standard_value_breaks_its_allowance():
     # the ideal 49 mW fits an 0603 (0.1 W x 50 % = 50 mW [CP-chip-ratings], [CP-margin]);
     # the only E3 value in the window, 470 ohm, dissipates 25/470 = 53.2 mW, over it but
     # within an 0805's 62.5 mW: the automatic choice steps up once
-    tables, design, result, chosen = synthesize_auto(
+    tables, _design, result, chosen = synthesize_auto(
         _sink("10%"), "sink", lambda d: synthesize(d, top=1, spread=None))
     assert chosen == [PackageChoice("R1", "0805")]
     assert result.feasible and result.candidates[0].values["R1"] == 470.0
