@@ -171,12 +171,33 @@ def solve(data, rows=3):
     sources = SourceValues(src.voltages, src.currents, src.setpoints, gains)
     result = ev.evaluate(r, sources)
     assume(np.all(np.isfinite(result.solution.node_voltages)))
-    # a near-singular draw (a loop gain close to one) amplifies rounding without bound:
-    # keep draws on which a 1e-9 change of every resistance moves the answer by < 1e-4
-    nudged = ev.evaluate(r * (1 + 1e-9), sources).solution.node_voltages
-    scale = max(float(np.abs(result.solution.node_voltages).max()), 1e-12)
-    assume(float(np.abs(nudged - result.solution.node_voltages).max()) < 1e-4 * scale)
-    other = nodal_solve(ev.network, r, src.voltages, src.currents, src.setpoints, gains=gains)
+    # a singular or near-singular draw (a loop gain of one, a gain of 1/R across its own
+    # control) leaves the answer undetermined or amplifies rounding without bound: keep the
+    # draws on which a 1e-9 change of every resistance and gain moves both solvers' answers
+    # by less than 1e-6 of their size, so that rounding stays far below the 1e-9 compared
+    # (singular designs should be refused: see tests/circuit/test_measure.py)
+    jitter = np.random.default_rng(5)
+    nudged_r = r * (1 + 1e-9 * jitter.uniform(-1, 1, r.shape))
+    nudged_gains = None if gains is None else gains * (1 + 1e-9 * jitter.uniform(-1, 1,
+                                                                                 gains.shape))
+    nudged = ev.evaluate(nudged_r, SourceValues(src.voltages, src.currents, src.setpoints,
+                                                nudged_gains))
+    scale = max(float(np.abs(result.solution.node_voltages).max()),
+                float(np.abs(result.solution.branch_currents).max() * r.max()), 1e-12)
+
+    def moved(a, b):
+        return max(float(np.abs(a.node_voltages - b.node_voltages).max()),
+                   float(np.abs(a.branch_currents - b.branch_currents).max() * r.max()))
+
+    assume(moved(nudged.solution, result.solution) < 1e-6 * scale)
+    try:
+        other = nodal_solve(ev.network, r, src.voltages, src.currents, src.setpoints,
+                            gains=gains)
+        other_nudged = nodal_solve(ev.network, nudged_r, src.voltages, src.currents,
+                                   src.setpoints, gains=nudged_gains)
+    except np.linalg.LinAlgError:
+        assume(False)  # exactly singular
+    assume(moved(other_nudged, other) < 1e-6 * scale)
     return design, ev, r, gains, result, other
 
 
