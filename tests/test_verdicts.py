@@ -156,12 +156,12 @@ def test_adjustable_regulator_in_0603_fails_on_rbot_power() -> None:
     assert least_power == pytest.approx(0.0530755)
     assert least_power > ratings.allowed_power("0603") == 0.05
 
-    result = run(*REGULATOR_12V)
+    result = run(*REGULATOR_12V, "--package", "0603")
     assert result.exit_code == 1, result.output
     binding = next(line for line in result.output.splitlines() if "Binding:" in line)
     assert "RBOT would dissipate" in binding and "50 mW" in binding
 
-    code, doc = run_json(*REGULATOR_12V)
+    code, doc = run_json(*REGULATOR_12V, "--package", "0603")
     assert code == 1 and doc["feasible"] is False
     assert [(p["kind"], p["subject"]) for p in doc["binding_limits"]] == [("power", "RBOT")]
     assert doc["binding_limits"][0]["limit"] == pytest.approx(0.05)
@@ -193,11 +193,11 @@ def test_led_350ma_in_0603_fails_on_power() -> None:
     # R = (12 - 3.2) / 0.35 = 25.14 ohm dissipating 8.8 * 0.35 = 3.08 W [CP-led]; inside
     # the ±1 % window at least 8.8 * 0.3465 = 3.049 W, far over 0603's 50 mW [CP-margin].
     least_power = (12 - 3.2) * 0.35 * 0.99
-    result = run(*LED_350MA)
+    result = run(*LED_350MA, "--package", "0603")
     assert result.exit_code == 1, result.output
     binding = next(line for line in result.output.splitlines() if "Binding:" in line)
     assert "R1 would dissipate" in binding and "0603 allows 50 mW" in binding
-    code, doc = run_json(*LED_350MA)
+    code, doc = run_json(*LED_350MA, "--package", "0603")
     assert code == 1 and doc["feasible"] is False
     (limit,) = doc["binding_limits"]
     assert (limit["kind"], limit["subject"]) == ("power", "R1")
@@ -572,3 +572,12 @@ def test_power_target_interior_peak_away_from_the_nominal() -> None:
     (power,) = result.spread.targets
     assert power.nominal == pytest.approx(100 * 105 / 205**2, rel=1e-12)
     assert power.worst_high == pytest.approx(peak.worst_power, rel=1e-9)
+
+
+def test_led_and_regulator_choose_their_packages_by_default() -> None:
+    # with no --package the LED and regulator commands choose for power and voltage:
+    # the 350 mA LED and the 12 V regulator that an 0603 cannot carry succeed
+    for args in (LED_350MA, REGULATOR_12V):
+        result = run(*args)
+        assert result.exit_code == 0, result.output
+        assert "packages chosen:" in result.output

@@ -369,7 +369,7 @@ class QuickOptions:
                              ambient=self.ambient.text, margin=self.margin.text)
 
 
-def quick_options(main_unit: str) -> Callable[[F], F]:
+def quick_options(main_unit: str, package: str = "0603") -> Callable[[F], F]:
     """The options every quick command shares; ``main_unit`` is its main target's unit."""
     group = option_group(QuickOptions, [
         click.option("--series", default="E96", show_default=True,
@@ -380,8 +380,10 @@ def quick_options(main_unit: str) -> Callable[[F], F]:
                           "impedance/100 to impedance x 100]."),
         click.option("--within", type=Window(main_unit), default=None,
                      help='Hard window on the main target, e.g. "1%" or "10 mV".'),
-        click.option("--package", default="0603", show_default=True,
-                     help="Package of the chosen parts (name in the package table)."),
+        click.option("--package", default=package, show_default=True,
+                     help="Package of the chosen parts (a name in the package table), or "
+                          "auto: the smallest that carries each part's dissipation and "
+                          "voltage, or a series string of equal parts."),
         click.option("--ambient", type=TEMPERATURE, default="25 C", show_default=True,
                      help="Ambient temperature for derating."),
         click.option("--margin", type=PERCENT, default="50%", show_default=True,

@@ -76,7 +76,7 @@ def given_text(given: Given | None) -> str | None:
               help="Least current in the top resistor.")
 @click.option("--max-current", type=CURRENT, default=None,
               help="Most current in the top resistor.")
-@quick_options("V")
+@quick_options("V", package="auto")
 @friendly
 def regulator_command(style: str, reference: Given, output_voltage: Given,
                       pin_current: Given, load: Given | None, min_current: Given | None,
@@ -98,15 +98,15 @@ def regulator_command(style: str, reference: Given, output_voltage: Given,
 @click.option("--forward", type=VOLTAGE, required=True, help="Forward voltage of one LED.")
 @click.option("--count", default=1, show_default=True, help="LEDs in series.")
 @click.option("--current", type=CURRENT, required=True, help='LED current, e.g. "20 mA".')
-@quick_options("A")
+@quick_options("A", package="auto")
 @friendly
 def led_command(supply: Given, forward: Given, count: int, current: Given, quick: QuickOptions,
                 search: SearchOptions, spread: SpreadOptions) -> None:
     """LED series resistor, R = (Vsupply - count x Vforward) / I.
 
-    With --package auto the smallest chip package whose derated allowance
-    covers the resistor's dissipation is chosen.  --range is not used: the
-    resistor is searched around its ideal value.
+    The package is chosen for the resistor's dissipation and voltage unless
+    --package names one (then a limit that costs the goal is named, exit 1).
+    --range is refused: the resistor is searched around its ideal value.
     """
     from synth.templates.passive import led_tables
 
