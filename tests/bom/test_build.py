@@ -210,3 +210,27 @@ def test_bundled_board_example():
     doc = json.loads(result.stdout)
     lamp = next(n for n in doc["networks"] if n["name"] == "status lamp")
     assert lamp["count"] == 2
+
+
+HOUSE_TABLE = ("name,mount,imperial,metric,rated_power_w,rated_ambient_c,zero_power_c,"
+               "limiting_voltage_v,source\nbig,chip,2512,6332M,1.5,70,155,300,house table\n")
+
+
+def test_rating_columns_come_from_each_networks_own_package_table(tmp_path):
+    # network "a" uses the bundled table, network "b" its own with a package "big":
+    # b's lines carry big's rating whatever order the files are given in
+    (tmp_path / "house.csv").write_text(HOUSE_TABLE, encoding="utf-8")
+    (tmp_path / "a.toml").write_text(DIVIDER.format(name="a", vin="12 V", vout="3.3 V"),
+                                     encoding="utf-8")
+    own = DIVIDER.format(name="b", vin="5 V", vout="1.8 V").replace(
+        'package = "0603"', 'package = "big"\npackages = "house.csv"')
+    (tmp_path / "b.toml").write_text(own, encoding="utf-8")
+    for order in (["a.toml", "b.toml"], ["b.toml", "a.toml"]):
+        result = CliRunner().invoke(cli, ["bom", *[str(tmp_path / f) for f in order],
+                                          "--format", "json", "--quiet"])
+        assert result.exit_code == 0, result.output
+        lines = json.loads(result.output)["lines"]
+        big = [line for line in lines if line["package"] == "big"]
+        assert big and all(line["rated_power_w"] == 1.5 for line in big)
+        small = [line for line in lines if line["package"] == "0603"]
+        assert small and all(line["rated_power_w"] == 0.1 for line in small)
