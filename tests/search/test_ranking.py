@@ -57,3 +57,25 @@ def test_top_keeps_the_best_and_a_candidate_arriving_twice_once():
     assert names_of(merged) == ["coarse, one value", "fine, one value"]
     assert names_of(first.merged(again, top=10)) == [
         "coarse, one value", "fine, one value", "better still, but not a tie"]
+
+
+def test_mirror_designs_tie_on_the_documented_order():
+    # 56 + 24 and 24 + 56 ohm in series meet the goal exactly and draw the same current
+    # (compared to 12 significant digits); same count of values and same series ranks,
+    # so the tie goes to the lower catalogue positions, part by part: R1 = 24 ohm first
+    # (docs/design-file.md, ties)
+    from synth.synthesis import synthesize
+
+    design = design_from_dict({
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "value": "8 V"}],
+        "resistor": [{"ref": "R1", "nodes": ["in", "mid"], "choose": "E24",
+                      "range": ["20", "60"]},
+                     {"ref": "R2", "nodes": ["mid", "gnd"], "choose": "E24",
+                      "range": ["20", "60"]}],
+        "target": [{"current": "V1", "equals": "100 mA"}],
+    })
+    ranked = synthesize(design, top=6, spread=None).candidates
+    pairs = [(c.values["R1"], c.values["R2"]) for c in ranked if c.objective < 1e-12]
+    assert (24.0, 56.0) in pairs and (56.0, 24.0) in pairs
+    assert pairs.index((24.0, 56.0)) < pairs.index((56.0, 24.0))
