@@ -64,6 +64,7 @@ def test_mirror_designs_tie_on_the_documented_order():
     # (compared to 12 significant digits); same count of values and same series ranks,
     # so the tie goes to the lower catalogue positions, part by part: R1 = 24 ohm first
     # (docs/design-file.md, ties)
+    from synth.design.reader import design_from_dict
     from synth.synthesis import synthesize
 
     design = design_from_dict({
