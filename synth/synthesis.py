@@ -254,6 +254,7 @@ def synthesize(
         raise DesignError(f"time limit {time_limit_s!r} s must be a positive number of seconds")
     choices = [choices_for(r, design.origin) for r in design.free_resistors]
     evaluator = Evaluator(design)
+    evaluator.check_pinned_senses()  # the same topology rules as check, before any search
     worst = (WorstCase(design, evaluator)
              if rank_by == "worst-case" or require == "worst-case" else None)
     ranges = worst.ranges if worst is not None and rank_by == "worst-case" else None

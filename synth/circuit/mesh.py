@@ -441,4 +441,13 @@ class MeshSolver:
         if self.n_g == 1:
             with np.errstate(divide="ignore", invalid="ignore"):
                 return rhs / lhs[0]  # type: ignore[no-any-return]  # numpy types this array expression as Any
-        return np.linalg.solve(lhs.transpose(2, 0, 1), rhs.T[:, :, None])[:, :, 0].T
+        # candidates whose regulator equations are singular get NaN outputs (as a single
+        # regulator's division by zero gives), so the caller can name the regulator
+        stacked = lhs.transpose(2, 0, 1)
+        scale = np.abs(stacked).max(axis=(1, 2))
+        regular = np.abs(determinant) > 1e-13 * np.maximum(scale, 1e-300) ** self.n_g
+        out = np.full((self.n_g, m), np.nan)
+        if regular.any():
+            out[:, regular] = np.linalg.solve(stacked[regular],
+                                              rhs.T[regular][:, :, None])[:, :, 0].T
+        return out
