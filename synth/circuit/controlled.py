@@ -27,6 +27,9 @@ from synth.circuit.kernels import broadcast_rows
 from synth.circuit.mesh import MeshSolution, MeshSolver
 from synth.circuit.network import Network
 
+_SINGULAR = 1e-12
+"""Relative size of a determinant below which the controlled sources' system is singular."""
+
 
 class ControlledSolver:
     """Loop-current solver for networks with controlled sources (same interface as MeshSolver).
@@ -100,12 +103,18 @@ class ControlledSolver:
         matrix = np.eye(len(units))[None, :, :] - g[:, :, None] * control
         rhs = g * self._control(base)
         with np.errstate(all="ignore"):
+            # singular (no unique solution) when the determinant is negligible beside the
+            # product of the rows' lengths (Hadamard's bound): rounding leaves about 1e-17
+            hadamard = np.prod(np.linalg.norm(matrix, axis=2), axis=1)
             if len(units) == 1:
-                values = rhs / matrix[:, 0, :]
                 determinant = matrix[:, 0, 0]
+                singular = ~np.isfinite(determinant) | (np.abs(determinant)
+                                                        <= _SINGULAR * hadamard)
+                values = np.where(singular[:, None], np.nan, rhs / matrix[:, 0, :])
             else:
                 determinant = np.linalg.det(matrix)
-                singular = ~np.isfinite(determinant) | (determinant == 0)
+                singular = ~np.isfinite(determinant) | (np.abs(determinant)
+                                                        <= _SINGULAR * hadamard)
                 safe = np.where(singular[:, None, None], np.eye(len(units)), matrix)
                 values = np.linalg.solve(safe, rhs[:, :, None])[:, :, 0]
                 values[singular] = np.nan
