@@ -62,8 +62,8 @@ def measure(loops: int, rng: np.random.Generator, n_batch: int, n_loop: int) -> 
 
     t_block = best_of(blocks)
     t_solve = best_of(lambda: solver.solve(r, voltages=e), repeats=2)
-    loops_b = solver._b_ur
-    rhs_const = solver._b_uv @ e
+    loops_b = solver.loop_resistor_matrix
+    rhs_const = solver.loop_vsource_matrix @ e
 
     def per_candidate():
         # the plain way: form Z = B diag(R) B^T for one candidate, then numpy.linalg.solve

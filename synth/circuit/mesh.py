@@ -214,6 +214,16 @@ class MeshSolver:
         return self.n_u
 
     @property
+    def loop_resistor_matrix(self) -> np.ndarray:
+        """``(loops, resistors)`` fundamental-loop incidence of the resistors (a copy)."""
+        return np.array(self._b_ur)
+
+    @property
+    def loop_vsource_matrix(self) -> np.ndarray:
+        """``(loops, voltage sources)`` fundamental-loop incidence of the sources (a copy)."""
+        return np.array(self._b_uv)
+
+    @property
     def preferred_chunk(self) -> int:
         """Block size that keeps a block's work arrays near the cache (measured: larger
         networks have more work arrays and do better with smaller blocks)."""
