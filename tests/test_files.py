@@ -1,0 +1,57 @@
+"""Files are written whole or not at all: through a temporary file renamed into place.
+
+An existing file is replaced only when asked; a failed write leaves the old file as it
+was and no temporary file behind.  (A rename within one folder replaces the target in
+one step: the POSIX rename(2) and Windows MoveFileEx semantics that os.replace uses,
+common practice for atomic output.)
+"""
+
+from __future__ import annotations
+
+import errno
+import os
+
+import pytest
+
+from synth import files
+from synth.errors import DesignError
+from synth.files import write_atomic
+
+
+def test_write_then_refuse_then_replace(tmp_path):
+    target = tmp_path / "bom.csv"
+    assert write_atomic(target, "a,b\n") == target
+    assert target.read_text(encoding="utf-8") == "a,b\n"
+    with pytest.raises(DesignError, match=r"bom\.csv: already exists; pass --force to replace it"):
+        write_atomic(target, "c\n")
+    write_atomic(target, "c\n", force=True)
+    assert target.read_text(encoding="utf-8") == "c\n"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["bom.csv"]
+
+
+def test_missing_folder_is_refused(tmp_path):
+    with pytest.raises(DesignError, match="does not exist; create it first"):
+        write_atomic(tmp_path / "nope" / "bom.csv", "x")
+
+
+def test_unwritable_folder_is_refused(tmp_path, monkeypatch):
+    def refused(*args, **kwargs):
+        raise PermissionError(errno.EACCES, os.strerror(errno.EACCES))
+
+    monkeypatch.setattr(files.tempfile, "mkstemp", refused)
+    with pytest.raises(DesignError, match=r"bom\.csv: cannot write there \(Permission denied\)"):
+        write_atomic(tmp_path / "bom.csv", "x")
+
+
+def test_a_failed_rename_keeps_the_old_file_and_leaves_no_temporary(tmp_path, monkeypatch):
+    target = tmp_path / "bom.csv"
+    target.write_text("old\n", encoding="utf-8")
+
+    def full(*args, **kwargs):
+        raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
+
+    monkeypatch.setattr(files.os, "replace", full)
+    with pytest.raises(OSError):
+        write_atomic(target, "new\n", force=True)
+    assert target.read_text(encoding="utf-8") == "old\n"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["bom.csv"]
