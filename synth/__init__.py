@@ -27,9 +27,10 @@ if TYPE_CHECKING:
     )
     from synth.checking import check
     from synth.circuit.measure import Evaluation, Evaluator
-    from synth.circuit.mesh import MeshSolution, MeshSolver
+    from synth.circuit.mesh import MeshSolver
     from synth.circuit.network import Network, build_network
     from synth.circuit.nodal import nodal_solve
+    from synth.circuit.solution import MeshSolution
     from synth.design.load import load_design
     from synth.design.model import Design, Regulator, Resistor, Source
     from synth.design.reader import design_from_dict
@@ -61,7 +62,7 @@ _OWNERS = {
     "Evaluation": "synth.circuit.measure",
     "Evaluator": "synth.circuit.measure",
     "InfeasibleError": "synth.errors",
-    "MeshSolution": "synth.circuit.mesh",
+    "MeshSolution": "synth.circuit.solution",
     "MeshSolver": "synth.circuit.mesh",
     "Network": "synth.circuit.network",
     "PackageRating": "synth.catalog.packages",

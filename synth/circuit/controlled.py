@@ -24,8 +24,9 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from synth.circuit.kernels import broadcast_rows
-from synth.circuit.mesh import MeshSolution, MeshSolver
+from synth.circuit.mesh import MeshSolver
 from synth.circuit.network import Network
+from synth.circuit.solution import MeshSolution
 
 _SINGULAR = 1e-12
 """Relative size of a determinant below which the controlled sources' system is singular."""

@@ -16,8 +16,9 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from synth.circuit.controlled import ControlledSolver
-from synth.circuit.mesh import MeshSolution, MeshSolver
+from synth.circuit.mesh import MeshSolver
 from synth.circuit.network import Network, build_network
+from synth.circuit.solution import MeshSolution
 from synth.circuit.topology import UnionFind
 from synth.design.model import Design
 from synth.design.target import Target

@@ -28,10 +28,9 @@ loops).
 
 from __future__ import annotations
 
-__all__ = ["DEFAULT_CHUNK", "MeshSolution", "MeshSolver"]
+__all__ = ["DEFAULT_CHUNK", "MeshSolution", "MeshSolver"]  # MeshSolution: re-exported
 
 from collections.abc import Iterator
-from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -45,39 +44,12 @@ from synth.circuit.kernels import (
     node_depths,
 )
 from synth.circuit.network import Network
+from synth.circuit.solution import MeshSolution
 from synth.circuit.topology import UnionFind
 
 DEFAULT_CHUNK = 1 << 15
 """Candidates solved per block: large enough to amortise numpy's call cost, small
 enough that a block's work arrays stay in cache and memory stays bounded."""
-
-
-@dataclass(frozen=True)
-class MeshSolution:
-    """Results for a batch of candidates (candidate axis first).
-
-    Attributes
-    ----------
-    node_voltages : numpy.ndarray
-        ``(N, nodes)`` V, ground first, in :attr:`Network.nodes` order.
-    branch_currents : numpy.ndarray
-        ``(N, branches)`` A in :attr:`Network.branch_refs` order: resistor
-        current from ``nodes[0]`` to ``nodes[1]``; source and regulating
-        element current as delivered (out of ``plus``/``output``, into ``to``).
-    regulator_outputs : numpy.ndarray
-        ``(N, regulators)`` V driven by each regulating element.
-    regulator_determinant : numpy.ndarray or None
-        ``(N,)`` determinant of the regulators' Schur complement (None when
-        the network has no regulating element).  The network's determinant
-        is this times det Z > 0 and is affine in each resistance, so a sign
-        that holds at every vertex of a box of values holds inside it: then no
-        quantity has a pole in the box.
-    """
-
-    node_voltages: np.ndarray
-    branch_currents: np.ndarray
-    regulator_outputs: np.ndarray
-    regulator_determinant: np.ndarray | None = None
 
 
 class MeshSolver:

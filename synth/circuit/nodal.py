@@ -24,8 +24,8 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from synth.circuit.kernels import broadcast_rows
-from synth.circuit.mesh import MeshSolution
 from synth.circuit.network import ControlledBranch, Network
+from synth.circuit.solution import MeshSolution
 
 
 def _incidence(ends: np.ndarray, n_nodes: int) -> np.ndarray:
