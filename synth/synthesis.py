@@ -241,54 +241,36 @@ def synthesize(
     1e-12) go to fewer distinct values, then coarser series, then lower supply
     current.  The search is exact: see :mod:`synth.search`.
     """
-    if rank_by not in RANKINGS:
-        raise DesignError(f"rank_by {rank_by!r} is not known; use one of {', '.join(RANKINGS)}")
-    require = require or design.require
-    if require not in REQUIREMENTS:
-        raise DesignError(f"require {require!r} is not known; use one of "
-                          f"{', '.join(REQUIREMENTS)}")
-    min_yield = design.min_yield if min_yield is None else min_yield
-    if require == "yield" and min_yield is None:
-        raise DesignError(f"{design.origin}: require = \"yield\" needs min_yield, such as 99%")
-    if time_limit_s is not None and not time_limit_s > 0:
-        raise DesignError(f"time limit {time_limit_s!r} s must be a positive number of seconds")
+    require, min_yield = _basis(design, rank_by, require, min_yield, time_limit_s)
     choices = [choices_for(r, design.origin) for r in design.free_resistors]
     evaluator = Evaluator(design)
     evaluator.check_pinned_senses()  # the same topology rules as check, before any search
     worst = (WorstCase(design, evaluator)
              if rank_by == "worst-case" or require == "worst-case" else None)
-    ranges = worst.ranges if worst is not None and rank_by == "worst-case" else None
-    robust = worst.holds if worst is not None and require == "worst-case" else None
     ideal = ideal_values(design, evaluator)
     seeds = _seeds(choices, ideal)
     by_yield = rank_by == "yield" or require == "yield"
-    pool = max(top, YIELD_POOL) if by_yield else top
-    outcome: SearchOutcome = search(design, evaluator, choices, top=pool,
-                                    time_limit_s=time_limit_s, seeds=seeds, progress=progress,
-                                    target_ranges=ranges, robust=robust)
+    outcome: SearchOutcome = search(
+        design, evaluator, choices, top=max(top, YIELD_POOL) if by_yield else top,
+        time_limit_s=time_limit_s, seeds=seeds, progress=progress,
+        target_ranges=worst.ranges if worst is not None and rank_by == "worst-case" else None,
+        robust=worst.holds if worst is not None and require == "worst-case" else None)
     feasible = len(outcome.ranked.objective) > 0
     evaluated, elapsed, proven = outcome.evaluated, outcome.elapsed_s, outcome.proven
 
     def remaining() -> float | None:
         return None if time_limit_s is None else max(time_limit_s - elapsed, 1.0)
 
-    if feasible:
-        candidates = _candidates(design, evaluator, choices, outcome.ranked.indices)
-    else:
+    ranked = outcome.ranked
+    if not feasible:
         relaxed = search(design, evaluator, choices, top=min(top, 5),
                          time_limit_s=remaining(), seeds=seeds, relaxed=True)
         proven = proven and relaxed.proven
         evaluated += relaxed.evaluated
         elapsed += relaxed.elapsed_s
-        candidates = _candidates(design, evaluator, choices, relaxed.ranked.indices)
-    settings = spread or (SpreadSettings() if by_yield else
-                          SpreadSettings(samples=0) if require == "worst-case" else None)
-    if settings is not None:
-        # Monte Carlo for every candidate only when yield ranks or filters them; else for
-        # the best, with worst case and RSS for all (the others' yield reads n/a)
-        quick = settings if by_yield else replace(settings, samples=0)
-        candidates = [_spread_of(design, evaluator, c, settings if k == 0 else quick)
-                      for k, c in enumerate(candidates)]
+        ranked = relaxed.ranked
+    candidates = _candidates(design, evaluator, choices, ranked.indices)
+    candidates = _with_spreads(design, evaluator, candidates, spread, by_yield, require)
     if require == "worst-case" and not feasible:
         # the nearest designs, judged on the required basis, nearest first
         candidates = sorted((_on_basis(replace(design, require=require), c)
@@ -297,32 +279,20 @@ def synthesize(
     yield_short = False
     if feasible and require == "yield":
         assert min_yield is not None
-        passing = [c for c in candidates if _yield_low(c) >= min_yield]
-        if not passing:
-            feasible = yield_short = False
-            yield_short = True
-            candidates = sorted(candidates, key=lambda c: (-_yield_low(c), c.rank))[:top]
-        else:
-            candidates = passing
+        candidates, yield_short = _by_min_yield(candidates, min_yield)
+        feasible = not yield_short
     if by_yield and candidates:
         candidates = sorted(candidates, key=lambda c: (
             -(c.spread.yield_fraction or 0.0) if c.spread else 0.0, c.rank))
     candidates = [replace(c, rank=k) for k, c in enumerate(candidates[:top], start=1)]
-    binding = None
     limits: tuple[Problem, ...] = ()
     unlimited: Candidate | None = None
     if candidates and (not feasible or any(t.status == "soft goal"
                                            for t in candidates[0].targets)):
         limits, unlimited = _limit_cost(design, evaluator, choices, seeds,
                                         candidates[0] if feasible else None, remaining())
-    if limits:
-        binding = "; ".join(limit_text(design, p) for p in limits)
-    elif yield_short and candidates and min_yield is not None:
-        binding = (f"yield: the best of {considered} candidates reaches "
-                   f"{_yield_low(candidates[0]) * 100:.3g} % (95 % lower bound), short of "
-                   f"min_yield {min_yield * 100:g} %")
-    elif not feasible and candidates:
-        binding = nearest_text(candidates[0])
+    binding = _binding(design, candidates, limits, feasible, considered,
+                       min_yield if yield_short else None)
     if feasible and binding is not None:
         candidates = [_with_goal_status(c, binding, unlimited) for c in candidates]
     return SynthesisResult(
@@ -334,3 +304,61 @@ def synthesize(
         unlimited_objective=None if unlimited is None else unlimited.objective,
         binding_limits=limits,
     )
+
+
+def _basis(design: Design, rank_by: str, require: str | None, min_yield: float | None,
+           time_limit_s: float | None) -> tuple[str, float | None]:
+    """The checked ranking, basis and least yield (the design's own by default)."""
+    if rank_by not in RANKINGS:
+        raise DesignError(f"rank_by {rank_by!r} is not known; use one of {', '.join(RANKINGS)}")
+    require = require or design.require
+    if require not in REQUIREMENTS:
+        raise DesignError(f"require {require!r} is not known; use one of "
+                          f"{', '.join(REQUIREMENTS)}")
+    min_yield = design.min_yield if min_yield is None else min_yield
+    if require == "yield" and min_yield is None:
+        raise DesignError(f"{design.origin}: require = \"yield\" needs min_yield, such as 99%")
+    if time_limit_s is not None and not time_limit_s > 0:
+        raise DesignError(f"time limit {time_limit_s!r} s must be a positive number of seconds")
+    return require, min_yield
+
+
+def _with_spreads(design: Design, evaluator: Evaluator, candidates: list[Candidate],
+                  spread: SpreadSettings | None, by_yield: bool, require: str
+                  ) -> list[Candidate]:
+    """Each candidate's spread: Monte Carlo for all when yield ranks or filters, else the best."""
+    settings = spread or (SpreadSettings() if by_yield else
+                          SpreadSettings(samples=0) if require == "worst-case" else None)
+    if settings is None:
+        return candidates
+    # worst case and RSS for every candidate; the others' yield reads n/a
+    others = settings if by_yield else replace(settings, samples=0)
+    return [_spread_of(design, evaluator, c, settings if k == 0 else others)
+            for k, c in enumerate(candidates)]
+
+
+def _by_min_yield(candidates: list[Candidate], min_yield: float
+                  ) -> tuple[list[Candidate], bool]:
+    """The candidates whose yield's lower bound reaches ``min_yield``, or (none) the nearest."""
+    passing = [c for c in candidates if _yield_low(c) >= min_yield]
+    if passing:
+        return passing, False
+    short = Problem("yield", "yield", 0.0, min_yield, "", basis="yield")
+    nearest = sorted(candidates, key=lambda c: (-_yield_low(c), c.rank))
+    return [replace(c, feasible=False,
+                    problems=(*c.problems, replace(short, value=_yield_low(c))))
+            for c in nearest], True
+
+
+def _binding(design: Design, candidates: list[Candidate], limits: tuple[Problem, ...],
+             feasible: bool, considered: int, short_of_yield: float | None) -> str | None:
+    """The limit that binds, in words (None when nothing binds)."""
+    if limits:
+        return "; ".join(limit_text(design, p) for p in limits)
+    if short_of_yield is not None and candidates:
+        return (f"yield: the best of {considered} candidates reaches "
+                f"{_yield_low(candidates[0]) * 100:.3g} % (95 % lower bound), short of "
+                f"min_yield {short_of_yield * 100:g} %")
+    if not feasible and candidates:
+        return nearest_text(candidates[0])
+    return None
