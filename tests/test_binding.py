@@ -52,9 +52,6 @@ def test_an_unrated_part_is_named_with_its_problem():
     assert limit_text(design, problem) == "R9: R9 dissipates 20 mW, over its allowed 10 mW"
 
 
-@pytest.mark.xfail(strict=True, reason="above the zero-power temperature every allowance is "
-                   "0 W, the relaxed search drops every candidate as infinitely over, and "
-                   "the result says 'no candidate could be evaluated' with no binding limit")
 def test_a_part_allowed_nothing_is_named():
     # at 160 °C, past the 155 °C zero-power point, an 0603 may dissipate nothing
     result = synthesize(divider("160 C", goal="4 V"), top=2)

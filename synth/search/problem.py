@@ -27,6 +27,10 @@ candidates, True where every window and limit also holds on the basis the design
 (for example over the whole tolerance box)."""
 
 
+_FAR_OVER = 1e12
+"""Largest share over an allowance the nearest-design ranking counts (a part allowed 0 W)."""
+
+
 class SearchProblem:
     """A design's targets and limits as arrays, evaluated over candidate blocks.
 
@@ -115,6 +119,10 @@ class SearchProblem:
             worst = np.where(np.all(np.isfinite(targets), axis=1), worst, np.inf)
             over_p = np.where(np.isnan(self.allowed_p), -np.inf, power / self.allowed_p - 1)
             over_v = np.where(np.isnan(self.allowed_v), -np.inf, volts / self.allowed_v - 1)
+        # a part allowed nothing (an ambient past its zero-power temperature) is far over,
+        # not infinitely: the nearest designs are still ranked and the limit named
+        over_p = np.minimum(over_p, _FAR_OVER)
+        over_v = np.minimum(over_v, _FAR_OVER)
         if power.shape[1]:
             worst = np.maximum(worst, np.max(over_p, axis=1))
             worst = np.maximum(worst, np.max(over_v, axis=1))
