@@ -9,8 +9,6 @@ allowance of 0.1 W × (155 − T)/85 × 50 % [CP-chip-ratings] [CP-derating] [CP
 
 from __future__ import annotations
 
-import pytest
-
 from synth.binding import limit_text
 from synth.design.reader import design_from_dict
 from synth.results import Problem
