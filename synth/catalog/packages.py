@@ -39,6 +39,9 @@ class PackageRating:
         Limiting element voltage, V.
     source : str
         Where the row comes from ("common practice", "from memory", a standard).
+    technology : str
+        The resistive element (``"thick film"``, ``"thin film"``, ``"metal film"``,
+        ``"wirewound"``); empty when the table has no ``technology`` column.
     """
 
     name: str
@@ -50,6 +53,7 @@ class PackageRating:
     zero_power_c: float
     limiting_voltage_v: float
     source: str
+    technology: str = ""
 
 
 _PACKAGE_COLUMNS = (
@@ -125,6 +129,7 @@ def _package_row(path: Path, number: int, row: dict[str, str]) -> PackageRating:
         imperial=row["imperial"],
         metric=row["metric"],
         source=row["source"],
+        technology=row.get("technology", ""),
         **numbers,
     )
 

@@ -37,6 +37,17 @@ def test_own_table_with_its_metric_names(tmp_path):
     assert bundled["1608M"] == bundled["0603"] and bundled["0603"].rated_power_w == 0.1
 
 
+def test_technology_column_is_optional_and_bundled(tmp_path):
+    # chips are thick film, axial parts metal film [CP-chip-ratings]
+    bundled = load_package_table()
+    assert (bundled["0603"].technology, bundled["axial-1/4W"].technology) == (
+        "thick film", "metal film")
+    assert load_package_table(table(tmp_path, GOOD))["big"].technology == ""
+    own = table(tmp_path, GOOD.replace(",house table", ",thin film,house table"),
+                header=HEADER.replace(",source", ",technology,source"), name="thin.csv")
+    assert load_package_table(own)["big"].technology == "thin film"
+
+
 def test_table_rereads_after_an_edit(tmp_path):
     path = table(tmp_path, GOOD)
     assert load_package_table(path)["big"].rated_power_w == 1.5
