@@ -5,8 +5,14 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
+from hypothesis import settings
 
 from synth.design.reader import design_from_dict
+
+# property tests draw the same examples on every run (and write no example database),
+# so a run in a clean clone repeats the one here; a wider search is a separate run
+settings.register_profile("repeatable", derandomize=True, database=None)
+settings.load_profile("repeatable")
 
 ROOT = Path(__file__).resolve().parent.parent
 EXAMPLES = sorted(p for p in (ROOT / "examples").glob("*.toml") if not p.stem.endswith("board"))

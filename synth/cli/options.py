@@ -274,8 +274,9 @@ class SpreadOptions:
 
         if self.samples < 0:
             raise DesignError(f"--samples {self.samples} must be 0 (no Monte Carlo) or more")
+        # samples are kept only for the histograms; otherwise memory stays bounded
         return SpreadSettings(samples=self.samples, distribution=self.distribution,
-                              seed=self.seed)
+                              seed=self.seed, keep_samples=self.plots is not None)
 
 
 spread_options = option_group(SpreadOptions, [

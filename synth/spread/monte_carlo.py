@@ -40,9 +40,11 @@ def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, parts0: np.
     low_c, high_c = design.temperature_c
     tcr = var.tcr
     gain_columns = [c for c, (group, _) in enumerate(var.kind) if group == "gain"]
-    values = np.empty((total, len(design.targets)))
-    inside = np.empty((total, len(design.targets)), dtype=bool)
-    ok = np.empty(total, dtype=bool)
+    n_t = len(design.targets)
+    kept = np.empty((total, n_t)) if settings.keep_samples else None
+    stats = _Running(n_t)
+    inside_count = np.zeros(n_t, dtype=np.int64)
+    passed = 0
 
     def draw(m: int, width: np.ndarray) -> np.ndarray:
         if settings.distribution == "normal":
@@ -72,19 +74,58 @@ def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, parts0: np.
             factors *= drift
         r, p, s = var.apply(factors, parts0, src)
         result = ev.evaluate(r, s, part_values=p)
-        values[rows] = result.targets
-        inside[rows] = inside_windows(design, result.targets)
-        good = inside[rows].all(axis=1)
+        if kept is not None:
+            kept[rows] = result.targets
+        stats.add(result.targets)
+        inside = inside_windows(design, result.targets)
+        inside_count += inside.sum(axis=0)
+        good = inside.all(axis=1)
         good &= ~np.any(exceeds(result.part_power, ev.allowed_power)
                         | exceeds(result.part_voltage, ev.allowed_voltage), axis=1)
-        ok[rows] = good
+        passed += int(good.sum())
     updated = []
     for j, t in enumerate(targets):
-        drawn = values[:, j]
         updated.append(TargetSpread(
-            **{**t.__dict__, "mc_mean": float(np.mean(drawn)), "mc_std": float(np.std(drawn)),
-               "mc_values": drawn, "inside": float(np.mean(inside[:, j]))}))
-    return updated, float(np.mean(ok))
+            **{**t.__dict__, "mc_mean": float(stats.mean[j]), "mc_std": float(stats.std[j]),
+               "mc_values": None if kept is None else kept[:, j],
+               "mc_min": float(stats.low[j]), "mc_max": float(stats.high[j]),
+               "inside": float(inside_count[j] / total)}))
+    return updated, passed / total
+
+
+class _Running:
+    """Count, mean, variance and extremes per column, merged block by block.
+
+    Chan, Golub and LeVeque's pairwise update of the mean and the sum of squared
+    deviations, so that memory stays bounded and large offsets do not cancel.
+    """
+
+    def __init__(self, columns: int):
+        self.count = 0
+        self.mean = np.zeros(columns)
+        self.m2 = np.zeros(columns)
+        self.low = np.full(columns, np.inf)
+        self.high = np.full(columns, -np.inf)
+
+    def add(self, block: np.ndarray) -> None:
+        m = len(block)
+        if m == 0:
+            return
+        with np.errstate(invalid="ignore"):
+            block_mean = block.mean(axis=0)
+            block_m2 = ((block - block_mean) ** 2).sum(axis=0)
+            total = self.count + m
+            delta = block_mean - self.mean
+            self.mean = self.mean + delta * (m / total)
+            self.m2 = self.m2 + block_m2 + delta ** 2 * (self.count * m / total)
+        self.count = total
+        self.low = np.fmin(self.low, block.min(axis=0))
+        self.high = np.fmax(self.high, block.max(axis=0))
+
+    @property
+    def std(self) -> np.ndarray:
+        """Population standard deviation (as numpy.std)."""
+        return np.sqrt(self.m2 / max(self.count, 1))
 
 
 def yield_interval(passed: int, samples: int, confidence: float = YIELD_CONFIDENCE

@@ -22,11 +22,16 @@ class SpreadSettings:
         Shape of each tolerance; normal takes tolerance = 3σ.
     seed : int
         Seed of the random generator (results repeat for the same seed).
+    keep_samples : bool
+        Keep every target's samples (``TargetSpread.mc_values``, for plots and
+        notebooks); without them memory stays bounded at any sample count, as
+        the statistics and the yield are accumulated block by block.
     """
 
     samples: int = 100_000
     distribution: str = "uniform"
     seed: int = 1
+    keep_samples: bool = True
 
 
 @dataclass(frozen=True)
@@ -58,7 +63,9 @@ class TargetSpread:
     mc_mean, mc_std : float or None
         Monte Carlo mean and standard deviation (None without samples).
     mc_values : numpy.ndarray or None
-        The Monte Carlo samples themselves.
+        The Monte Carlo samples themselves (None unless ``keep_samples``).
+    mc_min, mc_max : float or None
+        Smallest and largest Monte Carlo sample.
     inside : float or None
         Share of samples inside this target's window.
     """
@@ -78,6 +85,8 @@ class TargetSpread:
     mc_values: np.ndarray | None
     inside: float | None
     rss_abs: float = 0.0
+    mc_min: float | None = None
+    mc_max: float | None = None
 
 
 @dataclass(frozen=True)
