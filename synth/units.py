@@ -61,15 +61,52 @@ def _is_number(value: object) -> TypeGuard[int | float]:
     return isinstance(value, (int, float)) and not isinstance(value, bool)
 
 
+_MAX_TEXT = 100  # characters of a value read at all; longer text is not a value
+_EXCERPT = 40  # characters of a value quoted back in a message
+
+
+def _quote(text: object) -> str:
+    """The value as quoted in a message: its repr, cut to a short excerpt."""
+    shown = repr(text)
+    if len(shown) <= _EXCERPT:
+        return shown
+    return shown[:_EXCERPT - 4] + ("...'" if isinstance(text, str) else "...")
+
+
 def _scaled(number: str, exponent: int) -> float:
-    """Return ``number × 10**exponent`` correctly rounded (so 50 µ is 5e-05 exactly)."""
-    return float(Decimal(number).scaleb(exponent))
+    """Return ``number × 10**exponent`` correctly rounded (so 50 µ is 5e-05 exactly).
+
+    A number beyond the float range reads as infinity (refused by :func:`_finite`).
+    """
+    try:
+        return float(Decimal(number).scaleb(exponent))
+    except ArithmeticError:  # decimal.Overflow, or an exponent decimal cannot hold
+        return math.inf
 
 
 def _finite(number: float, text: object, what: str) -> float:
     if not math.isfinite(number):
-        raise DesignError(f"{text!r} is not a finite {what}; give an ordinary number")
+        raise DesignError(f"{_quote(text)} is not a finite {what}; give an ordinary number")
     return float(number)
+
+
+def _plain(text: object, what: str) -> float:
+    """A TOML number (int or float) as a finite float."""
+    assert _is_number(text)
+    try:
+        number = float(text)
+    except OverflowError:  # an integer beyond the float range
+        number = math.inf
+    return _finite(number, text, what)
+
+
+def _text(text: str, what: str) -> str:
+    """The stripped text of a value, refused when far too long to be one."""
+    raw = text.strip()
+    if len(raw) > _MAX_TEXT:
+        raise DesignError(f"{_quote(text)} ({len(raw)} characters) is not a {what}; "
+                          f"a value has at most {_MAX_TEXT} characters")
+    return raw
 
 
 def parse_resistance(text: object) -> float:
@@ -105,14 +142,15 @@ def parse_resistance(text: object) -> float:
     """
     expected = "write a resistance such as 4k7, 4.7k, 4700, 2R2, R47 or 4.7 kΩ"
     if _is_number(text):
-        return _finite(float(text), text, "resistance")
+        return _plain(text, "resistance")
     if not isinstance(text, str):
-        raise DesignError(f"{text!r} is not a resistance; {expected}")
-    raw = text.strip()
+        raise DesignError(f"{_quote(text)} is not a resistance; {expected}")
+    raw = _text(text, "resistance")
     rkm = _RKM.match(raw)
     if rkm and (rkm["whole"] or rkm["frac"]):
         whole, frac = rkm["whole"] or "0", rkm["frac"] or "0"
-        return _scaled(f"{whole}.{frac}", _RKM_EXPONENT[rkm["letter"].upper()])
+        return _finite(_scaled(f"{whole}.{frac}", _RKM_EXPONENT[rkm["letter"].upper()]),
+                       text, "resistance")
     if re.fullmatch(r"\d*m\d+", raw):
         raise DesignError(
             f"{text!r} is ambiguous: write {raw.replace('m', 'M')} for megohms "
@@ -121,10 +159,11 @@ def parse_resistance(text: object) -> float:
     body = _OHM_SUFFIX.sub("", raw).rstrip()
     meg = _MEG.match(body)
     if meg:
-        raise DesignError(f"{text!r} is not a resistance; write M for mega ({meg['num']}M)")
+        raise DesignError(f"{_quote(text)} is not a resistance; "
+                          f"write M for mega ({meg['num']}M)")
     plain = _PLAIN.match(body)
     if not plain or not body:
-        raise DesignError(f"{text!r} is not a resistance; {expected}")
+        raise DesignError(f"{_quote(text)} is not a resistance; {expected}")
     prefix = plain["prefix"]
     if prefix and re.search(r"[eE]", plain["num"]):
         raise DesignError(
@@ -162,19 +201,19 @@ def parse_quantity(text: object, unit: str) -> float:
     what = _UNIT_NAME.get(unit, unit)
     expected = f"write a {what} such as 3.3 {unit}, 250 m{unit} or 1.5k{unit}"
     if _is_number(text):
-        return _finite(float(text), text, what)
+        return _plain(text, what)
     if not isinstance(text, str):
-        raise DesignError(f"{text!r} is not a {what}; {expected}")
+        raise DesignError(f"{_quote(text)} is not a {what}; {expected}")
     pattern = rf"^(?P<num>{_NUMBER})\s*(?P<prefix>[pnuµμmkMGT]?)\s*(?P<unit>[A-Za-zΩ%/°]*)$"
-    match = re.match(pattern, text.strip())
+    match = re.match(pattern, _text(text, what))
     if not match:
-        raise DesignError(f"{text!r} is not a {what}; {expected}")
+        raise DesignError(f"{_quote(text)} is not a {what}; {expected}")
     prefix, symbol = match["prefix"], match["unit"]
     if symbol not in ("", unit):
         # "12 mV" parses as prefix m + unit V; anything else names the wrong unit.
-        raise DesignError(f"{text!r} is not a {what} (unit {symbol!r}); {expected}")
+        raise DesignError(f"{_quote(text)} is not a {what} (unit {symbol!r}); {expected}")
     if prefix and re.search(r"[eE]", match["num"]):
-        raise DesignError(f"{text!r} mixes an exponent and a prefix; write one of them")
+        raise DesignError(f"{_quote(text)} mixes an exponent and a prefix; write one of them")
     return _finite(_scaled(match["num"], _PREFIX_EXPONENT[prefix]), text, what)
 
 
@@ -199,10 +238,11 @@ def parse_fraction(text: object) -> float:
     """
     expected = 'write a percentage with its sign, e.g. "1%" or "50 ppm"'
     if not isinstance(text, str):
-        raise DesignError(f"{text!r} is not a percentage; {expected}")
-    match = re.match(rf"^[±]?\s*(?P<num>{_NUMBER})\s*(?P<unit>%|ppm)$", text.strip())
+        raise DesignError(f"{_quote(text)} is not a percentage; {expected}")
+    match = re.match(rf"^[±]?\s*(?P<num>{_NUMBER})\s*(?P<unit>%|ppm)$",
+                     _text(text, "percentage"))
     if not match:
-        raise DesignError(f"{text!r} is not a percentage; {expected}")
+        raise DesignError(f"{_quote(text)} is not a percentage; {expected}")
     exponent = -2 if match["unit"] == "%" else -6
     return _finite(_scaled(match["num"], exponent), text, "percentage")
 
@@ -227,13 +267,13 @@ def parse_tcr(text: object) -> float:
     """
     expected = 'write a TCR with its unit, e.g. "100 ppm/C" or "25 ppm/K"'
     if not isinstance(text, str):
-        raise DesignError(f"{text!r} is not a TCR; {expected}")
+        raise DesignError(f"{_quote(text)} is not a TCR; {expected}")
     match = re.match(
         rf"^[±]?\s*(?P<num>{_NUMBER})\s*(?P<unit>ppm|%)\s*/\s*(?:°\s*C|°\s*K|degC|C|K)$",
-        text.strip(),
+        _text(text, "TCR"),
     )
     if not match:
-        raise DesignError(f"{text!r} is not a TCR; {expected}")
+        raise DesignError(f"{_quote(text)} is not a TCR; {expected}")
     exponent = -6 if match["unit"] == "ppm" else -2
     return _finite(_scaled(match["num"], exponent), text, "TCR")
 
@@ -258,20 +298,21 @@ def parse_temperature(text: object) -> float:
     """
     expected = 'write a temperature such as "70 C" or "-20 C"'
     if _is_number(text):
-        return _finite(float(text), text, "temperature")
-    if not isinstance(text, str):
-        raise DesignError(f"{text!r} is not a temperature; {expected}")
-    match = re.match(
-        rf"^(?P<num>{_NUMBER})\s*(?P<unit>°\s*C|degC|C|K|)$", text.strip()
-    )
-    if not match:
-        raise DesignError(f"{text!r} is not a temperature; {expected}")
-    value = float(match["num"])
-    if match["unit"] == "K":
-        if value < 0:
-            raise DesignError(f"{text!r} is below absolute zero; {expected}")
-        value -= 273.15
-    return _finite(value, text, "temperature")
+        value = _plain(text, "temperature")
+    elif not isinstance(text, str):
+        raise DesignError(f"{_quote(text)} is not a temperature; {expected}")
+    else:
+        match = re.match(
+            rf"^(?P<num>{_NUMBER})\s*(?P<unit>°\s*C|degC|C|K|)$", _text(text, "temperature")
+        )
+        if not match:
+            raise DesignError(f"{_quote(text)} is not a temperature; {expected}")
+        value = _finite(float(match["num"]), text, "temperature")
+        if match["unit"] == "K":
+            value -= 273.15
+    if value < -273.15:
+        raise DesignError(f"{_quote(text)} is below absolute zero (-273.15 C); {expected}")
+    return value
 
 
 def parse_decibels(text: object) -> float:
@@ -283,10 +324,10 @@ def parse_decibels(text: object) -> float:
     6.0
     """
     if _is_number(text):
-        return _finite(float(text), text, "level in dB")
-    match = re.match(rf"^(?P<num>{_NUMBER})\s*(?:dB)?$", str(text).strip())
+        return _plain(text, "level in dB")
+    match = re.match(rf"^(?P<num>{_NUMBER})\s*(?:dB)?$", str(text).strip()[:_MAX_TEXT + 1])
     if not isinstance(text, str) or not match:
-        raise DesignError(f"{text!r} is not a level in dB; write e.g. \"6 dB\"")
+        raise DesignError(f"{_quote(text)} is not a level in dB; write e.g. \"6 dB\"")
     return _finite(float(match["num"]), text, "level in dB")
 
 

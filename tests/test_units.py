@@ -176,3 +176,41 @@ def test_engineering_round_trip_resistance(ohms, digits):
 def test_engineering_round_trip_quantities(value, unit):
     back = parse_quantity(format_eng(value, unit, 12), unit)
     assert math.isclose(back, value, rel_tol=1e-11)
+
+
+# -- numbers at the edge of the float range (common practice: refuse, never overflow) -----
+
+_EDGES = ["1e1000000", "1e99999999999999999999", "9" * 400, "9" * 400 + "R", "9" * 99 + "R9",
+          "1e400"]
+
+
+@pytest.mark.parametrize("text", _EDGES, ids=lambda t: t[:12])
+@pytest.mark.parametrize("parse", [
+    parse_resistance,
+    lambda t: parse_quantity(t + " V", "V"),
+    lambda t: parse_fraction(t + "%"),
+    lambda t: parse_tcr(t + " ppm/C"),
+    lambda t: parse_temperature(t + " C"),
+])
+def test_numbers_beyond_the_float_range_are_refused(parse, text):
+    with pytest.raises(DesignError) as info:
+        parse(text)
+    assert len(str(info.value)) < 200 and "\n" not in str(info.value)
+
+
+@pytest.mark.parametrize("number", [10 ** 400, -(10 ** 400), float("nan"), float("inf")])
+def test_toml_numbers_beyond_the_float_range_are_refused(number):
+    for parse in (parse_resistance, lambda n: parse_quantity(n, "V"), parse_temperature):
+        with pytest.raises(DesignError, match="not a finite"):
+            parse(number)
+
+
+@pytest.mark.parametrize("text", ["-273.16 C", "-300 C", "-1 K", -274])
+def test_temperatures_below_absolute_zero_are_refused(text):
+    with pytest.raises(DesignError, match="below absolute zero"):
+        parse_temperature(text)
+
+
+def test_absolute_zero_itself_is_read():
+    assert parse_temperature("0 K") == pytest.approx(-273.15)
+    assert parse_temperature("-273.15 C") == -273.15

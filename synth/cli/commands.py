@@ -24,6 +24,7 @@ from synth.cli.options import (
     Range,
     SearchOptions,
     SpreadOptions,
+    check_time_limit,
     emit_json,
     friendly,
     search_options,
@@ -163,6 +164,7 @@ def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, poo
     from synth.files import write_atomic
     from synth.report.bom import bom_summary, render_bom
 
+    check_time_limit(time_limit)
     if output is not None and Path(output).exists() and not force:
         raise DesignError(f"{output}: already exists; pass --force to replace it")
     board = load_board(list(files), stock=stock, pool=pool)

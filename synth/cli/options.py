@@ -5,15 +5,17 @@ output helpers.
 from __future__ import annotations
 
 __all__ = [
-    "CURRENT", "DECIBELS", "PERCENT", "PLOT_AXES", "RESISTANCE", "RESISTANCE_RANGE",
-    "TEMPERATURE", "VOLTAGE", "BadInput", "CatalogueChoice", "Given", "Measured", "Progress",
-    "QuickOptions", "Range", "SearchOptions", "SpreadOptions", "Window", "emit_json",
-    "friendly", "option_group", "option_name", "quick_options", "ranking_choices",
-    "search_options", "series_name_choices", "spread_options", "write_plots",
+    "CURRENT", "DECIBELS", "MAX_SAMPLES", "PERCENT", "PLOT_AXES", "RESISTANCE",
+    "RESISTANCE_RANGE", "TEMPERATURE", "VOLTAGE", "BadInput", "CatalogueChoice", "Given",
+    "Measured", "Progress", "QuickOptions", "Range", "SearchOptions", "SpreadOptions", "Window",
+    "check_time_limit", "emit_json", "friendly", "option_group", "option_name",
+    "quick_options", "ranking_choices", "search_options", "series_name_choices",
+    "spread_options", "write_plots",
 ]
 
 import functools
 import json
+import math
 import sys
 import time
 from collections.abc import Callable, Sequence
@@ -115,7 +117,7 @@ class Measured(click.ParamType[Given]):
         text = str(value).strip()
         try:
             return Given(text, float(self._parse(text)))
-        except DesignError as exc:
+        except (DesignError, ArithmeticError) as exc:
             raise BadInput(f"{option_name(param)}: {exc}") from None
 
 
@@ -262,6 +264,15 @@ def option_group(record: type, options: Sequence[Callable[[F], F]]) -> Callable[
     return decorate
 
 
+MAX_SAMPLES = 10_000_000  # Monte Carlo samples a run may ask for
+
+
+def check_time_limit(seconds: float | None, option: str = "--time-limit") -> None:
+    """Refuse a time limit that is not a positive, finite number of seconds."""
+    if seconds is not None and not (math.isfinite(seconds) and seconds > 0):
+        raise DesignError(f"{option} {seconds} must be a positive number of seconds (a finite one)")
+
+
 @dataclass(frozen=True)
 class SpreadOptions:
     samples: int
@@ -272,8 +283,11 @@ class SpreadOptions:
     def settings(self) -> SpreadSettings:
         from synth.spread.records import SpreadSettings
 
-        if self.samples < 0:
-            raise DesignError(f"--samples {self.samples} must be 0 (no Monte Carlo) or more")
+        if not 0 <= self.samples <= MAX_SAMPLES:
+            raise DesignError(f"--samples {self.samples} must be 0 (no Monte Carlo) to "
+                              f"{MAX_SAMPLES:,}")
+        if self.seed < 0:
+            raise DesignError(f"--seed {self.seed} must be 0 or more")
         # samples are kept only for the histograms; otherwise memory stays bounded
         return SpreadSettings(samples=self.samples, distribution=self.distribution,
                               seed=self.seed, keep_samples=self.plots is not None)
@@ -370,6 +384,12 @@ class QuickOptions:
                              ambient=self.ambient.text, margin=self.margin.text)
 
 
+def _package_name(ctx: click.Context, param: click.Parameter, value: str) -> str:
+    if not value.strip():
+        raise BadInput("--package: give a package name (e.g. 0603) or auto, not an empty text")
+    return value
+
+
 def quick_options(main_unit: str, package: str = "0603") -> Callable[[F], F]:
     """The options every quick command shares; ``main_unit`` is its main target's unit."""
     group = option_group(QuickOptions, [
@@ -382,6 +402,7 @@ def quick_options(main_unit: str, package: str = "0603") -> Callable[[F], F]:
         click.option("--within", type=Window(main_unit), default=None,
                      help='Hard window on the main target, e.g. "1%" or "10 mV".'),
         click.option("--package", default=package, show_default=True,
+                     callback=_package_name,
                      help="Package of the chosen parts (a name in the package table), or "
                           "auto: the smallest that carries each part's dissipation and "
                           "voltage, or a series string of equal parts."),

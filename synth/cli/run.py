@@ -22,6 +22,7 @@ from synth.cli.options import (
     QuickOptions,
     SearchOptions,
     SpreadOptions,
+    check_time_limit,
     emit_json,
     write_plots,
 )
@@ -40,9 +41,7 @@ def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
     if search.top < 1:
         raise DesignError(f"--top {search.top} must be at least 1")
     settings = spread.settings()
-    if search.time_limit is not None and not search.time_limit > 0:
-        raise DesignError(f"--time-limit {search.time_limit} must be a positive number of "
-                          "seconds")
+    check_time_limit(search.time_limit)
     if search.min_yield is not None and search.require not in (None, "yield"):
         raise DesignError("--min-yield goes with --require yield; add it or drop --min-yield")
     for note in design.deprecations:

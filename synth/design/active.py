@@ -61,8 +61,11 @@ class ActiveParts:
 
 def _gain(reader: ItemReader, kind: str, raw: Any, key: str) -> float:
     """A gain: V/V and A/A plain numbers, A/V in S, V/A in ohm."""
+    if isinstance(raw, bool) or not isinstance(raw, (int, float, str)):
+        reader.fail(f"{key} must be a number or a text such as \"2 mS\", not "
+                    f"{type(raw).__name__} {str(raw)[:40]!r}")
     try:
-        if isinstance(raw, (int, float)) and not isinstance(raw, bool):
+        if isinstance(raw, (int, float)):
             value = float(raw)
         elif kind == "ccvs":
             value = parse_resistance(raw)
@@ -71,8 +74,8 @@ def _gain(reader: ItemReader, kind: str, raw: Any, key: str) -> float:
             value = parse_quantity(text + "A", "A")  # same prefixes: "2 mS" reads as 2 mA/V
         else:
             value = float(raw)
-    except (DesignError, ValueError, TypeError):
-        reader.fail(f"{key} {raw!r} is not a gain; write a number (vccs: \"2 mS\", "
+    except (DesignError, ValueError, TypeError, OverflowError):
+        reader.fail(f"{key} {str(raw)[:40]!r} is not a gain; write a number (vccs: \"2 mS\", "
                     "ccvs: \"1k\" ohm)")
     if not math.isfinite(value):
         reader.fail(f"{key} must be finite")

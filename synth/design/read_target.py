@@ -52,8 +52,13 @@ def _target_quantity(reader: ItemReader, kind: str, key: str) -> float:
 
 
 def _parse_ratio(raw: Any) -> float:
-    if isinstance(raw, (int, float)) and not isinstance(raw, bool) and math.isfinite(raw):
-        return float(raw)
+    if isinstance(raw, (int, float)) and not isinstance(raw, bool):
+        try:
+            value = float(raw)
+        except OverflowError:  # an integer beyond the float range
+            value = math.inf
+        if math.isfinite(value):
+            return value
     if isinstance(raw, str):
         try:
             value = float(raw)
@@ -62,7 +67,7 @@ def _parse_ratio(raw: Any) -> float:
         else:
             if math.isfinite(value):
                 return value
-    raise DesignError(f"{raw!r} is not a ratio; write a plain number such as 0.25")
+    raise DesignError(f"{str(raw)[:40]!r} is not a ratio; write a plain number such as 0.25")
 
 
 def read_target(origin: str, index: int, raw: Any, ground: str) -> Target:

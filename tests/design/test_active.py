@@ -176,6 +176,16 @@ def test_finite_open_loop_gain():
                       "emitter": "d"}]}, "type 'nmos' is not known"),
     ({"transistor": [{"ref": "Q1", "type": "npn", "collector": "c", "base": "b",
                       "emitter": "d", "beta": [100, 300, 50]}]}, "least <= typical <= greatest"),
+    ({"controlled": [{"ref": "X1", "kind": "vcvs", "plus": "d", "minus": "gnd",
+                      "control": ["a", "b"], "gain": True}]}, "gain must be a number"),
+    ({"controlled": [{"ref": "X1", "kind": "vcvs", "plus": "d", "minus": "gnd",
+                      "control": ["a", "b"], "gain": 10 ** 400}]}, "gain .* is not a gain"),
+    ({"controlled": [{"ref": "X1", "kind": "vcvs", "plus": "d", "minus": "gnd",
+                      "control": ["a", "b"], "gain": float("nan")}]}, "gain must be finite"),
+    ({"amplifier": [{"ref": "U1", "plus": "a", "minus": "b", "output": "d",
+                     "open_loop_gain": float("nan")}]}, "open_loop_gain must be finite"),
+    ({"amplifier": [{"ref": "U1", "plus": "a", "minus": "b", "output": "d",
+                     "open_loop_gain": False}]}, "open_loop_gain must be a number"),
 ])
 def test_refused_active_parts(table, fragment):
     with pytest.raises(DesignError, match=fragment):

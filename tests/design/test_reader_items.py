@@ -201,8 +201,6 @@ def test_source_tolerance_in_volts(tolerance, absolute):
     assert source.tolerance == 0.0
 
 
-@pytest.mark.xfail(strict=True, reason="parse_temperature refuses a negative kelvin value "
-                   "but reads -300 C (below absolute zero, -273.15 C) as a valid ambient")
 def test_ambient_below_absolute_zero_is_refused(tmp_path):
     # 0 K = -273.15 °C [SI-brochure]
     _, result = run_check(tmp_path, (TITLE, 'ambient = "-300 C"'))
