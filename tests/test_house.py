@@ -29,7 +29,7 @@ LAYERS = (
     ("design",),
     ("rating",),
     ("catalog",),
-    ("units",),
+    ("units", "inputs"),
     ("errors",),
 )
 """Each module's layer is named by its first dotted part below ``synth``."""

@@ -15,6 +15,7 @@ from pathlib import Path
 
 from synth.catalog.series import catalog_dir
 from synth.errors import DesignError
+from synth.inputs import read_input_text
 
 
 @dataclass(frozen=True)
@@ -77,10 +78,7 @@ def read_csv_rows(path: Path) -> Iterator[tuple[int, dict[str, str]]]:
     DesignError
         When the file cannot be read.
     """
-    try:
-        text = path.read_text(encoding="utf-8-sig")
-    except OSError as exc:
-        raise DesignError(f"{path}: cannot be read ({exc.strerror}); check the path") from None
+    text = read_input_text(path, "CSV file")
     numbered = [
         (number, line)
         for number, line in enumerate(text.splitlines(), start=1)
@@ -89,7 +87,15 @@ def read_csv_rows(path: Path) -> Iterator[tuple[int, dict[str, str]]]:
     if not numbered:
         raise DesignError(f"{path}: the file has no header row; add one naming the columns")
     reader = csv.DictReader(line for _, line in numbered)
-    for (number, _), row in zip(numbered[1:], reader, strict=False):
+    rows = iter(reader)
+    for number, _ in numbered[1:]:
+        try:
+            row = next(rows)
+        except StopIteration:
+            return
+        except csv.Error as exc:  # a field over the csv module's limit, a NUL byte ...
+            raise DesignError(f"{path}, line {number}: not a CSV row the reader accepts "
+                              f"({exc}); check that the file is a plain CSV list") from None
         if None in row:  # csv puts the fields beyond the header under the key None
             raise DesignError(f"{path}, line {number}: the row has more fields than the header "
                               f"({len(reader.fieldnames or [])} columns); remove the extra "

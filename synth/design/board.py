@@ -19,7 +19,6 @@ from __future__ import annotations
 
 __all__ = ["DEFAULT_POOL", "Board", "BoardNetwork", "load_board"]
 
-import tomllib
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -28,6 +27,7 @@ from typing import Any
 from synth.design.load import load_design
 from synth.design.model import Design
 from synth.errors import DesignError, nearest_name
+from synth.inputs import read_toml
 
 _BOARD_KEYS = ("title", "stock", "pool", "notes")
 
@@ -36,6 +36,7 @@ _NETWORK_KEYS = ("file", "name", "count", "note")
 
 
 DEFAULT_POOL = 200
+MAX_COUNT = 1_000_000  # copies of one network on a board
 
 
 @dataclass(frozen=True)
@@ -76,19 +77,7 @@ class Board:
 
 
 def _read_toml(path: Path) -> dict[str, Any]:
-    try:
-        with path.open("rb") as handle:
-            return tomllib.load(handle)
-    except FileNotFoundError:
-        raise DesignError(f"{path}: no such file; check the path") from None
-    except IsADirectoryError:
-        raise DesignError(f"{path}: is a folder; name a design or board file") from None
-    except tomllib.TOMLDecodeError as exc:
-        raise DesignError(f"{path}: not valid TOML ({exc}); fix the syntax there") from None
-    except UnicodeDecodeError:
-        raise DesignError(f"{path}: not UTF-8 text; save it as UTF-8") from None
-    except OSError as exc:
-        raise DesignError(f"{path}: cannot be read ({exc.strerror})") from None
+    return read_toml(path, "design or board file")
 
 
 def _board_file(path: Path, data: dict[str, Any]) -> tuple[str, list[BoardNetwork],
@@ -99,6 +88,9 @@ def _board_file(path: Path, data: dict[str, Any]) -> tuple[str, list[BoardNetwor
                               f"{nearest_name(key, ('board', 'network'))}; a board file has "
                               "[board] and [[network]] tables")
     board = data.get("board", {})
+    if not isinstance(board, dict):
+        raise DesignError(f"{path}: board must be a [board] table, not "
+                          f"{type(board).__name__}; write [board] with title = ...")
     for key in board:
         if key not in _BOARD_KEYS:
             raise DesignError(f"{path}, [board]: unknown key {key!r}"
@@ -109,8 +101,11 @@ def _board_file(path: Path, data: dict[str, Any]) -> tuple[str, list[BoardNetwor
         raise DesignError(f"{path}, [board]: pool {pool!r} must be a whole number of at least 1")
     stock = None
     if "stock" in board:
-        stock = path.parent / str(board["stock"])
-        if not stock.is_file():
+        if not isinstance(board["stock"], str) or not board["stock"].strip():
+            raise DesignError(f"{path}, [board]: stock must be the name of a CSV file, not "
+                              f"{type(board['stock']).__name__} {str(board['stock'])[:40]!r}")
+        stock = path.parent / board["stock"]
+        if not stock.exists():
             raise DesignError(f"{path}, [board]: stock file {board['stock']!r} was not found; "
                               "check the path")
     networks = []
@@ -129,12 +124,13 @@ def _board_file(path: Path, data: dict[str, Any]) -> tuple[str, list[BoardNetwor
         if not isinstance(entry.get("file"), str):
             raise DesignError(f"{item}: file is missing; add file = \"design.toml\"")
         design_path = path.parent / entry["file"]
-        if not design_path.is_file():
+        if not design_path.exists():
             raise DesignError(f"{item}: design file {entry['file']!r} was not found; check the "
                               "path (it is read relative to the board file)")
         count = entry.get("count", 1)
-        if not isinstance(count, int) or isinstance(count, bool) or count < 1:
-            raise DesignError(f"{item}: count {count!r} must be a whole number of at least 1")
+        if not isinstance(count, int) or isinstance(count, bool) or not 1 <= count <= MAX_COUNT:
+            raise DesignError(f"{item}: count {str(count)[:40]} must be a whole number from 1 "
+                              f"to {MAX_COUNT:,}")
         name = entry.get("name", design_path.stem)
         if not isinstance(name, str) or not name.strip():
             raise DesignError(f"{item}: name must be a non-empty text")
@@ -183,7 +179,7 @@ def load_board(paths: Sequence[str | Path], stock: str | Path | None = None,
         seen[net.name] = 1
     if stock is not None:
         stock_path = Path(stock)
-        if not stock_path.is_file():
+        if not stock_path.exists():
             raise DesignError(f"{stock_path}: stock file not found; check the path")
     if pool is not None and pool < 1:
         raise DesignError(f"--pool {pool} must be at least 1")

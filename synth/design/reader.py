@@ -219,7 +219,7 @@ def design_from_dict(data: Mapping[str, Any], origin: str = "<design>") -> Desig
     if settings["packages_path"]:
         base = Path(origin).parent if not origin.startswith("<") else Path.cwd()
         path = base / settings["packages_path"]
-        if not path.is_file():
+        if not path.exists():
             raise DesignError(f"{origin}, [design]: package table {settings['packages_path']!r} "
                               "was not found; check the path")
         packages = load_package_table(path)

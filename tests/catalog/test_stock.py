@@ -48,7 +48,7 @@ def test_malformed_stock_lists_are_refused(tmp_path, text, fragment):
 
 
 def test_unreadable_stock_list_is_refused(tmp_path):
-    with pytest.raises(DesignError, match="cannot be read"):
+    with pytest.raises(DesignError, match="is a folder; name a CSV file"):
         load_stock(tmp_path)  # a directory
 
 

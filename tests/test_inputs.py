@@ -1,0 +1,98 @@
+"""Input files read safely: regular files only, at most 16 MiB, UTF-8 (synth.inputs)."""
+
+from __future__ import annotations
+
+import os
+import shutil
+
+import pytest
+from click.testing import CliRunner
+
+import synth.inputs
+from synth.catalog.stock import load_stock
+from synth.cli import cli
+from synth.design.load import load_design
+from synth.errors import DesignError
+from synth.inputs import read_input_text, read_toml
+
+from conftest import EXAMPLES
+
+PROBE = next(p for p in EXAMPLES if p.name == "greenhouse_probe.toml")
+
+
+def one_line_refusal(*args: str) -> str:
+    result = CliRunner().invoke(cli, list(args))
+    assert result.exit_code == 2, result.output
+    assert "Traceback" not in result.output + result.stderr
+    lines = result.stderr.strip().splitlines()
+    assert len(lines) == 1, result.stderr
+    return lines[0]
+
+
+@pytest.mark.skipif(not hasattr(os, "mkfifo"), reason="needs named pipes")
+def test_a_fifo_is_refused_before_it_is_opened(tmp_path):
+    fifo = tmp_path / "design.toml"
+    os.mkfifo(fifo)  # opening it for reading would block until a writer came
+    for command in ("check", "design", "bom"):
+        assert "is not a regular file" in one_line_refusal(command, str(fifo))
+
+
+@pytest.mark.skipif(not os.path.exists("/dev/zero"), reason="needs /dev/zero")
+def test_a_device_is_refused_not_read_without_bound():
+    for args in (("check", "/dev/zero"), ("bom", "/dev/zero")):
+        assert "/dev/zero: is not a regular file" in one_line_refusal(*args)
+
+
+def test_a_file_over_the_size_cap_is_refused(tmp_path, monkeypatch):
+    path = tmp_path / "design.toml"
+    path.write_bytes(b"# " + b"x" * 2000 + b"\n")
+    monkeypatch.setattr(synth.inputs, "MAX_INPUT_BYTES", 1000)
+    with pytest.raises(DesignError, match=r"is 2,003 bytes; a design file may have at most"):
+        load_design(path)
+
+
+@pytest.mark.parametrize("text", ["x = " + "[" * 5000 + "]" * 5000,
+                                  "x = " + "{a = " * 3000 + "1" + "}" * 3000])
+def test_toml_nested_thousands_deep_is_refused(tmp_path, text):
+    path = tmp_path / "deep.toml"
+    path.write_text(text + "\n", encoding="utf-8")
+    with pytest.raises(DesignError, match="nested too deeply"):
+        read_toml(path, "design file")
+    assert "nested too deeply" in one_line_refusal("check", str(path))
+
+
+def test_utf8_with_a_byte_order_mark_is_read(tmp_path):
+    path = tmp_path / "probe.toml"
+    path.write_bytes(b"\xef\xbb\xbf" + PROBE.read_bytes())
+    assert load_design(path).title == load_design(PROBE).title
+
+
+def test_windows_1252_is_refused_with_the_encoding_named(tmp_path):
+    path = tmp_path / "stock.csv"
+    path.write_bytes("value,package\n4k7,0603\n# café\n".encode("cp1252"))
+    with pytest.raises(DesignError, match=r"line 3: not UTF-8 text \(it reads as Windows-1252"):
+        load_stock(path)
+    path.write_bytes(b"value,package\n4k7,0603\n\x81\x8d\n")  # bytes no code page here uses
+    with pytest.raises(DesignError, match=r"line 3: not UTF-8 text; save it as UTF-8"):
+        read_input_text(path, "stock list")
+
+
+def test_a_csv_field_over_the_csv_limit_is_refused(tmp_path):
+    path = tmp_path / "stock.csv"
+    path.write_text('value,package\n"' + "1" * 200_000 + '",0603\n', encoding="utf-8")
+    with pytest.raises(DesignError, match=r"line 2: not a CSV row the reader accepts \(field"):
+        load_stock(path)
+
+
+def test_stock_and_board_errors_are_one_line(tmp_path):
+    shutil.copy(PROBE, tmp_path / "probe.toml")
+    board = tmp_path / "board.toml"
+    board.write_text('[[network]]\nfile = "probe.toml"\n', encoding="utf-8")
+    stock = tmp_path / "stock.csv"
+    stock.write_bytes("value\n4k7\n1k\xa0\n".encode("cp1252"))
+    line = one_line_refusal("bom", str(board), "--stock", str(stock), "--quiet")
+    assert "Windows-1252" in line
+    fifo = tmp_path / "fifo.csv"
+    if hasattr(os, "mkfifo"):
+        os.mkfifo(fifo)
+        assert "not a regular file" in one_line_refusal("bom", str(board), "--stock", str(fifo))
