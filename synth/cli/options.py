@@ -425,8 +425,20 @@ def quick_options(main_unit: str, package: str = "0603") -> Callable[[F], F]:
 # -- output helpers ----------------------------------------------------------------------
 
 
+def _strict(value: Any) -> Any:
+    """The document with every NaN or infinity written as null (JSON has neither)."""
+    if isinstance(value, float):
+        return value if math.isfinite(value) else None
+    if isinstance(value, dict):
+        return {key: _strict(item) for key, item in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_strict(item) for item in value]
+    return value
+
+
 def emit_json(document: Any) -> None:
-    click.echo(json.dumps(document, indent=2, ensure_ascii=False))
+    """Print a JSON document; a NaN or infinity (which JSON has not) is written as null."""
+    click.echo(json.dumps(_strict(document), indent=2, ensure_ascii=False, allow_nan=False))
 
 
 def write_plots(paths: list[Any], as_json: bool) -> None:

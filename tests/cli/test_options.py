@@ -9,7 +9,7 @@ from click.testing import CliRunner
 
 from synth.cli import cli
 
-from conftest import BOARDS
+from conftest import BOARDS, EXAMPLES
 
 DIVIDER = ["divider", "--input", "12 V", "--output", "3.3 V", "--samples", "0"]
 HUGE = ["1e1000000", "1e99999999999999999999", "9" * 400, "9" * 400 + "R"]
@@ -59,4 +59,19 @@ def test_bom_time_limit_must_be_positive_and_finite(limit):
 def test_series_json_is_strict():
     result = CliRunner().invoke(cli, ["series", "E96", "--nearest", "1e300", "--json"])
     assert result.exit_code == 0
+    json.dumps(json.loads(result.output), allow_nan=False)
+
+
+def test_json_output_never_holds_nan_or_infinity(capsys):
+    from synth.cli.options import emit_json
+
+    emit_json({"a": float("nan"), "b": [float("inf"), -float("inf"), 1.5], "c": (2.0,)})
+    document = json.loads(capsys.readouterr().out)
+    assert document == {"a": None, "b": [None, None, 1.5], "c": [2.0]}
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.name)
+def test_check_json_of_every_example_is_strict(path):
+    result = CliRunner().invoke(cli, ["check", str(path), "--json", "--samples", "200"])
+    assert result.exit_code in (0, 1), result.output
     json.dumps(json.loads(result.output), allow_nan=False)
