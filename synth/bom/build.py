@@ -18,7 +18,14 @@ from collections.abc import Callable, Mapping
 from typing import cast
 
 from synth.bom.consolidate import Pool, consolidate
-from synth.bom.lines import BomLine, BomResult, LineKey, NetworkChoice, natural_order
+from synth.bom.lines import (
+    BomLine,
+    BomResult,
+    LineKey,
+    NetworkChoice,
+    Placement,
+    natural_order,
+)
 from synth.catalog.packages import PackageRating
 from synth.catalog.series import coarsest_series
 from synth.catalog.stock import StockItem, load_stock
@@ -166,6 +173,7 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
     highest: dict[str, int] = {}
     renumbered: dict[str, dict[str, str]] = {}
     refs_by_key: dict[LineKey, list[str]] = defaultdict(list)
+    placed: list[tuple[str, str, str, LineKey]] = []
     chosen = []
     for net, pick, candidates in zip(board.networks, outcome.choice, options, strict=True):
         rank, values, objective = candidates[pick]
@@ -179,6 +187,7 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
                 renumbered[label] = mapping
             for ref, key in parts:
                 refs_by_key[key].append(mapping.get(ref, ref))
+                placed.append((mapping.get(ref, ref), label, ref, key))
     lines = []
     for number, key in enumerate(sorted(refs_by_key, key=lambda k: (k.value, k.package,
                                                                      k.tolerance, k.tcr)), 1):
@@ -196,6 +205,9 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
             references=tuple(refs), on_hand=on_hand, in_stock=bool(matches),
             shortfall=shortfall,
         ))
+    number_of = {line.key: line.number for line in lines}
+    placements = tuple(Placement(designator=ref, network=label, original=original,
+                                 line=number_of[key]) for ref, label, original, key in placed)
     return BomResult(board=board, lines=tuple(lines), networks=tuple(chosen),
                      renumbered=renumbered, consolidation=outcome, lines_before=before,
-                     notes=tuple(notes))
+                     notes=tuple(notes), placements=placements)

@@ -4,7 +4,8 @@
 from __future__ import annotations
 
 __all__ = [
-    "BomLine", "BomResult", "LineKey", "NetworkChoice", "collapse_references", "natural_order",
+    "BomLine", "BomResult", "LineKey", "NetworkChoice", "Placement", "collapse_references",
+    "list_references", "natural_order",
 ]
 
 import re
@@ -45,6 +46,9 @@ class BomLine:
     in_stock : bool
     shortfall : int
         Parts to buy beyond what is on hand (all of them when not in stock).
+    stock : tuple of (str, str)
+        The stock list's own columns (part number, location, price, …) of the matching rows:
+        column name and value, the distinct values of several rows joined by ``"; "``.
     """
 
     number: int
@@ -56,6 +60,7 @@ class BomLine:
     on_hand: int | None
     in_stock: bool
     shortfall: int
+    stock: tuple[tuple[str, str], ...] = ()
 
 
 @dataclass(frozen=True)
@@ -68,6 +73,28 @@ class NetworkChoice:
     values: dict[str, float]
     objective: float
     pool_size: int
+
+
+@dataclass(frozen=True)
+class Placement:
+    """One part on the board: its designator, where it comes from, and its BOM line.
+
+    Attributes
+    ----------
+    designator : str
+        The designator on the board (after any renumbering).
+    network : str
+        The network instance (``"lamp #2"`` for the second copy of ``lamp``).
+    original : str
+        The designator the design file gives the part.
+    line : int
+        The number of its BOM line.
+    """
+
+    designator: str
+    network: str
+    original: str
+    line: int
 
 
 @dataclass(frozen=True)
@@ -84,6 +111,11 @@ class BomResult:
     consolidation : Consolidation
     lines_before : int
         Distinct lines with every network at its own best candidate.
+    notes : tuple of str
+    placements : tuple of Placement
+        Every part on the board, in board order.
+    stock_columns : tuple of str
+        The stock list's own columns passed to the BOM, in the list's order.
     """
 
     board: Board
@@ -93,6 +125,8 @@ class BomResult:
     consolidation: Consolidation
     lines_before: int
     notes: tuple[str, ...] = field(default=())
+    placements: tuple[Placement, ...] = field(default=())
+    stock_columns: tuple[str, ...] = field(default=())
 
     @property
     def parts(self) -> int:
@@ -105,13 +139,26 @@ def natural_order(ref: str) -> tuple[str, int, str]:
     return (match[1], int(match[2]), match[3]) if match else (ref, 0, "")
 
 
-def collapse_references(refs: list[str]) -> str:
+def list_references(refs: list[str]) -> str:
+    """Designators one by one in natural order, comma-separated.
+
+    Examples
+    --------
+    >>> list_references(["R10", "R2", "R1", "R3"])
+    'R1, R2, R3, R10'
+    """
+    return ", ".join(sorted(set(refs), key=natural_order))
+
+
+def collapse_references(refs: list[str], dash: str = "–") -> str:
     """Designators as ranges: ``R1, R2, R3, R4, R7`` becomes ``R1–R4, R7``.
 
     Examples
     --------
     >>> collapse_references(["R7", "R2", "R1", "R3", "R4", "C1", "R10A"])
     'C1, R1–R4, R7, R10A'
+    >>> collapse_references(["R1", "R2", "R3"], dash="-")
+    'R1-R3'
     """
     ordered = sorted(set(refs), key=natural_order)
     out: list[str] = []
@@ -122,7 +169,7 @@ def collapse_references(refs: list[str]) -> str:
             return
         letters = run[0][0]
         if len(run) >= 3:
-            out.append(f"{letters}{run[0][1]}–{letters}{run[-1][1]}")
+            out.append(f"{letters}{run[0][1]}{dash}{letters}{run[-1][1]}")
         else:
             out.extend(f"{letters}{n}" for _, n in run)
         run.clear()

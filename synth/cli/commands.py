@@ -141,8 +141,15 @@ def design_command(design_file: str, search: SearchOptions, spread: SpreadOption
               help="Choose only values the stock list holds.")
 @click.option("--pool", type=int, default=None,
               help="Feasible candidates kept per network for consolidation [default: 200].")
-@click.option("--format", "form", type=click.Choice(["csv", "json", "markdown"]),
-              default="csv", show_default=True, help="Output format.")
+@click.option("--format", "form",
+              type=click.Choice(["csv", "json", "markdown", "per-designator"]),
+              default="csv", show_default=True,
+              help="Output format; per-designator: a CSV row per part, for a board tool.")
+@click.option("--encoding", type=click.Choice(["utf-8", "utf-8-sig", "ascii"]), default=None,
+              help="Text encoding [default: utf-8-sig (with a byte-order mark) for CSV, "
+                   "utf-8 otherwise]; ascii spells out ohm.")
+@click.option("--ranges", is_flag=True,
+              help="Collapse runs of designators (R1–R4) instead of listing each.")
 @click.option("--output", type=click.Path(dir_okay=False), default=None,
               help="Write the BOM to this file instead of standard output.")
 @click.option("--force", is_flag=True, help="Replace an existing output file.")
@@ -151,8 +158,8 @@ def design_command(design_file: str, search: SearchOptions, spread: SpreadOption
 @click.option("--quiet", is_flag=True, help="No summary and no progress lines.")
 @friendly
 def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, pool: int | None,
-                form: str, output: str | None, force: bool, time_limit: float,
-                quiet: bool) -> None:
+                form: str, encoding: str | None, ranges: bool, output: str | None,
+                force: bool, time_limit: float, quiet: bool) -> None:
     """Bill of materials for a board: design files and/or board files.
 
     Designs every network, then chooses one design per network so that the
@@ -162,11 +169,12 @@ def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, poo
     from synth.bom.build import build_bom
     from synth.design.board import load_board
     from synth.files import write_atomic
-    from synth.report.bom import bom_summary, render_bom
+    from synth.report.bom import bom_summary, render_bom, resolve_encoding
 
     check_time_limit(time_limit)
     if output is not None and Path(output).exists() and not force:
         raise DesignError(f"{output}: already exists; pass --force to replace it")
+    resolve_encoding(form, encoding)
     board = load_board(list(files), stock=stock, pool=pool)
     if stock_only and board.stock_path is None:
         raise DesignError("--stock-only needs a stock list; give --stock FILE")
@@ -176,9 +184,11 @@ def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, poo
             click.echo(f"designing {name} ...", err=True)
 
     result = build_bom(board, stock_only=stock_only, time_limit_s=time_limit, progress=note)
-    text = render_bom(result, form)
+    text = render_bom(result, form, ranges=ranges, encoding=encoding)
     if output is None:
-        click.echo(text, nl=False)
+        stream = click.get_binary_stream("stdout")
+        stream.write(text.encode("utf-8"))
+        stream.flush()
     else:
         write_atomic(output, text, force=force)
     if not quiet:

@@ -85,11 +85,13 @@ def run(*args):
 def test_csv_reads_back_and_consolidation_saves_lines(board):
     result = run("bom", board / "board.toml", "--quiet")
     assert result.exit_code == 0, result.output
-    rows = list(csv.DictReader(io.StringIO(result.stdout)))
+    assert result.stdout_bytes.startswith(b"\xef\xbb\xbfline,")  # UTF-8 byte-order mark
+    rows = list(csv.DictReader(io.StringIO(result.stdout.removeprefix("\ufeff"))))
+    # the columns of earlier versions come first, in their order; new ones follow
     assert rows and list(rows[0]) == [
         "line", "quantity", "references", "value", "code", "ohms", "series", "tolerance",
         "tcr_ppm_per_c", "package", "imperial", "metric", "mount", "rated_power_w",
-        "in_stock", "on_hand", "to_buy"]
+        "in_stock", "on_hand", "to_buy", "voltage_rating_v", "technology", "description"]
     # 4 networks (b twice) x 2 BOM parts; the 1M model resistor stays off the BOM
     assert sum(int(r["quantity"]) for r in rows) == 8
     assert all(r["package"] == "0603" and r["imperial"] == "0603" and r["metric"] == "1608M"
@@ -146,10 +148,10 @@ def test_stock_marks_lines_and_shortfalls(board):
     doc = json.loads(run("bom", board / "board.toml", "--format", "json", "--quiet",
                          "--stock", stock).stdout)
     line = next(r for r in doc["lines"] if r["code"] == first["code"])
-    assert line["in_stock"] == "yes" and line["on_hand"] == 1
+    assert line["in_stock"] is True and line["on_hand"] == 1
     assert line["to_buy"] == line["quantity"] - 1
     others = [r for r in doc["lines"] if r["code"] != first["code"]]
-    assert all(r["in_stock"] == "no" and r["to_buy"] == r["quantity"] for r in others)
+    assert all(r["in_stock"] is False and r["to_buy"] == r["quantity"] for r in others)
 
 
 def test_stock_only_restricts_picks(board):
@@ -164,7 +166,7 @@ def test_stock_only_restricts_picks(board):
                  "--format", "json", "--quiet")
     assert result.exit_code == 0, result.output
     doc = json.loads(result.stdout)
-    assert all(r["in_stock"] == "yes" and r["to_buy"] == 0 for r in doc["lines"])
+    assert all(r["in_stock"] is True and r["to_buy"] == 0 for r in doc["lines"])
     assert all(r["ohms"] in shelf for r in doc["lines"])
     stock.write_text("value,package,tolerance,quantity\n1k,0603,1%,100\n", encoding="utf-8")
     result = run("bom", board / "board.toml", "--stock", stock, "--stock-only", "--quiet")

@@ -135,8 +135,8 @@ def test_a_stock_list_without_packages_matches_any_package(tmp_path):
     doc = json.loads(run(board, "--stock", tmp_path / "shelf.csv", "--format", "json",
                          "--quiet").output)
     by_value = {line["value"]: line for line in doc["lines"]}
-    assert by_value["10 kΩ"]["in_stock"] == "yes" and by_value["10 kΩ"]["to_buy"] == 1
-    assert by_value["20 kΩ"]["in_stock"] == "yes" and by_value["20 kΩ"]["to_buy"] == 0
+    assert by_value["10 kΩ"]["in_stock"] is True and by_value["10 kΩ"]["to_buy"] == 1
+    assert by_value["20 kΩ"]["in_stock"] is True and by_value["20 kΩ"]["to_buy"] == 0
 
 
 def test_summary_says_what_the_consolidation_proved(tmp_path):

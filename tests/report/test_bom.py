@@ -1,0 +1,146 @@
+"""BOM output forms: encodings a spreadsheet reads in any locale, designators listed or as
+ranges, one row per designator for a board tool, the purchaser's columns and typed JSON.
+
+Values as engineers write them: 4k7 = 4.7 kΩ [IEC60062]; the package table's ratings
+[CP-chip-ratings].
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+
+import pytest
+from click.testing import CliRunner
+
+from synth.cli import cli
+
+FIXED = """
+[design]
+title = "fixed {name}"
+package = "0603"
+
+[[source]]
+ref = "V1"
+kind = "voltage"
+plus = "in"
+minus = "gnd"
+value = "10 V"
+
+[[resistor]]
+ref = "R1"
+nodes = ["in", "out"]
+value = "4k7"
+tolerance = "1%"
+tcr = "100 ppm/C"
+
+[[resistor]]
+ref = "R2"
+nodes = ["out", "gnd"]
+value = "4k7"
+tolerance = "1%"
+tcr = "100 ppm/C"
+
+[[resistor]]
+ref = "R3"
+nodes = ["out", "gnd"]
+value = "10k"
+tolerance = "1%"
+tcr = "100 ppm/C"
+"""
+
+
+@pytest.fixture
+def board(tmp_path):
+    (tmp_path / "a.toml").write_text(FIXED.format(name="a"), encoding="utf-8")
+    (tmp_path / "board.toml").write_text(
+        '[board]\ntitle = "fixed"\n[[network]]\nfile = "a.toml"\ncount = 2\n',
+        encoding="utf-8")
+    return tmp_path / "board.toml"
+
+
+def run(*args):
+    return CliRunner().invoke(cli, [str(a) for a in args])
+
+
+def rows(text):
+    return list(csv.DictReader(io.StringIO(text.removeprefix("\ufeff"))))
+
+
+def test_purchaser_columns_and_explicit_designators(board):
+    result = run("bom", board, "--quiet")
+    assert result.exit_code == 0, result.output
+    first, second = rows(result.stdout)
+    # two copies of R1, R2 (4k7) and R3 (10k); the second copy renumbered R4-R6
+    assert first["references"] == "R1, R2, R4, R5" and first["quantity"] == "4"
+    assert (first["value"], first["tolerance"], first["tcr_ppm_per_c"]) == ("4.7 kΩ", "1%", "100.0")
+    assert (first["imperial"], first["metric"], first["rated_power_w"]) == ("0603", "1608M", "0.1")
+    assert (first["voltage_rating_v"], first["technology"]) == ("50.0", "thick film")
+    assert first["description"] == "RES 4.7 kΩ 1 % 0603 0.1 W 100 ppm/°C"
+    assert second["references"] == "R3, R6"
+
+
+def test_ranges_on_request(board):
+    first = rows(run("bom", board, "--quiet", "--ranges").stdout)[0]
+    assert first["references"] == "R1, R2, R4, R5"  # runs of three or more collapse
+    three = board.parent / "three.toml"
+    three.write_text('[[network]]\nfile = "a.toml"\ncount = 3\n', encoding="utf-8")
+    assert rows(run("bom", three, "--quiet", "--ranges").stdout)[0]["references"] == (
+        "R1, R2, R4, R5, R7, R8")
+    ascii_text = run("bom", three, "--quiet", "--ranges", "--format", "markdown",
+                     "--encoding", "ascii").stdout
+    assert "4.7 kohm" in ascii_text and "ppm/degC" in ascii_text and ascii_text.isascii()
+
+
+def test_encodings(board):
+    plain = run("bom", board, "--quiet", "--encoding", "utf-8")
+    assert plain.stdout_bytes.startswith(b"line,") and "4.7 kΩ".encode() in plain.stdout_bytes
+    ascii_out = run("bom", board, "--quiet", "--encoding", "ascii")
+    assert ascii_out.stdout_bytes.isascii()
+    first = rows(ascii_out.stdout)[0]
+    assert first["value"] == "4.7 kohm"
+    assert first["description"] == "RES 4.7 kohm 1 % 0603 0.1 W 100 ppm/degC"
+    target = board.parent / "bom.csv"
+    assert run("bom", board, "--quiet", "--output", target).exit_code == 0
+    assert target.read_bytes().startswith(b"\xef\xbb\xbfline,")
+
+
+@pytest.mark.parametrize(("args", "fragment"), [
+    (("--format", "json", "--encoding", "utf-8-sig"), "--encoding utf-8-sig goes with CSV"),
+    (("--encoding", "latin-1"), "Invalid value for '--encoding'"),
+])
+def test_refused_encodings(board, args, fragment):
+    result = run("bom", board, "--quiet", *args)
+    assert result.exit_code == 2 and fragment in result.stderr
+
+
+def test_ascii_refuses_other_characters(board, tmp_path):
+    board.write_text(board.read_text().replace('"fixed"', '"Gewächshaus"'), encoding="utf-8")
+    result = run("bom", board, "--quiet", "--format", "markdown", "--encoding", "ascii")
+    assert result.exit_code == 2
+    assert "--encoding ascii: output line 1 holds 'ä'" in result.stderr
+    assert len(result.stderr.strip().splitlines()) == 1
+
+
+def test_per_designator_rows(board):
+    result = run("bom", board, "--quiet", "--format", "per-designator")
+    assert result.exit_code == 0, result.output
+    table = rows(result.stdout)
+    assert [r["designator"] for r in table] == ["R1", "R2", "R3", "R4", "R5", "R6"]
+    assert [r["code"] for r in table] == ["4K7", "4K7", "10K", "4K7", "4K7", "10K"]
+    fourth = table[3]
+    assert (fourth["network"], fourth["designator_in_design"], fourth["line"]) == (
+        "a #2", "R1", "1")
+    assert fourth["description"] == "RES 4.7 kΩ 1 % 0603 0.1 W 100 ppm/°C"
+
+
+def test_json_values_are_typed(board):
+    doc = json.loads(run("bom", board, "--quiet", "--format", "json").stdout)
+    assert doc["schema_version"] == 1
+    line = doc["lines"][0]
+    assert line["in_stock"] is False and line["quantity"] == 4 and line["ohms"] == 4700.0
+    assert line["tolerance_fraction"] == 0.01 and line["voltage_rating_v"] == 50.0
+    assert line["designators"] == ["R1", "R2", "R4", "R5"] and line["stock"] == {}
+    assert doc["placements"][3] == {"designator": "R4", "network": "a #2", "original": "R1",
+                                    "line": 1}
