@@ -18,6 +18,7 @@ import json
 import math
 import sys
 import time
+import warnings
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, fields
 from typing import IO, TYPE_CHECKING, Any, TypeVar, cast
@@ -44,7 +45,13 @@ class BadInput(click.ClickException):
     exit_code = 2
 
     def show(self, file: IO[Any] | None = None) -> None:
-        click.echo(f"rnsynth: {self.format_message()}", err=True)
+        message = self.format_message().replace("\r", "\\r").replace("\n", "\\n")
+        click.echo(f"rnsynth: {message}", err=True)
+
+
+def _one_line(exc: BaseException) -> str:
+    """An error's message on one line (a newline in a user's text is shown as \\n)."""
+    return str(exc).replace("\r", "\\r").replace("\n", "\\n")
 
 
 def friendly(command: F) -> F:
@@ -53,12 +60,16 @@ def friendly(command: F) -> F:
     @functools.wraps(command)
     def run(*args: Any, **kwargs: Any) -> Any:
         try:
-            return command(*args, **kwargs)
+            with warnings.catch_warnings():
+                # float overflow in a solve is judged by its result (non-finite values are
+                # refused or reported), not printed as a warning with a source line
+                warnings.simplefilter("ignore", RuntimeWarning)
+                return command(*args, **kwargs)
         except InfeasibleError as exc:
-            click.echo(f"rnsynth: {exc}", err=True)
+            click.echo(f"rnsynth: {_one_line(exc)}", err=True)
             sys.exit(1)
         except (DesignError, RnsynthError) as exc:
-            click.echo(f"rnsynth: {exc}", err=True)
+            click.echo(f"rnsynth: {_one_line(exc)}", err=True)
             sys.exit(2)
         except KeyboardInterrupt:
             # outputs are written atomically: an interrupted run leaves no partial file
@@ -68,7 +79,8 @@ def friendly(command: F) -> F:
             # a numerical or solver failure (a singular network, CP-SAT refusing a model)
             # is reported, never shown as a traceback
             name = type(exc).__name__
-            click.echo(f"rnsynth: the calculation could not be completed ({name}: {exc}); "
+            click.echo(f"rnsynth: the calculation could not be completed ({name}: "
+                       f"{_one_line(exc)}); "
                        "check the design's values and limits", err=True)
             sys.exit(2)
 

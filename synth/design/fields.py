@@ -124,5 +124,9 @@ def item_label(kind: str, index: int, raw: Any, key: str = "ref") -> str:
     ('resistor R3', 'target #2')
     """
     if isinstance(raw, Mapping) and isinstance(raw.get(key), str):
-        return f"{kind} {raw[key]!r}" if key == "name" else f"{kind} {raw[key]}"
+        name = raw[key]
+        if key != "name" and name.isprintable() and len(name) <= 40:
+            return f"{kind} {name}"
+        shown = repr(name)  # quoted: a newline or control character stays on the line
+        return f"{kind} {shown if len(shown) <= 42 else shown[:38] + '...' + shown[0]}"
     return f"{kind} #{index}"

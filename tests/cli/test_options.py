@@ -75,3 +75,10 @@ def test_check_json_of_every_example_is_strict(path):
     result = CliRunner().invoke(cli, ["check", str(path), "--json", "--samples", "200"])
     assert result.exit_code in (0, 1), result.output
     json.dumps(json.loads(result.output), allow_nan=False)
+
+
+def test_a_newline_in_a_reference_does_not_split_the_message(tmp_path):
+    path = tmp_path / "design.toml"
+    path.write_text('[[source]]\nref = "a\\nb"\nkind = "x"\n', encoding="utf-8")
+    line = refused("check", str(path))
+    assert "source 'a\\nb'" in line and "kind 'x' is not known" in line
