@@ -31,10 +31,15 @@ def write_atomic(path: str | Path, text: str, *, force: bool = False) -> Path:
     Raises
     ------
     DesignError
-        When the file exists and ``force`` is not set, or the folder is missing
-        or not writable.
+        When the file exists and ``force`` is not set, the path is a device, a pipe or a
+        folder (never replaced, even with ``force``), the folder is missing or
+        not writable, or the write fails (a full disk, the file-size limit); the
+        temporary file is then removed.
     """
     target = Path(path)
+    if target.exists() and not target.is_file():
+        # a device (/dev/full, /dev/null), a pipe or a folder: never replaced
+        raise DesignError(f"{target}: is not a regular file; write to a file name instead")
     if target.exists() and not force:
         raise DesignError(f"{target}: already exists; pass --force to replace it")
     folder = target.parent if str(target.parent) else Path(".")
@@ -48,6 +53,10 @@ def write_atomic(path: str | Path, text: str, *, force: bool = False) -> Path:
         with os.fdopen(handle, "w", encoding="utf-8", newline="") as stream:
             stream.write(text)
         os.replace(temp, target)
+    except OSError as exc:  # a full disk, the file-size limit, a folder gone read-only
+        Path(temp).unlink(missing_ok=True)
+        raise DesignError(f"{target}: could not be written ({exc.strerror or exc}); nothing "
+                          "was written") from None
     except BaseException:
         Path(temp).unlink(missing_ok=True)
         raise

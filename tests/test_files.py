@@ -51,7 +51,53 @@ def test_a_failed_rename_keeps_the_old_file_and_leaves_no_temporary(tmp_path, mo
         raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
 
     monkeypatch.setattr(files.os, "replace", full)
-    with pytest.raises(OSError):
+    with pytest.raises(DesignError, match=r"could not be written \(No space left on device\)"):
         write_atomic(target, "new\n", force=True)
     assert target.read_text(encoding="utf-8") == "old\n"
     assert sorted(p.name for p in tmp_path.iterdir()) == ["bom.csv"]
+
+
+@pytest.mark.parametrize("code", [errno.ENOSPC, errno.EFBIG])
+def test_a_write_that_fails_says_why_and_leaves_no_temporary(tmp_path, monkeypatch, code):
+    # a full disk, or the process's file-size limit (RLIMIT_FSIZE), while writing
+    real = files.os.fdopen
+
+    class Failing:
+        def __init__(self, *args, **kwargs):
+            self.stream = real(*args, **kwargs)
+
+        def __enter__(self):
+            return self
+
+        def __exit__(self, *exc):
+            self.stream.close()
+
+        def write(self, text):
+            raise OSError(code, os.strerror(code))
+
+    monkeypatch.setattr(files.os, "fdopen", Failing)
+    with pytest.raises(DesignError, match=rf"could not be written \({os.strerror(code)}\)"):
+        write_atomic(tmp_path / "bom.csv", "x" * 100)
+    assert list(tmp_path.iterdir()) == []
+
+
+@pytest.mark.skipif(not os.path.exists("/dev/full"), reason="needs /dev/full")
+def test_a_device_is_refused():
+    # without --force only: a regression must not replace a real device while testing
+    with pytest.raises(DesignError, match="/dev/full: is not a regular file"):
+        write_atomic("/dev/full", "x")
+
+
+@pytest.mark.skipif(not hasattr(os, "mkfifo"), reason="needs named pipes")
+def test_a_pipe_is_never_replaced_even_with_force(tmp_path):
+    fifo = tmp_path / "bom.csv"
+    os.mkfifo(fifo)
+    with pytest.raises(DesignError, match="is not a regular file"):
+        write_atomic(fifo, "x", force=True)
+    assert not fifo.is_file() and fifo.exists()
+
+
+def test_a_folder_is_never_replaced(tmp_path):
+    (tmp_path / "out").mkdir()
+    with pytest.raises(DesignError, match="is not a regular file"):
+        write_atomic(tmp_path / "out", "x", force=True)

@@ -28,8 +28,13 @@ COSTS = ("supply", "hottest", "distinct")
 """What the candidate scatter puts on its horizontal axis."""
 
 
+_SLUG_LENGTH = 40  # characters of a label kept in a file name
+
+
 def _slug(text: str) -> str:
-    return re.sub(r"[^A-Za-z0-9]+", "-", text).strip("-").lower() or "target"
+    """A file-name part from a label: ASCII letters, digits and dashes, at most 40 long."""
+    slug = re.sub(r"[^A-Za-z0-9]+", "-", text).strip("-").lower()[:_SLUG_LENGTH]
+    return slug.strip("-") or "target"
 
 
 def _save(figure: Figure, folder: Path, stem: str) -> list[Path]:
@@ -41,6 +46,9 @@ def _save(figure: Figure, folder: Path, stem: str) -> list[Path]:
         try:
             figure.savefig(temp, format=suffix[1:], dpi=120, bbox_inches="tight")
             os.replace(temp, target)
+        except OSError as exc:  # a full disk, the file-size limit
+            Path(temp).unlink(missing_ok=True)
+            raise DesignError(f"{target}: could not be written ({exc.strerror or exc})") from None
         except BaseException:
             Path(temp).unlink(missing_ok=True)
             raise
@@ -82,10 +90,11 @@ def target_histograms(design: Design, spread: SpreadResult, folder: str | Path,
         axes.axvline(t.worst_high, color="black", linestyle="--")
         axes.axvline(t.nominal, color="black", linestyle=":", label="nominal")
         unit = f" ({target.unit})" if target.unit else ""
-        axes.set_xlabel(f"{t.label}{unit}")
+        # a user's label is drawn as plain text: "$" and "^" are not math text
+        axes.set_xlabel(f"{t.label}{unit}", parse_math=False)
         axes.set_ylabel("samples")
         inside = "" if t.inside is None else f", {t.inside * 100:.3g}% inside the window"
-        axes.set_title(f"{t.label}{inside}")
+        axes.set_title(f"{t.label}{inside}", parse_math=False)
         axes.legend(loc="upper left", bbox_to_anchor=(1.02, 1.0), fontsize="small")
         written += _save(figure, out, f"{stem}-{k}-{_slug(t.label)}")
     return written
@@ -132,6 +141,6 @@ def candidate_scatter(result: SynthesisResult, folder: str | Path, cost: str = "
     if cost == "supply":
         axes.xaxis.set_major_formatter(EngFormatter(unit="A"))
     axes.set_ylabel("largest relative error (%)")
-    axes.set_title(result.design.title or "ranked candidates")
+    axes.set_title(result.design.title or "ranked candidates", parse_math=False)
     axes.legend(loc="upper left", bbox_to_anchor=(1.02, 1.0), fontsize="small")
     return _save(figure, out, stem)

@@ -75,7 +75,7 @@ def test_a_failed_save_leaves_no_partial_file(tmp_path, result, monkeypatch):
         raise OSError("disk full")
 
     monkeypatch.setattr(Figure, "savefig", broken)
-    with pytest.raises(OSError, match="disk full"):
+    with pytest.raises(DesignError, match=r"could not be written \(disk full\)"):
         candidate_scatter(result, tmp_path)
     assert list(tmp_path.iterdir()) == []
 
@@ -95,3 +95,15 @@ def test_histograms_of_each_target_with_samples(tmp_path):
     none = analyse_spread(design, values, SpreadSettings(samples=0))
     assert target_histograms(design, none, tmp_path / "empty") == []
     assert list((tmp_path / "empty").iterdir()) == []
+
+
+def test_labels_are_plain_text_and_file_names_short(tmp_path):
+    label = "gain $A^{" + "x" * 300 + " ^_$ unbalanced $"
+    design = divider({"name": label, "voltage": "out", "at_most": "4.2 V"})
+    spread = analyse_spread(design, {"R1": 20e3}, SpreadSettings(samples=500, seed=3))
+    with matplotlib.rc_context({"svg.fonttype": "none"}):
+        paths = target_histograms(design, spread, tmp_path, stem="probe")
+    assert len(paths) == 2
+    assert all(len(p.name) <= len("probe-1-") + 40 + len(".png") for p in paths)
+    assert paths[0].name.startswith("probe-1-gain-a-xxx")
+    assert "gain $A^{" in svg_text(paths[1])  # drawn as written, not parsed as math text
