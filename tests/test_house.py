@@ -30,7 +30,7 @@ LAYERS = (
     ("rating",),
     ("catalog",),
     ("units", "inputs"),
-    ("errors",),
+    ("errors", "schemas"),
 )
 """Each module's layer is named by its first dotted part below ``synth``."""
 

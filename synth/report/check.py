@@ -174,9 +174,13 @@ def part_json(part: PartReport) -> dict[str, Any]:
     }
 
 
+CHECK_SCHEMA_VERSION = 1  # see synth/schemas/check.schema.json
+
+
 def check_json(result: CheckResult) -> dict[str, Any]:
     """The JSON document ``rnsynth check --json`` prints."""
     doc: dict[str, Any] = {
+        "schema_version": CHECK_SCHEMA_VERSION,
         "file": result.design.origin,
         "title": result.design.title,
         "ok": result.ok,

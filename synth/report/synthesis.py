@@ -137,10 +137,14 @@ def _candidate_json(candidate: Candidate) -> dict[str, Any]:
     }
 
 
+DESIGN_SCHEMA_VERSION = 1  # see synth/schemas/design.schema.json
+
+
 def design_json(result: SynthesisResult) -> dict[str, Any]:
     """The JSON document ``rnsynth design --json`` prints."""
     best = result.candidates[0] if result.candidates else None
     return {
+        "schema_version": DESIGN_SCHEMA_VERSION,
         "file": result.design.origin,
         "title": result.design.title,
         "proven_optimal": result.proven_optimal,

@@ -1,0 +1,18 @@
+"""JSON Schemas of the JSON documents rnsynth writes: ``check``, ``design`` and ``bom``."""
+
+from __future__ import annotations
+
+__all__ = ["schema_path"]
+
+from pathlib import Path
+
+
+def schema_path(name: str) -> Path:
+    """The schema file of one output (``"check"``, ``"design"`` or ``"bom"``).
+
+    Examples
+    --------
+    >>> schema_path("bom").name
+    'bom.schema.json'
+    """
+    return Path(__file__).with_name(f"{name}.schema.json")
