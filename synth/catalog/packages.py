@@ -148,6 +148,9 @@ def _cached_package_table(path: Path, _mtime_ns: int) -> dict[str, PackageRating
         if rating.name in table:
             raise DesignError(f"{path}, line {number}: package {rating.name!r} is listed twice")
         table[rating.name] = rating
+    if not table:
+        raise DesignError(f"{path}: the package table has no rows; add one row per package "
+                          f"under a header naming {', '.join(_PACKAGE_COLUMNS)}")
     return table
 
 

@@ -69,6 +69,8 @@ def test_table_rereads_after_an_edit(tmp_path):
     ([GOOD.replace(",house table", "")], HEADER.replace(",source", ""),
      "line 3: column 'source' is missing"),
     ([], "# only comments", "the file has no header row"),
+    ([], HEADER, "the package table has no rows"),
+    ([], "localhost", "the package table has no rows"),  # any one-line file
 ])
 def test_malformed_tables_are_refused(tmp_path, rows, header, fragment):
     path = table(tmp_path, *rows, header=header)
