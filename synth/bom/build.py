@@ -28,7 +28,7 @@ from synth.bom.lines import (
 )
 from synth.catalog.packages import PackageRating
 from synth.catalog.series import coarsest_series
-from synth.catalog.stock import StockItem, load_stock
+from synth.catalog.stock import StockItem, load_stock, stock_fits
 from synth.checking import check
 from synth.design.board import Board
 from synth.design.model import Design, Resistor
@@ -68,11 +68,21 @@ def _stock_match(key: LineKey, stock: list[StockItem], packages: Mapping[str, Pa
         if item.package is None or not key.package:
             return True
         a, b = packages.get(item.package), packages.get(key.package)
-        return item.package == key.package or (a is not None and a is b)
+        return item.package.casefold() == key.package.casefold() or (a is not None and a is b)
 
     return [item for item in stock
             if abs(item.value - key.value) <= 1e-9 * key.value and same_package(item)
-            and (item.tolerance is None or item.tolerance <= key.tolerance + 1e-12)]
+            and stock_fits(item, key.tolerance, key.tcr)]
+
+
+def _passed(matches: list[StockItem]) -> tuple[tuple[str, str], ...]:
+    """The stock list's own columns of the matching rows, distinct values joined by "; "."""
+    values: dict[str, list[str]] = {}
+    for item in matches:
+        for column, text in item.extra:
+            if text and text not in values.setdefault(column, []):
+                values[column].append(text)
+    return tuple((column, "; ".join(texts)) for column, texts in values.items())
 
 
 def _renumber(refs: list[str], used: set[str], highest: dict[str, int]) -> dict[str, str]:
@@ -203,11 +213,14 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
             number=number, key=key, series=coarsest_series(key.value) or "-",
             rating=packages.get(key.package) if key.package else None, quantity=need,
             references=tuple(refs), on_hand=on_hand, in_stock=bool(matches),
-            shortfall=shortfall,
+            shortfall=shortfall, stock=_passed(matches),
         ))
+        if stock_only and shortfall:
+            notes.append(f"line {number}: {need} needed, {on_hand} on hand; {shortfall} to buy")
     number_of = {line.key: line.number for line in lines}
     placements = tuple(Placement(designator=ref, network=label, original=original,
                                  line=number_of[key]) for ref, label, original, key in placed)
     return BomResult(board=board, lines=tuple(lines), networks=tuple(chosen),
                      renumbered=renumbered, consolidation=outcome, lines_before=before,
-                     notes=tuple(notes), placements=placements)
+                     notes=tuple(notes), placements=placements,
+                     stock_columns=tuple(dict.fromkeys(c for item in stock for c, _ in item.extra)))

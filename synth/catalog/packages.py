@@ -70,8 +70,11 @@ _PACKAGE_COLUMNS = (
 )
 
 
-def read_csv_rows(path: Path) -> Iterator[tuple[int, dict[str, str]]]:
+def read_csv_rows(path: Path, delimiters: str = ",") -> Iterator[tuple[int, dict[str, str]]]:
     """Yield ``(line_number, row)`` from a CSV file, skipping ``#`` comment lines.
+
+    With several ``delimiters`` (``",;"``), the one the header row holds most often separates
+    the fields.
 
     Raises
     ------
@@ -86,7 +89,8 @@ def read_csv_rows(path: Path) -> Iterator[tuple[int, dict[str, str]]]:
     ]
     if not numbered:
         raise DesignError(f"{path}: the file has no header row; add one naming the columns")
-    reader = csv.DictReader(line for _, line in numbered)
+    delimiter = max(delimiters, key=numbered[0][1].count)
+    reader = csv.DictReader((line for _, line in numbered), delimiter=delimiter)
     rows = iter(reader)
     for number, _ in numbered[1:]:
         try:

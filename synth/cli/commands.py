@@ -136,7 +136,7 @@ def design_command(design_file: str, search: SearchOptions, spread: SpreadOption
 @cli.command("bom")
 @click.argument("files", nargs=-1, required=True, type=click.Path(dir_okay=False))
 @click.option("--stock", type=click.Path(dir_okay=False), default=None,
-              help="House stock list (CSV: value, package, tolerance, quantity).")
+              help="House stock list (CSV: value, package, tolerance, tcr, quantity, ...).")
 @click.option("--stock-only", is_flag=True,
               help="Choose only values the stock list holds.")
 @click.option("--pool", type=int, default=None,

@@ -26,7 +26,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from synth.catalog.series import series_rank, series_values
-from synth.catalog.stock import load_stock
+from synth.catalog.stock import load_stock, stock_fits
 from synth.design.model import Resistor
 from synth.design.position import Position
 from synth.errors import DesignError
@@ -92,7 +92,13 @@ def _base_values(resistor: Resistor, origin: str) -> tuple[np.ndarray, str]:
     if span is not None and resistor.combine is not None:
         span = part_range(resistor.combine, *span)
     if resistor.stock_path is not None:
-        values = np.unique([item.value for item in load_stock(resistor.stock_path)])
+        # a row fits when its package (if given) is the part's and its tolerance and TCR are
+        # at least as good as the part's
+        wanted = (resistor.package or "").casefold()
+        values = np.unique([item.value for item in load_stock(resistor.stock_path)
+                            if (item.package is None or not wanted
+                                or item.package.casefold() == wanted)
+                            and stock_fits(item, resistor.tolerance, resistor.tcr)])
         label = resistor.stock_path.name
         if span is not None:
             low, high = span

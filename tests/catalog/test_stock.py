@@ -32,7 +32,10 @@ def test_values_packages_tolerances_and_quantities(tmp_path):
 
 @pytest.mark.parametrize(("text", "fragment"), [
     ("ohms\n1k\n", "the header has no 'value' column; name the columns value, package"),
-    ("value,colour\n1k,red\n", "line 2: unknown column 'colour'; use value, package"),
+    ("value,tolerence\n1k,1%\n", "line 2: unknown column 'tolerence'; did you mean "
+                                 "'tolerance'"),
+    ("value,tcr\n1k,hot\n", "line 2: 'hot' is not a TCR"),
+    ("value,tcr\n1k,-25\n", "line 2: '-25' is not a TCR"),
     ("value\n1k\nfour\n", "line 3: 'four' is not a resistance; write a resistance such as 4k7"),
     ("value,tolerance\n1k,lots\n", "line 2: 'lots' is not a percentage"),
     ("value\n0\n", "line 2: value '0' must be positive"),
@@ -45,6 +48,20 @@ def test_malformed_stock_lists_are_refused(tmp_path, text, fragment):
     with pytest.raises(DesignError, match=fragment) as raised:
         load_stock(stock(tmp_path, text))
     assert str(raised.value).startswith(str(tmp_path / "shelf.csv"))
+
+
+def test_real_inventory_exports(tmp_path):
+    # a ';'-separated export with headers in any case, decimal commas and its own columns
+    path = stock(tmp_path, "Value;Package;TOLERANCE;TCR;Quantity;Part Number;Location;Price\n"
+                           "4,7k;0603;1%;25 ppm/C;20;RC0603-4K7;A3;0,01\n"
+                           "10k;0805;0,5%;50;5;;B1;\n")
+    first, second = load_stock(path)
+    assert (first.value, first.tolerance, first.tcr, first.quantity) == (4700.0, 0.01, 25e-6, 20)
+    assert first.extra == (("part_number", "RC0603-4K7"), ("location", "A3"), ("price", "0,01"))
+    assert (second.value, second.package, second.tolerance, second.tcr) == (
+        10e3, "0805", 0.005, 50e-6)
+    assert stock(tmp_path, "value,colour\n1k,red\n").exists()
+    assert load_stock(tmp_path / "shelf.csv")[0].extra == (("colour", "red"),)
 
 
 def test_unreadable_stock_list_is_refused(tmp_path):
@@ -100,6 +117,23 @@ def test_bad_shelf_from_the_command_line(tmp_path, shelf, fragment):
     result = run_design(tmp_path, shelf)
     assert result.exit_code == 2 and fragment in result.stderr
     assert len(result.stderr.strip().splitlines()) == 1
+
+
+def test_design_from_the_shelf_honours_package_tolerance_and_tcr(tmp_path):
+    import json
+
+    # R1 is an 0603, 1 %, 100 ppm/C part: the 1k reels are an 0805, a 5 % and a 250 ppm
+    # one, none fits; the 1k2 reel (25 ppm, better than needed) does
+    stock(tmp_path, "value,package,tolerance,tcr\n1k,0805,1%,50\n1k,0603,5%,50\n"
+                    "1k,0603,1%,250\n1k2,0603,1%,25\n")
+    design = tmp_path / "d.toml"
+    design.write_text(DESIGN.replace('choose = "shelf.csv"',
+                                     'choose = "shelf.csv"\npackage = "0603"\n'
+                                     'tolerance = "1%"\ntcr = "100 ppm/C"'), encoding="utf-8")
+    result = CliRunner().invoke(cli, ["design", str(design), "--json"])
+    assert result.exit_code in (0, 1), result.output
+    # none of the three 1k reels fits, so the nearest fitting value 1k2 is chosen
+    assert json.loads(result.output)["candidates"][0]["values"]["R1"] == 1200.0
 
 
 def test_row_longer_than_the_header_is_refused(tmp_path):

@@ -144,3 +144,34 @@ def test_json_values_are_typed(board):
     assert line["designators"] == ["R1", "R2", "R4", "R5"] and line["stock"] == {}
     assert doc["placements"][3] == {"designator": "R4", "network": "a #2", "original": "R1",
                                     "line": 1}
+
+
+def test_stock_rows_match_package_tcr_and_pass_their_columns(board):
+    shelf = board.parent / "shelf.csv"
+    # 4k7: the 0805 reel and the 250 ppm reel do not fit a 0603 100 ppm/C part; the 25 ppm
+    # 0603 reel does (better than needed), 3 on hand of 4 needed; 10k: none fits
+    shelf.write_text("Value;Package;Tolerance;TCR;Quantity;Part Number;Location\n"
+                     "4k7;0805;1%;50;100;PN-0805;A1\n4k7;0603;1%;250;100;PN-250;A2\n"
+                     "4k7;0603;1%;25;3;PN-25;A3\n10k;1206;1%;50;100;PN-1206;A4\n",
+                     encoding="utf-8")
+    result = run("bom", board, "--stock", shelf, "--encoding", "utf-8")
+    assert result.exit_code == 0, result.output
+    first, second = rows(result.stdout)
+    assert (first["in_stock"], first["on_hand"], first["to_buy"]) == ("yes", "3", "1")
+    assert (first["stock_part_number"], first["stock_location"]) == ("PN-25", "A3")
+    assert (second["in_stock"], second["to_buy"], second["stock_part_number"]) == ("no", "2", "")
+    assert ("short: line 1 RES 4.7 kΩ 1 % 0603 0.1 W 100 ppm/°C: need 4, on hand 3, buy 1"
+            in result.stderr)
+    doc = json.loads(run("bom", board, "--stock", shelf, "--format", "json",
+                         "--quiet").stdout)
+    assert doc["lines"][0]["stock"] == {"part_number": "PN-25", "location": "A3"}
+    assert doc["lines"][1]["stock"] == {}
+
+
+def test_stock_only_notes_the_shortfall(board):
+    shelf = board.parent / "shelf.csv"
+    shelf.write_text("value,package,quantity\n4k7,0603,3\n10k,0603,2\n", encoding="utf-8")
+    result = run("bom", board, "--stock", shelf, "--stock-only", "--format", "json",
+                 "--quiet")
+    assert result.exit_code == 0, result.output
+    assert json.loads(result.stdout)["notes"] == ["line 1: 4 needed, 3 on hand; 1 to buy"]
