@@ -11,7 +11,7 @@ free number with the same letters, in board order.
 
 from __future__ import annotations
 
-__all__ = ["bom_parts", "build_bom"]
+__all__ = ["bom_parts", "build_bom", "renumber"]
 
 from collections import defaultdict
 from collections.abc import Callable, Mapping
@@ -85,27 +85,57 @@ def _passed(matches: list[StockItem]) -> tuple[tuple[str, str], ...]:
     return tuple((column, "; ".join(texts)) for column, texts in values.items())
 
 
-def _renumber(refs: list[str], used: set[str], highest: dict[str, int]) -> dict[str, str]:
-    mapping = {}
-    for ref in refs:
-        if ref not in used:
-            new = ref
-        else:
-            letters, _, rest = natural_order(ref)
-            highest[letters] = highest.get(letters, 0) + 1
-            new = f"{letters}{highest[letters]}{rest}"
-            while new in used:
+def renumber(instances: list[list[str]], every: bool = False) -> list[dict[str, str]]:
+    """Per network instance, the designators that change (old to new).
+
+    By default every designator the design files give is kept, except a repeat of one an
+    earlier instance already uses: a repeated position (``R1``, or ``R1A`` and ``R1B`` of
+    one combined position, together) takes the next number above every number on the board
+    with the same letters.  With ``every``, each instance's positions are numbered from 1
+    per letters, in board order.
+
+    Examples
+    --------
+    >>> renumber([["R1", "R2"], ["R1", "R3"]])
+    [{}, {'R1': 'R4'}]
+    >>> renumber([["R5", "R7A", "R7B"], ["R5"]], every=True)
+    [{'R5': 'R1', 'R7A': 'R2A', 'R7B': 'R2B'}, {'R5': 'R3'}]
+    """
+    highest: dict[str, int] = {}
+    for refs in instances:
+        for ref in refs:
+            letters, number, _ = natural_order(ref)
+            highest[letters] = max(highest.get(letters, 0), number)
+    counter: dict[str, int] = {}
+    taken: set[str] = set()
+    out = []
+    for refs in instances:
+        bases: dict[tuple[str, int], list[tuple[str, str]]] = {}
+        for ref in refs:
+            letters, number, rest = natural_order(ref)
+            bases.setdefault((letters, number), []).append((ref, rest))
+        mapping = {}
+        for (letters, number), members in bases.items():
+            if every:
+                counter[letters] = counter.get(letters, 0) + 1
+                new_number = counter[letters]
+            elif any(ref in taken for ref, _ in members):
                 highest[letters] += 1
-                new = f"{letters}{highest[letters]}{rest}"
-            mapping[ref] = new
-        used.add(new)
-        letters, number, _ = natural_order(new)
-        highest[letters] = max(highest.get(letters, 0), number)
-    return mapping
+                new_number = highest[letters]
+            else:
+                new_number = number
+            for ref, rest in members:
+                new = f"{letters}{new_number}{rest}" if new_number != number else ref
+                if new != ref:
+                    mapping[ref] = new
+                taken.add(new)
+        out.append(mapping)
+    return out
 
 
 def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0,
-              progress: Callable[[str], None] | None = None) -> BomResult:
+              progress: Callable[[str], None] | None = None,
+              renumber_all: bool = False) -> BomResult:
     """Design every network of a board, consolidate values and list the parts.
 
     Parameters
@@ -117,6 +147,9 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
         Time limit of the consolidation, s.
     progress : callable, optional
         Called with each network's name as it is designed.
+    renumber_all : bool
+        Number every part afresh in board order (see :func:`renumber`); by default the
+        designators of the design files are kept, repeats only renumbered.
 
     Returns
     -------
@@ -179,8 +212,11 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
     outcome = consolidate(pools, in_stock=in_stock, time_limit_s=time_limit_s)
     before = len(set().union(*(p.lines[0] for p in pools)))
 
-    used: set[str] = set()
-    highest: dict[str, int] = {}
+    picked = [candidates[pick] for pick, candidates in zip(outcome.choice, options, strict=True)]
+    instances = [[ref for ref, _ in bom_parts(net.design, values)]
+                 for net, (_, values, _) in zip(board.networks, picked, strict=True)
+                 for _ in range(net.count)]
+    mappings = iter(renumber(instances, every=renumber_all))
     renumbered: dict[str, dict[str, str]] = {}
     refs_by_key: dict[LineKey, list[str]] = defaultdict(list)
     placed: list[tuple[str, str, str, LineKey]] = []
@@ -191,7 +227,7 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
         chosen.append(NetworkChoice(name=net.name, count=net.count, rank=rank, values=values,
                                     objective=objective, pool_size=len(candidates)))
         for copy in range(net.count):
-            mapping = _renumber([ref for ref, _ in parts], used, highest)
+            mapping = next(mappings)
             label = net.name if net.count == 1 else f"{net.name} #{copy + 1}"
             if mapping:
                 renumbered[label] = mapping

@@ -148,6 +148,9 @@ def design_command(design_file: str, search: SearchOptions, spread: SpreadOption
 @click.option("--encoding", type=click.Choice(["utf-8", "utf-8-sig", "ascii"]), default=None,
               help="Text encoding [default: utf-8-sig (with a byte-order mark) for CSV, "
                    "utf-8 otherwise]; ascii spells out ohm.")
+@click.option("--renumber", is_flag=True,
+              help="Number every part afresh in board order (R1, R2, ...); by default the "
+                   "design files' designators are kept and only repeats renumbered.")
 @click.option("--ranges", is_flag=True,
               help="Collapse runs of designators (R1–R4) instead of listing each.")
 @click.option("--output", type=click.Path(dir_okay=False), default=None,
@@ -158,7 +161,8 @@ def design_command(design_file: str, search: SearchOptions, spread: SpreadOption
 @click.option("--quiet", is_flag=True, help="No summary and no progress lines.")
 @friendly
 def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, pool: int | None,
-                form: str, encoding: str | None, ranges: bool, output: str | None,
+                form: str, encoding: str | None, renumber: bool, ranges: bool,
+                output: str | None,
                 force: bool, time_limit: float, quiet: bool) -> None:
     """Bill of materials for a board: design files and/or board files.
 
@@ -183,7 +187,8 @@ def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, poo
         if not quiet:
             click.echo(f"designing {name} ...", err=True)
 
-    result = build_bom(board, stock_only=stock_only, time_limit_s=time_limit, progress=note)
+    result = build_bom(board, stock_only=stock_only, time_limit_s=time_limit, progress=note,
+                       renumber_all=renumber)
     text = render_bom(result, form, ranges=ranges, encoding=encoding)
     if output is None:
         stream = click.get_binary_stream("stdout")

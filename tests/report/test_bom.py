@@ -175,3 +175,26 @@ def test_stock_only_notes_the_shortfall(board):
                  "--quiet")
     assert result.exit_code == 0, result.output
     assert json.loads(result.stdout)["notes"] == ["line 1: 4 needed, 3 on hand; 1 to buy"]
+
+
+def test_designators_written_are_kept(tmp_path):
+    from synth.bom.build import renumber
+
+    # a repeat moves above every number on the board; R3, written once, stays R3
+    assert renumber([["R1", "R2"], ["R1", "R3"]]) == [{}, {"R1": "R4"}]
+    assert renumber([["R1A", "R1B", "R9"], ["R1A", "R1B"]]) == [{}, {"R1A": "R10A",
+                                                                   "R1B": "R10B"}]
+    (tmp_path / "a.toml").write_text(FIXED.format(name="a").replace('"R2"', '"R20"')
+                                     .replace('"R3"', '"R30"'), encoding="utf-8")
+    (tmp_path / "b.toml").write_text(FIXED.format(name="b").replace('"R3"', '"R7"'),
+                                     encoding="utf-8")
+    board = tmp_path / "board.toml"
+    board.write_text('[[network]]\nfile = "a.toml"\n[[network]]\nfile = "b.toml"\n',
+                     encoding="utf-8")
+    doc = json.loads(run("bom", board, "--format", "json", "--quiet").stdout)
+    assert doc["renumbered"] == {"b": {"R1": "R31"}}
+    kept = sorted(p["designator"] for p in doc["placements"])
+    assert kept == ["R1", "R2", "R20", "R30", "R31", "R7"]
+    doc = json.loads(run("bom", board, "--format", "json", "--quiet", "--renumber").stdout)
+    assert [p["designator"] for p in doc["placements"]] == [f"R{k}" for k in range(1, 7)]
+    assert doc["renumbered"]["a"] == {"R20": "R2", "R30": "R3"}
