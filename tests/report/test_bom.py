@@ -198,3 +198,21 @@ def test_designators_written_are_kept(tmp_path):
     doc = json.loads(run("bom", board, "--format", "json", "--quiet", "--renumber").stdout)
     assert [p["designator"] for p in doc["placements"]] == [f"R{k}" for k in range(1, 7)]
     assert doc["renumbered"]["a"] == {"R20": "R2", "R30": "R3"}
+
+
+def test_ascii_json_escapes_and_reads_back(board):
+    result = run("bom", board, "--quiet", "--format", "json", "--encoding", "ascii")
+    assert result.exit_code == 0 and result.stdout_bytes.isascii()
+    assert json.loads(result.stdout)["lines"][0]["value"] == "4.7 kΩ"
+
+
+@pytest.mark.parametrize(("shelf", "fragment"), [
+    ("value;tcr\n4k7;warm\n", "shelf.csv, line 2: 'warm' is not a TCR"),
+    ("Value,Quantitty\n4k7,3\n", "shelf.csv, line 2: unknown column 'quantitty'; did you mean "
+                                 "'quantity'?"),
+])
+def test_refused_stock_lists_from_the_command_line(board, shelf, fragment):
+    (board.parent / "shelf.csv").write_text(shelf, encoding="utf-8")
+    result = run("bom", board, "--quiet", "--stock", board.parent / "shelf.csv")
+    assert result.exit_code == 2 and fragment in result.stderr
+    assert len(result.stderr.strip().splitlines()) == 1
