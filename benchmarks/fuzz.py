@@ -2,7 +2,8 @@
 
 Run: python benchmarks/fuzz.py [--cases N] [--seed S]
 
-Draws N cases (default 10,000) from the generators of ``tests/fuzzing.py`` (the suite
+Draws N cases (default 10,000: design files, board files with stock lists, options)
+from the generators of ``tests/fuzzing.py`` (the suite
 runs a bounded number of the same kind), runs each in process, and prints the count of
 each outcome: ok (exit 0), fails (exit 1, a verdict), refused (exit 2, one line), usage
 (exit 2, click's usage message: an option of the wrong type or choice), and
@@ -22,7 +23,7 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "tests"))
 
-from fuzzing import design_case, option_args, outcome
+from fuzzing import board_case, design_case, option_args, outcome
 
 
 def main() -> int:
@@ -36,9 +37,12 @@ def main() -> int:
     start = time.monotonic()
     with tempfile.TemporaryDirectory() as folder:
         for _ in range(args.cases):
-            source = "design file" if rng.random() < 0.6 else "options"
-            command = design_case(rng, Path(folder)) if source == "design file" \
-                else option_args(rng)
+            draw = rng.random()
+            source = "design file" if draw < 0.55 else "board file" if draw < 0.65 \
+                else "options"
+            command = (design_case(rng, Path(folder)) if source == "design file"
+                       else board_case(rng, Path(folder)) if source == "board file"
+                       else option_args(rng))
             result = outcome(command)
             counts[(source, result.kind)] += 1
             if result.kind not in ("ok", "fails", "refused", "usage"):

@@ -9,7 +9,7 @@ it looks like named, never decoded by guess.
 
 from __future__ import annotations
 
-__all__ = ["MAX_INPUT_BYTES", "read_input", "read_input_text", "read_toml"]
+__all__ = ["MAX_INPUT_BYTES", "present", "read_input", "read_input_text", "read_toml"]
 
 import os
 import stat
@@ -20,6 +20,21 @@ from typing import Any
 from synth.errors import DesignError
 
 MAX_INPUT_BYTES = 16 * 1024 * 1024  # 16 MiB: far above any design, board or stock list
+
+
+def present(path: str | Path) -> bool:
+    """Whether something exists at ``path``; a name too long or otherwise unusable is not.
+
+    Examples
+    --------
+    >>> present("x" * 5000), present(".")
+    (False, True)
+    """
+    try:
+        os.stat(path)
+    except (OSError, ValueError):  # ENAMETOOLONG, ENOENT, a NUL byte ...
+        return False
+    return True
 
 
 def read_input(path: str | Path, what: str) -> bytes:

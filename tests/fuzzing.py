@@ -140,4 +140,37 @@ def design_case(rng: random.Random, folder: Path) -> list[str]:
             *rng.choice([[], ["--json"], ["--verify"]])]
 
 
+BOARD = ROOT / "examples" / "greenhouse_board.toml"
+
+
+def _cell(rng: random.Random) -> str:
+    value = wild(rng)
+    return value if isinstance(value, str) else repr(value)
+
+
+def board_case(rng: random.Random, folder: Path) -> list[str]:
+    """Write a mutated board file and stock list into ``folder``; return the ``bom`` command."""
+    data = tomllib.loads(BOARD.read_text(encoding="utf-8"))
+    for network in data["network"]:
+        (folder / network["file"]).write_bytes((BOARD.parent / network["file"]).read_bytes())
+    data["board"]["pool"] = 3
+    for _ in range(rng.randint(0, 2)):
+        _mutate(rng, data)
+    try:
+        text = tomli_w.dumps(data)
+    except (TypeError, ValueError):
+        text = "board = 1\n"
+    (folder / "board.toml").write_text(text, encoding="utf-8")
+    rows = ["value,package,tolerance,quantity", "4k7,0603,1%,10", "10k,0603,,"]
+    for _ in range(rng.randint(0, 3)):
+        rows.insert(rng.randint(1, len(rows)),
+                    ",".join(_cell(rng) for _ in range(rng.choice([1, 4, 4, 6]))))
+    encoding = rng.choice(["utf-8", "utf-8-sig", "cp1252", "utf-16"])
+    (folder / "stock.csv").write_bytes("\n".join(rows).encode(encoding, errors="replace"))
+    return ["bom", str(folder / "board.toml"), "--quiet", "--time-limit", "1",
+            *rng.choice([[], ["--stock", str(folder / "stock.csv")],
+                         ["--stock", str(folder / "stock.csv"), "--stock-only"],
+                         ["--format", "json"]])]
+
+
 PROBLEMS = ("traceback", "lines")

@@ -96,3 +96,16 @@ def test_stock_and_board_errors_are_one_line(tmp_path):
     if hasattr(os, "mkfifo"):
         os.mkfifo(fifo)
         assert "not a regular file" in one_line_refusal("bom", str(board), "--stock", str(fifo))
+
+
+def test_a_name_too_long_for_the_file_system_is_not_found(tmp_path):
+    shutil.copy(PROBE, tmp_path / "probe.toml")
+    board = tmp_path / "board.toml"
+    long = "9" * 5000
+    board.write_text(f'[board]\nstock = "{long}"\n[[network]]\nfile = "probe.toml"\n',
+                     encoding="utf-8")
+    assert "was not found" in one_line_refusal("bom", str(board))
+    board.write_text(f'[[network]]\nfile = "{long}"\n', encoding="utf-8")
+    assert "was not found" in one_line_refusal("bom", str(board))
+    board.write_text('[[network]]\nfile = "probe.toml"\n', encoding="utf-8")
+    assert "not found" in one_line_refusal("bom", str(board), "--stock", long)

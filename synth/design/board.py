@@ -27,7 +27,7 @@ from typing import Any
 from synth.design.load import load_design
 from synth.design.model import Design
 from synth.errors import DesignError, nearest_name
-from synth.inputs import read_toml
+from synth.inputs import present, read_toml
 
 _BOARD_KEYS = ("title", "stock", "pool", "notes")
 
@@ -105,7 +105,7 @@ def _board_file(path: Path, data: dict[str, Any]) -> tuple[str, list[BoardNetwor
             raise DesignError(f"{path}, [board]: stock must be the name of a CSV file, not "
                               f"{type(board['stock']).__name__} {str(board['stock'])[:40]!r}")
         stock = path.parent / board["stock"]
-        if not stock.exists():
+        if not present(stock):
             raise DesignError(f"{path}, [board]: stock file {board['stock']!r} was not found; "
                               "check the path")
     networks = []
@@ -124,7 +124,7 @@ def _board_file(path: Path, data: dict[str, Any]) -> tuple[str, list[BoardNetwor
         if not isinstance(entry.get("file"), str):
             raise DesignError(f"{item}: file is missing; add file = \"design.toml\"")
         design_path = path.parent / entry["file"]
-        if not design_path.exists():
+        if not present(design_path):
             raise DesignError(f"{item}: design file {entry['file']!r} was not found; check the "
                               "path (it is read relative to the board file)")
         count = entry.get("count", 1)
@@ -179,7 +179,7 @@ def load_board(paths: Sequence[str | Path], stock: str | Path | None = None,
         seen[net.name] = 1
     if stock is not None:
         stock_path = Path(stock)
-        if not stock_path.exists():
+        if not present(stock_path):
             raise DesignError(f"{stock_path}: stock file not found; check the path")
     if pool is not None and pool < 1:
         raise DesignError(f"--pool {pool} must be at least 1")

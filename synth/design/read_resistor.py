@@ -22,6 +22,7 @@ from synth.design.fields import (
 from synth.design.model import Resistor
 from synth.design.position import MAX_PARTS, Position
 from synth.errors import DesignError, nearest_name
+from synth.inputs import present
 from synth.units import (
     parse_tcr,
 )
@@ -35,7 +36,7 @@ _RESISTOR_KEYS = (
 def _resolve_stock(origin: str, reader: ItemReader, choose: str) -> Path:
     base = Path(origin).parent if origin and not origin.startswith("<") else Path.cwd()
     for candidate in (base / choose, Path(choose), catalog_dir() / choose):
-        if candidate.is_file():
+        if present(candidate) and candidate.is_file():
             return candidate.resolve()
     reader.fail(f"stock file {choose!r} was not found beside the design file or in catalogs/; "
                 "check the path")

@@ -32,6 +32,7 @@ from synth.design.model import REQUIREMENTS, Design, Regulator, Source
 from synth.design.read_resistor import read_resistor
 from synth.design.read_target import read_target
 from synth.errors import DesignError, nearest_name
+from synth.inputs import present
 from synth.units import (
     parse_quantity,
     parse_tcr,
@@ -219,7 +220,7 @@ def design_from_dict(data: Mapping[str, Any], origin: str = "<design>") -> Desig
     if settings["packages_path"]:
         base = Path(origin).parent if not origin.startswith("<") else Path.cwd()
         path = base / settings["packages_path"]
-        if not path.exists():
+        if not present(path):
             raise DesignError(f"{origin}, [design]: package table {settings['packages_path']!r} "
                               "was not found; check the path")
         packages = load_package_table(path)
