@@ -44,6 +44,7 @@ def test_packages_are_discovered_and_typed():
     assert "packages" not in setuptools  # discovered below package-dir, never listed
     assert setuptools["package-dir"] == {"synth": "synth", "synth.catalogs": "catalogs"}
     assert "py.typed" in setuptools["package-data"]["synth"]
+    assert setuptools["package-data"]["synth.schemas"] == ["*.json"]  # the JSON Schemas
     assert (ROOT / "synth" / "py.typed").is_file()
     for folder in (ROOT / "synth").rglob("*"):
         if folder.is_dir() and folder.name != "__pycache__":
