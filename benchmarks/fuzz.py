@@ -5,8 +5,7 @@ Run: python benchmarks/fuzz.py [--cases N] [--seed S]
 Draws N cases (default 10,000: design files, board files with stock lists, options)
 from the generators of ``tests/fuzzing.py`` (the suite
 runs a bounded number of the same kind), runs each in process, and prints the count of
-each outcome: ok (exit 0), fails (exit 1, a verdict), refused (exit 2, one line), usage
-(exit 2, click's usage message: an option of the wrong type or choice), and
+each outcome: ok (exit 0), fails (exit 1, a verdict), refused (exit 2, one line), and
 the problems (a traceback, another exit code, a refusal of more than one line), with an
 example of each problem.  The exit code is 1 when any problem was found.
 """
@@ -45,7 +44,7 @@ def main() -> int:
                        else option_args(rng))
             result = outcome(command)
             counts[(source, result.kind)] += 1
-            if result.kind not in ("ok", "fails", "refused", "usage"):
+            if result.kind not in ("ok", "fails", "refused"):
                 examples.setdefault(result.kind, (command, result.detail))
     print(f"{args.cases:,} cases in {time.monotonic() - start:.0f} s (seed {args.seed})")
     for (source, kind), count in sorted(counts.items()):

@@ -105,7 +105,7 @@ def option_args(rng: random.Random) -> list[str]:
 
 @dataclass(frozen=True)
 class Outcome:
-    kind: str  # "ok", "fails", "refused", "usage", or a problem: "traceback", "exit N", "lines"
+    kind: str  # "ok", "fails", "refused", or a problem: "traceback", "exit N", "lines"
     detail: str
 
 
@@ -121,8 +121,6 @@ def outcome(args: list[str]) -> Outcome:
         return Outcome(f"exit {result.exit_code}", text[-300:])
     if result.exit_code == 2:
         lines = result.stderr.strip().splitlines()
-        if lines and lines[0].startswith("Usage:") and lines[-1].startswith("Error: "):
-            return Outcome("usage", lines[-1])  # click's own message: usage, hint, error
         if len(lines) != 1:
             return Outcome("lines", result.stderr[:300])
         return Outcome("refused", lines[0])

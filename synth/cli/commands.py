@@ -21,6 +21,7 @@ from synth.cli.options import (
     RESISTANCE_RANGE,
     CatalogueChoice,
     Given,
+    OneLineGroup,
     Range,
     SearchOptions,
     SpreadOptions,
@@ -46,7 +47,7 @@ def _print_version(ctx: click.Context, param: click.Parameter, value: bool) -> N
     ctx.exit()
 
 
-@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+@click.group(cls=OneLineGroup, context_settings={"help_option_names": ["-h", "--help"]})
 @click.option("--version", is_flag=True, expose_value=False, is_eager=True,
               callback=_print_version, help="Show the version and exit.")
 def cli() -> None:

@@ -7,7 +7,8 @@ from __future__ import annotations
 __all__ = [
     "CURRENT", "DECIBELS", "MAX_SAMPLES", "PERCENT", "PLOT_AXES", "RESISTANCE",
     "RESISTANCE_RANGE", "TEMPERATURE", "VOLTAGE", "BadInput", "CatalogueChoice", "Given",
-    "Measured", "Progress", "QuickOptions", "Range", "SearchOptions", "SpreadOptions", "Window",
+    "Measured", "OneLineGroup", "Progress", "QuickOptions", "Range", "SearchOptions",
+    "SpreadOptions", "Window",
     "check_time_limit", "emit_json", "friendly", "option_group", "option_name",
     "quick_options", "ranking_choices", "search_options", "series_name_choices",
     "spread_options", "write_plots",
@@ -52,6 +53,30 @@ class BadInput(click.ClickException):
 def _one_line(exc: BaseException) -> str:
     """An error's message on one line (a newline in a user's text is shown as \\n)."""
     return str(exc).replace("\r", "\\r").replace("\n", "\\n")
+
+
+class OneLineGroup(click.Group):
+    """The command group: click's own usage errors (an option of the wrong type, an unknown
+    choice) are shown in one line on stderr, exit 2, like every other refusal."""
+
+    def main(self, *args: Any, **kwargs: Any) -> Any:
+        if not kwargs.get("standalone_mode", True):
+            return super().main(*args, **kwargs)
+        kwargs["standalone_mode"] = False
+        try:
+            code = super().main(*args, **kwargs)
+        except click.UsageError as exc:
+            command = exc.ctx.command_path if exc.ctx is not None else "rnsynth"
+            message = exc.format_message().replace("\r", "\\r").replace("\n", "\\n")
+            click.echo(f"rnsynth: {message} (see {command} --help)", err=True)
+            sys.exit(exc.exit_code)
+        except click.ClickException as exc:
+            exc.show()
+            sys.exit(exc.exit_code)
+        except click.Abort:
+            click.echo("Aborted!", err=True)
+            sys.exit(1)
+        sys.exit(code if isinstance(code, int) else 0)
 
 
 def friendly(command: F) -> F:

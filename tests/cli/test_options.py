@@ -82,3 +82,14 @@ def test_a_newline_in_a_reference_does_not_split_the_message(tmp_path):
     path.write_text('[[source]]\nref = "a\\nb"\nkind = "x"\n', encoding="utf-8")
     line = refused("check", str(path))
     assert "source 'a\\nb'" in line and "kind 'x' is not known" in line
+
+
+@pytest.mark.parametrize(("args", "fragment"), [
+    (["divider", "--top", "x"], "--top': 'x' is not a valid integer"),
+    (["series", "E97"], "'E97' is not one of"),
+    (["frob"], "No such command 'frob'"),
+    (["divider", "--input"], "--input"),
+])
+def test_usage_errors_are_one_line_too(args, fragment):
+    line = refused(*args)
+    assert line.startswith("rnsynth: ") and fragment in line and "--help" in line
