@@ -177,6 +177,8 @@ def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, poo
     from synth.report.bom import bom_summary, render_bom, resolve_encoding
 
     check_time_limit(time_limit)
+    if output is not None and Path(output).exists() and not Path(output).is_file():
+        raise DesignError(f"{output}: is not a regular file; write to a file name instead")
     if output is not None and Path(output).exists() and not force:
         raise DesignError(f"{output}: already exists; pass --force to replace it")
     resolve_encoding(form, encoding)

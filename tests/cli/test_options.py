@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import os
 
 import pytest
 from click.testing import CliRunner
@@ -93,3 +94,9 @@ def test_a_newline_in_a_reference_does_not_split_the_message(tmp_path):
 def test_usage_errors_are_one_line_too(args, fragment):
     line = refused(*args)
     assert line.startswith("rnsynth: ") and fragment in line and "--help" in line
+
+
+@pytest.mark.skipif(not os.path.exists("/dev/full"), reason="needs /dev/full")
+def test_bom_output_to_a_device_is_refused_before_the_work():
+    line = refused("bom", str(BOARDS[0]), "--output", "/dev/full", "--quiet")
+    assert line == "rnsynth: /dev/full: is not a regular file; write to a file name instead"
