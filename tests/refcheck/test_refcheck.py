@@ -331,8 +331,14 @@ def test_min_loss_pad() -> None:
                              ("RL", "out", "gnd", 50.0)],
                   vsources=[("V1", "in", "gnd", 1.0)])
     sol = solve(net)
-    assert 1 / float(sol.vsource_current["V1"][0]) == pytest.approx(75.0, rel=1e-12)
-    p_in, p_out = 1 / 75, float(sol.v("out")[0]) ** 2 / 50
+    # the input resistance the solve gives, against the series/parallel formula by hand
+    # (R1 + R2 || RL) and against the 75 ohm the pad must present
+    i_in = float(sol.vsource_current["V1"][0])
+    by_hand = r1 + r2 * 50.0 / (r2 + 50.0)
+    assert 1.0 / i_in == pytest.approx(by_hand, rel=1e-12)
+    assert 1.0 / i_in == pytest.approx(75.0, rel=1e-9)
+    # the loss from the solved powers: in = V1 x I(V1), out = V(out)^2 / RL
+    p_in, p_out = 1.0 * i_in, float(sol.v("out")[0]) ** 2 / 50
     assert 10 * math.log10(p_in / p_out) == pytest.approx(5.7195, abs=5e-5)
     back = Network(resistors=[("R1", "in", "out", r1), ("R2", "out", "gnd", r2),
                               ("RS", "in", "gnd", 75.0)])
