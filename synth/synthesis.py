@@ -244,7 +244,6 @@ def synthesize(
     require, min_yield = _basis(design, rank_by, require, min_yield, time_limit_s)
     choices = [choices_for(r, design.origin) for r in design.free_resistors]
     evaluator = Evaluator(design)
-    evaluator.check_pinned_senses()  # the same topology rules as check, before any search
     worst = (WorstCase(design, evaluator)
              if rank_by == "worst-case" or require == "worst-case" else None)
     ideal = ideal_values(design, evaluator)

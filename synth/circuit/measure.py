@@ -19,7 +19,6 @@ from synth.circuit.controlled import ControlledSolver
 from synth.circuit.mesh import MeshSolver
 from synth.circuit.network import Network, build_network
 from synth.circuit.solution import MeshSolution
-from synth.circuit.topology import UnionFind
 from synth.design.model import Design
 from synth.design.target import Target
 from synth.errors import DesignError
@@ -313,7 +312,6 @@ class Evaluator:
         """
         if not self.network.regulator_refs and not self.network.controlled:
             return
-        self.check_pinned_senses()
         src = self.nominal_sources
         sol = self._solve(self.solver, np.atleast_2d(resistances), src.voltages, src.currents,
                           src.setpoints, src.gains)
@@ -330,27 +328,6 @@ class Evaluator:
                     f"{self.design.origin}, regulator {ref}: its output cannot move its sense "
                     "node, so nothing sets its voltage; connect the sense node to the output "
                     "through the feedback network"
-                )
-
-
-    def check_pinned_senses(self) -> None:
-        """Refuse a regulator whose sense and reference nodes voltage sources already fix.
-
-        When independent voltage sources join a regulator's sense node to its reference
-        node, no output voltage can change their difference: nothing sets the output.
-        """
-        net = self.network
-        joined = UnionFind(len(net.nodes))
-        for a, b in net.vsource_ends:
-            joined.union(int(a), int(b))
-        for k, ref in enumerate(net.regulator_refs):
-            sense, reference = (int(n) for n in net.regulator_sense[k])
-            if joined.find(sense) == joined.find(reference):
-                raise DesignError(
-                    f"{self.design.origin}, regulator {ref}: its output cannot move its sense "
-                    "node, so nothing sets its voltage (voltage sources already fix its sense "
-                    "and reference nodes); connect the sense node to the output through the "
-                    "feedback network"
                 )
 
 

@@ -7,7 +7,7 @@ from __future__ import annotations
 __all__ = ["Graph", "UnionFind", "check_topology"]
 
 from collections.abc import Sequence
-from typing import Protocol
+from typing import Any, Protocol
 
 import numpy as np
 
@@ -33,6 +33,12 @@ class Graph(Protocol):
     def isource_refs(self) -> Sequence[str]: ...
     @property
     def regulator_refs(self) -> Sequence[str]: ...
+    @property
+    def vsource_ends(self) -> np.ndarray: ...
+    @property
+    def regulator_sense(self) -> np.ndarray: ...
+    @property
+    def controlled(self) -> Sequence[Any]: ...
 
 
 class UnionFind:
@@ -99,3 +105,18 @@ def check_topology(network: Graph) -> None:
         raise DesignError(f"{origin}: node(s) {', '.join(cut)} are reached only through current "
                           f"source(s) {', '.join(sources)}, a cut of current sources with no "
                           "defined voltage; add a resistor from them to the rest")
+
+    # a regulator whose sense and reference nodes independent voltage sources already join:
+    # no output voltage can change their difference, so nothing sets the output
+    controlled_slots = {c.slot for c in network.controlled if c.voltage_output}
+    fixed = UnionFind(n)
+    for k, (a, b) in enumerate(network.vsource_ends):
+        if k not in controlled_slots:
+            fixed.union(int(a), int(b))
+    for k, ref in enumerate(network.regulator_refs):
+        sense, reference = (int(node) for node in network.regulator_sense[k])
+        if fixed.find(sense) == fixed.find(reference):
+            raise DesignError(
+                f"{origin}, regulator {ref}: its output cannot move its sense node, so nothing "
+                "sets its voltage (voltage sources already fix its sense and reference nodes); "
+                "connect the sense node to the output through the feedback network")
