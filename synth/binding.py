@@ -9,7 +9,7 @@ names what the nearest design breaks most.
 
 from __future__ import annotations
 
-__all__ = ["limit_text", "nearest_text"]
+__all__ = ["distance", "limit_text", "nearest_text", "problem_gap"]
 
 import math
 
@@ -38,23 +38,38 @@ def limit_text(design: Design, problem: Problem) -> str:
             "fixes it")
 
 
-def nearest_text(candidate: Candidate) -> str:
-    """The problem the nearest design breaks most, in words.
+def problem_gap(candidate: Candidate, problem: Problem) -> float:
+    """How far one problem lies from feasibility (the measure of "nearest").
 
-    Windows count by their gap over the goal (or the window edge), limits by
-    their share over the allowance: the same measure that orders the nearest
-    designs (see docs/design-file.md, "Nearest designs").
+    A window by its gap beyond the edge, in units of the goal (or of the edge when
+    the goal is zero or absent); a part limit by its share over the allowance (a
+    part allowed nothing is infinitely over); a yield by its shortfall's share of
+    ``min_yield``.  See docs/design-file.md, "Nearest designs".
     """
+    if problem.kind == "window":
+        target = next((t for t in candidate.targets if t.label == problem.subject), None)
+        goal = target.goal if target is not None else None
+        scale = abs(goal) if goal else max(abs(problem.limit), 1e-300)
+        return abs(problem.value - problem.limit) / scale
+    if problem.limit <= 0:
+        return math.inf
+    if problem.kind == "yield":
+        return (problem.limit - problem.value) / problem.limit
+    return problem.value / problem.limit - 1
+
+
+def distance(candidate: Candidate) -> float:
+    """A candidate's distance from feasibility: its largest :func:`problem_gap` (0 if none)."""
+    return max((problem_gap(candidate, p) for p in candidate.problems), default=0.0)
+
+
+def nearest_text(candidate: Candidate) -> str:
+    """The problem the nearest design breaks most, in words (by :func:`problem_gap`)."""
     worst, text = -math.inf, "a target or limit"
     for problem in candidate.problems:
-        if problem.kind == "window":
-            target = next(t for t in candidate.targets if t.label == problem.subject)
-            scale = abs(target.goal) if target.goal else max(abs(problem.limit), 1e-300)
-            gap = abs(problem.value - problem.limit) / scale
-            described = f"target {problem.subject!r} ({problem})"
-        else:
-            gap = problem.value / problem.limit - 1 if problem.limit > 0 else math.inf
-            described = limit_text(candidate.check.design, problem)
+        gap = problem_gap(candidate, problem)
         if gap > worst:
-            worst, text = gap, described
+            worst, text = gap, (f"target {problem.subject!r} ({problem})"
+                                if problem.kind == "window"
+                                else limit_text(candidate.check.design, problem))
     return text

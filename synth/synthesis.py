@@ -13,13 +13,12 @@ from __future__ import annotations
 
 __all__ = ["RANKINGS", "YIELD_POOL", "synthesize"]
 
-import math
 from collections.abc import Callable
 from dataclasses import replace
 
 import numpy as np
 
-from synth.binding import limit_text, nearest_text
+from synth.binding import distance, limit_text, nearest_text
 from synth.catalog.series import coarsest_series
 from synth.checking import check_block, required_problems
 from synth.circuit.measure import Evaluator
@@ -152,20 +151,6 @@ def _on_basis(design: Design, candidate: Candidate) -> Candidate:
                    targets=targets)
 
 
-def _violation(candidate: Candidate) -> float:
-    """Distance from feasibility: the largest gap of a window, share over an allowance."""
-    worst = 0.0
-    for problem in candidate.problems:
-        if problem.kind == "window":
-            scale = max(abs(problem.limit), 1e-300)
-            worst = max(worst, abs(problem.value - problem.limit) / scale)
-        elif problem.limit > 0:
-            worst = max(worst, problem.value / problem.limit - 1)
-        else:
-            worst = math.inf
-    return worst
-
-
 def _yield_low(candidate: Candidate) -> float:
     spread = candidate.spread
     if spread is None or spread.yield_interval is None:
@@ -273,7 +258,7 @@ def synthesize(
     if require == "worst-case" and not feasible:
         # the nearest designs, judged on the required basis, nearest first
         candidates = sorted((_on_basis(replace(design, require=require), c)
-                             for c in candidates), key=lambda c: (_violation(c), c.rank))
+                             for c in candidates), key=lambda c: (distance(c), c.rank))
     considered = len(candidates)
     yield_short = False
     if feasible and require == "yield":
