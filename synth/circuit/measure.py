@@ -209,7 +209,7 @@ class Evaluator:
                          [r.position.count for r in self.design.resistors])
 
     def evaluate(self, resistances: ArrayLike, sources: SourceValues | None = None,
-                 part_values: np.ndarray | None = None) -> Evaluation:
+                 part_values: np.ndarray | None = None, *, parts: bool = True) -> Evaluation:
         """Solve a block of candidates and measure every target and part.
 
         Parameters
@@ -222,6 +222,9 @@ class Evaluator:
         part_values : numpy.ndarray, optional
             ``(N, parts)`` ohm of every physical part (see :meth:`part_values`,
             the default); only the columns of positions of several parts are read.
+        parts : bool
+            False skips dividing positions into their parts (the search's box
+            bounds use positions only); the part arrays are then ``(N, 0)``.
 
         Returns
         -------
@@ -240,7 +243,10 @@ class Evaluator:
             [self._target_values(t, r, sol, power, gains) for t in self.design.targets]
         ) if self.design.targets else np.zeros((len(r), 0))
         supply = np.clip(sol.branch_currents[:, self._supply_columns], 0.0, None).sum(axis=1)
-        part_i, part_u, part_p = self._split(r, i_r, across, power, part_values)
+        if parts:
+            part_i, part_u, part_p = self._split(r, i_r, across, power, part_values)
+        else:
+            part_i = part_u = part_p = np.zeros((len(r), 0))
         return Evaluation(solution=sol, targets=targets, resistor_power=power,
                           resistor_voltage=across, supply_current=supply,
                           part_current=part_i, part_voltage=part_u, part_power=part_p)

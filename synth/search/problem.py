@@ -89,9 +89,10 @@ class SearchProblem:
             parts[:, self.free_columns[p]] = choice.parts[indices[:, p]]
         return parts
 
-    def evaluate(self, r: np.ndarray, part_values: np.ndarray | None = None) -> Evaluation:
+    def evaluate(self, r: np.ndarray, part_values: np.ndarray | None = None, *,
+                 parts: bool = True) -> Evaluation:
         with np.errstate(all="ignore"):
-            return self.ev.evaluate(r, part_values=part_values)
+            return self.ev.evaluate(r, part_values=part_values, parts=parts)
 
     # ----- exact measures of enumerated candidates -----
 
@@ -179,7 +180,7 @@ class SearchProblem:
         bits = ((np.arange(2 ** k)[:, None] >> np.arange(k)[None, :]) & 1).astype(bool)
         vertex = np.where(bits[None, :, :], hi[:, None, :], lo[:, None, :]).reshape(-1, k)
         r = self.resistances(vertex)
-        ev = self.evaluate(r)
+        ev = self.evaluate(r, parts=False)  # the bounds use positions only
         n_v = 2 ** k
         shape = (n_box, n_v)
 
