@@ -14,7 +14,7 @@ at its standard value, its package steps up and the search runs again.
 
 from __future__ import annotations
 
-__all__ = ["AUTO_ROUNDS", "PackageChoice", "package_order", "synthesize_auto"]
+__all__ = ["AUTO_ROUNDS", "PackageChoice", "package_order", "smallest_fit", "synthesize_auto"]
 
 import copy
 import math
@@ -62,17 +62,29 @@ def package_order(packages: Mapping[str, PackageRating]) -> list[PackageRating]:
                                        p.limiting_voltage_v, p.name))
 
 
-def _fits(design: Design, rating: PackageRating, power_w: float, voltage_v: float) -> bool:
-    share = allowance(rating, ambient_c=design.rating_ambient_c,
-                      max_power_use=design.margin_frac, max_voltage_use=design.voltage_margin_frac)
-    return power_w <= share.power_w and voltage_v <= share.voltage_v
+def smallest_fit(order: list[PackageRating], power_w: float, voltage_v: float, *,
+                 ambient_c: float, max_power_use: float, max_voltage_use: float,
+                 after: int = -1) -> int | None:
+    """Index in ``order`` of the first package past ``after`` that carries the stress.
+
+    The allowance is :func:`synth.rating.allowance` at ``ambient_c`` under the use
+    limits; None when no package in the order may take it.
+    """
+    for k, rating in enumerate(order):
+        share = allowance(rating, ambient_c=ambient_c, max_power_use=max_power_use,
+                          max_voltage_use=max_voltage_use)
+        if k > after and power_w <= share.power_w and voltage_v <= share.voltage_v:
+            return k
+    return None
 
 
 def _first_choice(design: Design, order: list[PackageRating], ref: str, power_w: float,
                   voltage_v: float, after: int = -1) -> PackageChoice:
-    for k, rating in enumerate(order):
-        if k > after and _fits(design, rating, power_w, voltage_v):
-            return PackageChoice(ref, rating.name)
+    fit = smallest_fit(order, power_w, voltage_v, ambient_c=design.rating_ambient_c,
+                       max_power_use=design.margin_frac,
+                       max_voltage_use=design.voltage_margin_frac, after=after)
+    if fit is not None:
+        return PackageChoice(ref, order[fit].name)
     # no single part takes it: a series string of the highest-voltage package
     tallest = max(order, key=lambda p: (p.limiting_voltage_v, p.rated_power_w))
     share = allowance(tallest, ambient_c=design.rating_ambient_c,

@@ -20,7 +20,7 @@ from typing import Any
 from synth.catalog.packages import load_package_table
 from synth.catalog.series import load_series
 from synth.errors import DesignError
-from synth.rating import allowed_power
+from synth.templates.packages import package_order, smallest_fit
 from synth.units import (
     format_eng,
     parse_decibels,
@@ -220,16 +220,13 @@ def led_tables(supply: str, forward: str, count: int, current: str,
     package = settings.package
     if package is None:
         power = amps * amps * ideal
-        table = load_package_table()
-        ambient = parse_temperature(settings.ambient)
-        margin = parse_fraction(settings.margin)
-        chips = sorted((p for name, p in table.items() if p.mount == "chip" and name == p.name),
-                       key=lambda p: p.rated_power_w)
-        fits = [p for p in chips if float(allowed_power(p, ambient, margin)) >= power]
-        if not fits:
+        chips = [p for p in package_order(load_package_table()) if p.mount == "chip"]
+        fit = smallest_fit(chips, power, 0.0, ambient_c=parse_temperature(settings.ambient),
+                           max_power_use=parse_fraction(settings.margin), max_voltage_use=1.0)
+        if fit is None:
             raise DesignError(f"the resistor dissipates {format_eng(power, 'W')}, more than any "
                               "chip package allows; give --package for a larger part")
-        package = fits[0].name
+        package = chips[fit].name
     low, high = ideal / 3, ideal * 3
     free = {"ref": "R1", "nodes": ["supply", "a1"], "choose": settings.series,
             "range": [f"{low:.6g}", f"{high:.6g}"], "package": package}
