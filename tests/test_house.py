@@ -20,7 +20,7 @@ LAYERS = (
     ("report",),
     ("templates",),
     ("bom",),
-    ("checking", "synthesis"),
+    ("checking", "synthesis", "front"),
     ("binding",),
     ("results", "cautions"),
     ("search",),

@@ -134,11 +134,12 @@ class Evaluator:
             setpoints=np.array([g.setpoint for g in design.regulators]),
             gains=np.array([c.gain for c in design.controlled]) if design.controlled else None,
         )
-        self._supply_columns = np.array(
+        self.supply_columns = np.array(
             [self.branch_index[ref]
              for ref in (*self.network.vsource_refs, *self.network.regulator_refs)],
             dtype=int,
         )
+        """Branch columns whose delivered current counts in the supply current."""
 
     def _seen_solver(self, plus: str, minus: str) -> MeshSolver | ControlledSolver:
         key = (plus, minus)
@@ -242,7 +243,7 @@ class Evaluator:
         targets = np.column_stack(
             [self._target_values(t, r, sol, power, gains) for t in self.design.targets]
         ) if self.design.targets else np.zeros((len(r), 0))
-        supply = np.clip(sol.branch_currents[:, self._supply_columns], 0.0, None).sum(axis=1)
+        supply = np.clip(sol.branch_currents[:, self.supply_columns], 0.0, None).sum(axis=1)
         if parts:
             part_i, part_u, part_p = self._split(r, i_r, across, power, part_values)
         else:

@@ -111,6 +111,8 @@ def search(
     target_ranges: TargetRanges | None = None,
     robust: RobustCheck | None = None,
     part_limits: bool = True,
+    max_supply_a: float | None = None,
+    supply_first: bool = False,
 ) -> SearchOutcome:
     """Find the ``top`` best candidates by branch and bound.
 
@@ -145,6 +147,12 @@ def search(
     part_limits : bool
         False drops every part's power and voltage limit (windows stay): used
         to find what a limit costs a goal.
+    max_supply_a : float, optional
+        Keep only candidates whose supply current is at most this, A (a
+        budget; boxes whose least supply current lies above it are dropped).
+    supply_first : bool
+        Break a tie in the objective by the lower supply current first (see
+        :meth:`RankedCandidates.merged`).
 
     Returns
     -------
@@ -159,7 +167,7 @@ def search(
     """
     start = time.perf_counter()
     problem = SearchProblem(design, evaluator, choices, relaxed, target_ranges, robust,
-                            part_limits)
+                            part_limits, max_supply_a)
     k = len(choices)
     sizes = np.array([len(c) for c in choices], dtype=np.int64)
     total = math.prod(int(s) for s in sizes)
@@ -169,13 +177,13 @@ def search(
     if seeds is not None and len(seeds):
         seeded, n = problem.score(np.asarray(seeds, dtype=np.int64))
         evaluated += n
-        ranked = ranked.merged(seeded, top)
+        ranked = ranked.merged(seeded, top, supply_first)
         if len(ranked.objective) >= top:
             bar = float(ranked.objective[-1])
     leaf_size = max(_LEAF_MIN, _LEAF_PER_VERTEX * 2 ** k)
     if k == 0 or total <= leaf_size:
         found, n = problem.score(_enumerate(np.zeros(k, np.int64), sizes - 1))
-        return SearchOutcome(ranked.merged(found, top), True, n + evaluated, total,
+        return SearchOutcome(ranked.merged(found, top, supply_first), True, n + evaluated, total,
                              time.perf_counter() - start)
     lo = np.zeros((1, k), dtype=np.int64)
     hi = (sizes - 1)[None, :]
@@ -219,7 +227,7 @@ def search(
             batch = _enumerate_boxes(b_lo[leaf], b_hi[leaf])
             found, n = problem.score(batch)
             evaluated += n
-            ranked = ranked.merged(found, top)
+            ranked = ranked.merged(found, top, supply_first)
             settled += int(volume[leaf].sum())
         if (~leaf).any():
             s_lo, s_hi, s_counts = b_lo[~leaf], b_hi[~leaf], counts[~leaf]

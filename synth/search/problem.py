@@ -42,7 +42,10 @@ class SearchProblem:
 
     def __init__(self, design: Design, evaluator: Evaluator, choices: list[Choices],
                  relaxed: bool, target_ranges: TargetRanges | None = None,
-                 robust: RobustCheck | None = None, part_limits: bool = True):
+                 robust: RobustCheck | None = None, part_limits: bool = True,
+                 max_supply_a: float | None = None):
+        self.max_supply_a = max_supply_a
+        self.supply_columns = evaluator.supply_columns
         self.design, self.ev, self.choices, self.relaxed = design, evaluator, choices, relaxed
         self.target_ranges = target_ranges
         self.robust = robust
@@ -148,6 +151,8 @@ class SearchProblem:
             keep = np.isfinite(objective)
         else:
             keep = self.feasible(ev.targets, ev.part_power, ev.part_voltage) & np.isfinite(error)
+            if self.max_supply_a is not None:
+                keep &= ev.supply_current <= self.max_supply_a
             if self.robust is not None and keep.any():
                 keep[keep] = self.robust(r[keep], parts[keep])
             objective = error
@@ -232,6 +237,12 @@ class SearchProblem:
         broken = (np.any(exceeds(t_lo, self.high) | falls_short(t_hi, self.low), axis=1)
                   | np.any(exceeds(part_p_lo, self.position_allowed_p)
                            | exceeds(part_u_lo, self.position_allowed_v), axis=1))
+        if self.max_supply_a is not None and not self.relaxed:
+            # each delivering branch's current is monotone in every resistance, so its
+            # least value over the box lies at a vertex: the sum of those is a lower bound
+            delivered = ev.solution.branch_currents[:, self.supply_columns]
+            least = np.clip(delivered.reshape(*shape, -1).min(axis=1), 0.0, None).sum(axis=1)
+            broken |= least > self.max_supply_a
         parts = [gap_below, gap_above, np.zeros((n_box, 1))]
         if self.n_r:
             parts += [over_p, over_v]

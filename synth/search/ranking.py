@@ -44,8 +44,14 @@ class RankedCandidates:
                                 np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64),
                                 np.zeros(0))
 
-    def merged(self, other: RankedCandidates, top: int) -> RankedCandidates:
-        """Both sets ranked together, the best ``top`` kept (ties by the tie-break)."""
+    def merged(self, other: RankedCandidates, top: int, supply_first: bool = False
+               ) -> RankedCandidates:
+        """Both sets ranked together, the best ``top`` kept (ties by the tie-break).
+
+        With ``supply_first`` a tie in the objective goes to the lower supply
+        current before fewer distinct values and coarser series (what an
+        error-against-supply front needs: the least supply at each error).
+        """
         idx = np.concatenate([self.indices, other.indices])
         obj = np.concatenate([self.objective, other.objective])
         dis = np.concatenate([self.distinct, other.distinct])
@@ -59,7 +65,8 @@ class RankedCandidates:
         keys = [idx[:, c] for c in range(idx.shape[1] - 1, -1, -1)]
         # duplicates only pair a row of self with one of other: the best top + len(self)
         # rows hold the best top distinct ones
-        order = np.lexsort((*keys, supply_key, coa, dis, quantised))[: top + len(self.objective)]
+        ties = (coa, dis, supply_key) if supply_first else (supply_key, coa, dis)
+        order = np.lexsort((*keys, *ties, quantised))[: top + len(self.objective)]
         if idx.shape[1]:
             # the same candidate can arrive twice (a seed, then its box): keep it once
             _, first = np.unique(idx[order], axis=0, return_index=True)

@@ -132,6 +132,14 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
             rss = float(np.sqrt(np.nansum((both * widths) ** 2))) if n else 0.0
         slopes = np.concatenate([slope[:, j], slope[:, j]]) if n else np.zeros(0)
         rss_abs = float(np.sqrt(np.nansum((slopes * widths) ** 2))) if n else 0.0
+        # each quantity's terms of rss_abs ** 2: its tolerance, then its TCR drift
+        with np.errstate(invalid="ignore"):
+            tol_terms = np.nan_to_num((slope[:, j] * var.tolerance) ** 2, nan=0.0,
+                                      posinf=np.inf) if n else np.zeros(0)
+            drift_terms = np.nan_to_num((slope[:, j] * var.drift) ** 2, nan=0.0,
+                                        posinf=np.inf) if n else np.zeros(0)
+        terms = {name: (float(tol_terms[i]), float(drift_terms[i]))
+                 for i, name in enumerate(var.names)}
         targets.append(TargetSpread(
             label=t.label, goal=t.equals, nominal=float(nominal_targets[j]),
             worst_low=float(min(column[lo_at], nominal_targets[j])),
@@ -139,6 +147,7 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
             low_corner=corner(lo_at), high_corner=corner(hi_at), exact=exact, rss=rss,
             sensitivities={name: float(sens[i, j]) for i, name in enumerate(var.names)},
             mc_mean=None, mc_std=None, mc_values=None, inside=None, rss_abs=rss_abs,
+            rss_terms=terms,
         ))
 
     parts = part_spread(design, ev, var, bits if exact else None, vertices, nominal, p_v)

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 __all__ = ["PartSpread", "SpreadResult", "SpreadSettings", "TargetSpread"]
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -68,6 +68,11 @@ class TargetSpread:
         Smallest and largest Monte Carlo sample.
     inside : float or None
         Share of samples inside this target's window.
+    rss_terms : dict of str to tuple of float
+        Each varying quantity's terms of ``rss_abs ** 2``, in the target's
+        unit squared: ``(tolerance term, temperature-drift term)``, each the
+        squared product of the target's slope and the quantity's relative
+        half-width.  Their sum over every quantity is ``rss_abs ** 2``.
     """
 
     label: str
@@ -87,6 +92,34 @@ class TargetSpread:
     rss_abs: float = 0.0
     mc_min: float | None = None
     mc_max: float | None = None
+    rss_terms: dict[str, tuple[float, float]] = field(default_factory=dict)
+
+    def variance_shares(self) -> dict[str, float]:
+        """Each varying quantity's share of the root-sum-square variance (they add up to 1).
+
+        Tolerance and temperature-drift terms of a quantity are counted
+        together; an empty dict when nothing varies the target.
+
+        Examples
+        --------
+        >>> t = TargetSpread("out", 5.0, 5.0, 4.95, 5.05, {}, {}, True, 0.00707, {}, None,
+        ...                  None, None, None, rss_terms={"R1": (1.25e-3, 0.0),
+        ...                                               "R2": (1.25e-3, 0.0)})
+        >>> t.variance_shares()
+        {'R1': 0.5, 'R2': 0.5}
+
+        Notes
+        -----
+        The law of propagation of uncertainty (JCGM 100:2008, the GUM, eq. 10):
+        for independent inputs the output variance is the sum of the squared
+        sensitivity-weighted input uncertainties, so each term's share of the
+        sum is that input's contribution.
+        """
+        terms = {name: tol + drift for name, (tol, drift) in self.rss_terms.items()}
+        total = sum(terms.values())
+        if not total > 0:
+            return {}
+        return {name: term / total for name, term in terms.items()}
 
 
 @dataclass(frozen=True)
