@@ -11,15 +11,15 @@ from pathlib import Path
 from synth.errors import DesignError
 
 
-def write_atomic(path: str | Path, text: str, *, force: bool = False) -> Path:
+def write_atomic(path: str | Path, text: str | bytes, *, force: bool = False) -> Path:
     """Write ``text`` to ``path`` through a temporary file renamed into place.
 
     Parameters
     ----------
     path : str or Path
         Destination file.
-    text : str
-        Content (UTF-8).
+    text : str or bytes
+        Content: text is written as UTF-8, bytes as they are (a PNG, an SVG).
     force : bool
         Replace an existing file; without it an existing file is refused.
 
@@ -50,8 +50,12 @@ def write_atomic(path: str | Path, text: str, *, force: bool = False) -> Path:
     except OSError as exc:
         raise DesignError(f"{target}: cannot write there ({exc.strerror})") from None
     try:
-        with os.fdopen(handle, "w", encoding="utf-8", newline="") as stream:
-            stream.write(text)
+        if isinstance(text, bytes):
+            with os.fdopen(handle, "wb") as binary:
+                binary.write(text)
+        else:
+            with os.fdopen(handle, "w", encoding="utf-8", newline="") as stream:
+                stream.write(text)
         os.replace(temp, target)
     except OSError as exc:  # a full disk, the file-size limit, a folder gone read-only
         Path(temp).unlink(missing_ok=True)

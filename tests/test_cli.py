@@ -146,12 +146,11 @@ def test_plot_axis_option_and_its_old_name(monkeypatch, tmp_path, options, axis,
 
     seen = []
 
-    def scatter(result, folder, cost="supply"):
+    def pictures(result, cost="supply", front=None):
         seen.append(cost)
         return []
 
-    monkeypatch.setattr(plots, "candidate_scatter", scatter)
-    monkeypatch.setattr(plots, "target_histograms", lambda *args: [])
+    monkeypatch.setattr(plots, "design_pictures", pictures)
     result = run("divider", "--input", "12 V", "--output", "3.3 V", "--samples", "0",
                  "--top", "2", "--plots", str(tmp_path), *options)
     assert result.exit_code == 0, result.output
@@ -262,6 +261,15 @@ def test_plots_are_written_for_check_and_design(tmp_path):
     written = sorted(p.name for p in (tmp_path / "d").iterdir())
     assert any(name.startswith("candidates") and name.endswith(".svg") for name in written)
     assert any(name.endswith(".png") for name in written)
+    # every picture, in both formats: the front for a design only
+    stems = ["network", "derating-0603", "contributions-1-converter-input",
+             "spread-1-converter-input"]
+    for folder, extra in (("c", []), ("d", ["candidates", "front"])):
+        names = {p.name for p in (tmp_path / folder).iterdir()}
+        for stem in stems + extra:
+            assert {f"{stem}.png", f"{stem}.svg"} <= names, (folder, stem, sorted(names))
+    assert "front.svg" not in {p.name for p in (tmp_path / "c").iterdir()}
+    assert not [p for p in (tmp_path / "d").iterdir() if p.name.startswith(".")]
 
 
 def test_led_package_auto_names_the_package_chosen():

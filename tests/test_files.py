@@ -101,3 +101,11 @@ def test_a_folder_is_never_replaced(tmp_path):
     (tmp_path / "out").mkdir()
     with pytest.raises(DesignError, match="is not a regular file"):
         write_atomic(tmp_path / "out", "x", force=True)
+
+
+def test_bytes_are_written_as_they_are(tmp_path):
+    # a PNG's first bytes (ISO/IEC 15948) must not pass through a text encoding
+    data = b"\x89PNG\r\n\x1a\n\x00\xff"
+    target = write_atomic(tmp_path / "picture.png", data)
+    assert target.read_bytes() == data
+    assert write_atomic(target, b"<svg/>", force=True).read_bytes() == b"<svg/>"

@@ -106,10 +106,10 @@ def check_command(design_file: str, as_json: bool, verify: bool, spread: SpreadO
         emit_json(check_json(result))
     else:
         click.echo(check_text(result))
-    if spread.plots and result.spread is not None:
-        from synth.report.plots import target_histograms
+    if spread.plots:
+        from synth.report.plots import check_pictures
 
-        write_plots(target_histograms(design, result.spread, spread.plots), as_json)
+        write_plots(spread.plots, check_pictures(result), as_json)
     if not result.ok:
         sys.exit(1)
 

@@ -321,10 +321,26 @@ def emit_json(document: Any) -> None:
     click.echo(json.dumps(_strict(document), indent=2, ensure_ascii=False, allow_nan=False))
 
 
-def write_plots(paths: list[Any], as_json: bool) -> None:
-    if not as_json:
-        for path in paths:
-            click.echo(f"plot written: {path}")
+def write_plots(folder: str, pictures: Sequence[tuple[str, Any]], as_json: bool) -> None:
+    """Write each (stem, Figure) as ``stem.png`` and ``stem.svg`` into ``folder``, atomically.
+
+    Plots replace the files of an earlier run; the folder is created when missing.
+    """
+    from pathlib import Path
+
+    from synth.files import write_atomic
+    from synth.report.pictures.axes import FORMATS, figure_bytes
+
+    target = Path(folder)
+    try:
+        target.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise DesignError(f"{target}: cannot create the plot folder ({exc.strerror})") from None
+    for stem, figure in pictures:
+        for fmt in FORMATS:
+            path = write_atomic(target / f"{stem}.{fmt}", figure_bytes(figure, fmt), force=True)
+            if not as_json:
+                click.echo(f"plot written: {path}")
 
 
 class Progress:

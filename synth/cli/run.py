@@ -29,6 +29,8 @@ from synth.cli.options import (
 
 Rules = Callable[["Candidate"], list[str]]
 
+_FRONT_SECONDS = 30.0  # the most the front of the plots may take (its plot says if cut short)
+
 
 def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
                 rules: Rules | None = None, prepared: SynthesisResult | None = None) -> None:
@@ -66,13 +68,14 @@ def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
             for line in rules(result.candidates[0]):
                 click.echo(f"  {line}")
     if spread.plots and result.candidates:
-        from synth.report.plots import candidate_scatter, target_histograms
+        from synth.front import error_front
+        from synth.report.plots import design_pictures
 
-        best = result.candidates[0]
-        paths = candidate_scatter(result, spread.plots, cost=search.plot_axis)
-        if best.spread is not None:
-            paths += target_histograms(design, best.spread, spread.plots)
-        write_plots(paths, search.as_json)
+        front = error_front(design, time_limit_s=_FRONT_SECONDS if search.time_limit is None
+                            else min(search.time_limit, _FRONT_SECONDS),
+                            require=result.require)
+        write_plots(spread.plots, design_pictures(result, cost=search.plot_axis, front=front),
+                    search.as_json)
     if not result.feasible:
         sys.exit(1)
 

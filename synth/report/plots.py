@@ -1,31 +1,41 @@
-"""Plots of spread and of ranked candidates (matplotlib, headless, PNG and SVG).
+"""Plots of spread and of ranked candidates, and the named set of pictures a run draws.
 
 Readable without colour: distributions are hatched bars, limits are lines of
 different dash patterns named in the legend, and the best candidate is a
-large star with a label.  Figures are drawn with matplotlib's object API and
-its Agg canvas, so no display and no global pyplot state are involved.
+large star with a label.  Every function returns a matplotlib Figure drawn
+with the object API (no display, no global pyplot state), or draws on the
+``ax`` it is given; none writes a file.  :func:`check_pictures` and
+:func:`design_pictures` name each figure by a file stem made from a safe slug
+of its label, for the command line to write.
 """
 
 from __future__ import annotations
 
-__all__ = ["COSTS", "candidate_scatter", "target_histograms"]
+__all__ = ["COSTS", "Picture", "candidate_scatter", "check_pictures", "design_pictures",
+           "target_histogram", "target_histograms"]
 
-import os
 import re
-import tempfile
-from pathlib import Path
 
 import numpy as np
+from matplotlib.axes import Axes
 from matplotlib.figure import Figure
-from matplotlib.ticker import EngFormatter
 
 from synth.design.model import Design
 from synth.errors import DesignError
-from synth.results import Candidate, SynthesisResult
+from synth.front import ErrorFront
+from synth.report.pictures.axes import eng_axis, figure_for, plain_axis
+from synth.report.pictures.contributions import contribution_bars
+from synth.report.pictures.derating import derating_curve, packages_used
+from synth.report.pictures.network import network_drawing
+from synth.report.pictures.supply_front import front_plot
+from synth.results import Candidate, CheckResult, SynthesisResult
 from synth.spread.records import SpreadResult
 
 COSTS = ("supply", "hottest", "distinct")
 """What the candidate scatter puts on its horizontal axis."""
+
+Picture = tuple[str, Figure]
+"""A figure and the file stem it is written under (``"network"``, ``"spread-1-output"``)."""
 
 
 _SLUG_LENGTH = 40  # characters of a label kept in a file name
@@ -37,67 +47,49 @@ def _slug(text: str) -> str:
     return slug.strip("-") or "target"
 
 
-def _save(figure: Figure, folder: Path, stem: str) -> list[Path]:
-    written = []
-    for suffix in (".png", ".svg"):
-        target = folder / f"{stem}{suffix}"
-        handle, temp = tempfile.mkstemp(prefix=f".{target.name}.", dir=folder)
-        os.close(handle)
-        try:
-            figure.savefig(temp, format=suffix[1:], dpi=120, bbox_inches="tight")
-            os.replace(temp, target)
-        except OSError as exc:  # a full disk, the file-size limit
-            Path(temp).unlink(missing_ok=True)
-            raise DesignError(f"{target}: could not be written ({exc.strerror or exc})") from None
-        except BaseException:
-            Path(temp).unlink(missing_ok=True)
-            raise
-        written.append(target)
-    return written
+def target_histogram(design: Design, spread: SpreadResult, target: int = 0, *,
+                     ax: Axes | None = None) -> Figure:
+    """A histogram of one target's Monte Carlo samples, its window and worst case marked.
 
+    The samples are those kept with ``SpreadSettings(keep_samples=True)``.
 
-def _folder(path: str | Path) -> Path:
-    folder = Path(path)
-    try:
-        folder.mkdir(parents=True, exist_ok=True)
-    except OSError as exc:
-        raise DesignError(f"{folder}: cannot create the plot folder ({exc.strerror})") from None
-    return folder
-
-
-def target_histograms(design: Design, spread: SpreadResult, folder: str | Path,
-                      stem: str = "spread") -> list[Path]:
-    """One histogram per target of its Monte Carlo samples, window and worst case marked.
-
-    Returns the files written (PNG and SVG of each).
+    Raises
+    ------
+    DesignError
+        When the spread kept no samples of the target.
     """
-    out = _folder(folder)
-    written: list[Path] = []
-    for k, (target, t) in enumerate(zip(design.targets, spread.targets, strict=True), 1):
-        if t.mc_values is None:
-            continue
-        figure = Figure(figsize=(6.4, 4.0))
-        axes = figure.subplots()
-        values = t.mc_values[np.isfinite(t.mc_values)]
-        axes.hist(values, bins=60, facecolor="none", edgecolor="black", hatch="///",
-                  label=f"Monte Carlo, {len(values):,} samples")
-        low, high = target.bounds
-        for edge in (low, high):
-            if np.isfinite(edge):
-                axes.axvline(edge, color="black", linestyle="-", linewidth=2,
-                             label="window" if edge == low or not np.isfinite(low) else None)
-        axes.axvline(t.worst_low, color="black", linestyle="--", label="worst case")
-        axes.axvline(t.worst_high, color="black", linestyle="--")
-        axes.axvline(t.nominal, color="black", linestyle=":", label="nominal")
-        unit = f" ({target.unit})" if target.unit else ""
-        # a user's label is drawn as plain text: "$" and "^" are not math text
-        axes.set_xlabel(f"{t.label}{unit}", parse_math=False)
-        axes.set_ylabel("samples")
-        inside = "" if t.inside is None else f", {t.inside * 100:.3g}% inside the window"
-        axes.set_title(f"{t.label}{inside}", parse_math=False)
-        axes.legend(loc="upper left", bbox_to_anchor=(1.02, 1.0), fontsize="small")
-        written += _save(figure, out, f"{stem}-{k}-{_slug(t.label)}")
-    return written
+    record = design.targets[target]
+    t = spread.targets[target]
+    if t.mc_values is None:
+        raise DesignError(f"target {t.label!r} has no Monte Carlo samples; analyse the spread "
+                          "with samples and keep_samples")
+    figure, axes = figure_for(ax)
+    values = t.mc_values[np.isfinite(t.mc_values)]
+    axes.hist(values, bins=60, facecolor="none", edgecolor="black", hatch="///",
+              label=f"Monte Carlo, {len(values):,} samples")
+    low, high = record.bounds
+    for edge in (low, high):
+        if np.isfinite(edge):
+            axes.axvline(edge, color="black", linestyle="-", linewidth=2,
+                         label="window" if edge == low or not np.isfinite(low) else None)
+    axes.axvline(t.worst_low, color="black", linestyle="--", label="worst case")
+    axes.axvline(t.worst_high, color="black", linestyle="--")
+    axes.axvline(t.nominal, color="black", linestyle=":", label="nominal")
+    eng_axis(axes.xaxis, record.unit)
+    # a user's label is drawn as plain text: "$" and "^" are not math text
+    axes.set_xlabel(t.label, parse_math=False)
+    axes.set_ylabel("samples")
+    inside = "" if t.inside is None else f", {t.inside * 100:.3g}% inside the window"
+    axes.set_title(f"{t.label}{inside}", parse_math=False)
+    axes.legend(loc="upper left", bbox_to_anchor=(1.02, 1.0), fontsize="small")
+    return figure
+
+
+def target_histograms(design: Design, spread: SpreadResult,
+                      stem: str = "spread") -> list[Picture]:
+    """One histogram per target with samples, each named ``{stem}-{k}-{slug of its label}``."""
+    return [(f"{stem}-{k}-{_slug(t.label)}", target_histogram(design, spread, k - 1))
+            for k, t in enumerate(spread.targets, 1) if t.mc_values is not None]
 
 
 def _cost(candidate: Candidate, cost: str) -> float:
@@ -109,23 +101,22 @@ def _cost(candidate: Candidate, cost: str) -> float:
     return float(len(set(candidate.values.values())))
 
 
-def candidate_scatter(result: SynthesisResult, folder: str | Path, cost: str = "supply",
-                      stem: str = "candidates") -> list[Path]:
+def candidate_scatter(result: SynthesisResult, cost: str = "supply", *,
+                      ax: Axes | None = None) -> Figure:
     """Scatter of the ranked candidates: error against a cost, the best marked.
 
     Parameters
     ----------
     result : SynthesisResult
-    folder : str or Path
     cost : {"supply", "hottest", "distinct"}
         Supply current (A), the hottest part's use of its allowance (%), or
         the number of distinct values.
+    ax : Axes, optional
+        Draw here instead of on a new figure.
     """
     if cost not in COSTS:
         raise DesignError(f"cost {cost!r} is not known; use one of {', '.join(COSTS)}")
-    out = _folder(folder)
-    figure = Figure(figsize=(6.4, 4.0))
-    axes = figure.subplots()
+    figure, axes = figure_for(ax)
     xs = [_cost(c, cost) for c in result.candidates]
     ys = [c.objective * 100 for c in result.candidates]
     axes.scatter(xs[1:], ys[1:], marker="o", facecolors="none", edgecolors="black",
@@ -139,8 +130,55 @@ def candidate_scatter(result: SynthesisResult, folder: str | Path, cost: str = "
     axes.set_xlabel({"supply": "supply current", "hottest": "hottest part's use (%)",
                      "distinct": "distinct values"}[cost])
     if cost == "supply":
-        axes.xaxis.set_major_formatter(EngFormatter(unit="A"))
+        eng_axis(axes.xaxis, "A")
+    else:
+        plain_axis(axes.xaxis)
+    plain_axis(axes.yaxis)
     axes.set_ylabel("largest relative error (%)")
     axes.set_title(result.design.title or "ranked candidates", parse_math=False)
     axes.legend(loc="upper left", bbox_to_anchor=(1.02, 1.0), fontsize="small")
-    return _save(figure, out, stem)
+    return figure
+
+
+def _checked_pictures(checked: CheckResult, spread: SpreadResult | None) -> list[Picture]:
+    """Network, derating of each package and, with a spread, contributions and histograms."""
+    design = checked.design
+    pictures: list[Picture] = [("network", network_drawing(checked))]
+    pictures += [(f"derating-{_slug(package)}",
+                  derating_curve(design, checked.parts, package, spread=spread))
+                 for package in packages_used(checked.parts)]
+    if spread is not None:
+        pictures += [(f"contributions-{k}-{_slug(t.label)}",
+                      contribution_bars(spread, k - 1, unit=design.targets[k - 1].unit))
+                     for k, t in enumerate(spread.targets, 1)]
+        pictures += target_histograms(design, spread)
+    return pictures
+
+
+def check_pictures(result: CheckResult) -> list[Picture]:
+    """Every picture of a checked design, named by file stem.
+
+    The network with its values (``network``), the derating curve of each
+    package used (``derating-0603``) and, when the spread was analysed, each
+    target's contribution bars (``contributions-1-output``) and Monte Carlo
+    histogram (``spread-1-output``).
+    """
+    return _checked_pictures(result, result.spread)
+
+
+def design_pictures(result: SynthesisResult, cost: str = "supply",
+                    front: ErrorFront | None = None) -> list[Picture]:
+    """Every picture of a synthesis, named by file stem.
+
+    The candidate scatter (``candidates``), the error-against-supply front
+    when given (``front``), then the pictures of :func:`check_pictures` for
+    the best candidate.
+    """
+    pictures: list[Picture] = [("candidates", candidate_scatter(result, cost=cost))]
+    if front is not None:
+        pictures.append(("front", front_plot(front, result.candidates,
+                                             title=result.design.title or None)))
+    if result.candidates:
+        best = result.candidates[0]
+        pictures += _checked_pictures(best.check, best.spread)
+    return pictures
