@@ -80,3 +80,13 @@ def test_mirror_designs_tie_on_the_documented_order():
     pairs = [(c.values["R1"], c.values["R2"]) for c in ranked if c.objective < 1e-12]
     assert (24.0, 56.0) in pairs and (56.0, 24.0) in pairs
     assert pairs.index((24.0, 56.0)) < pairs.index((56.0, 24.0))
+
+
+def test_supply_first_breaks_a_tie_by_supply_before_the_other_keys():
+    # for the error-against-supply front [HB-epsilon-constraint]: among the tied objectives
+    # the lowest supply current first, whatever its distinct values and series
+    names = list(reversed(EXPECTED))
+    got = ranked([]).merged(ranked(names), top=len(names), supply_first=True)
+    order = [EXPECTED[len(EXPECTED) - int(i)] for i in got.indices[:, 0]]
+    assert order == ["coarsest, two values, lowest current", "fine, one value, low current",
+                     "fine, one value", "coarse, one value", "better still, but not a tie"]

@@ -20,6 +20,12 @@ def front_summary(front: ErrorFront) -> str:
     n = len(front.points)
     proven = sum(p.proven for p in front.points)
     basis = "over the tolerance box" if front.require == "worst-case" else "at nominal values"
+    if not n:
+        if front.complete:
+            return (f"no design meets every window and limit {basis}: the front is empty "
+                    f"(proven by {front.runs} exact search{'es' if front.runs != 1 else ''})")
+        return (f"no feasible design found before the {front.stopped}; the front is unknown"
+                if front.stopped else "no feasible design found; the front is unknown")
     text = (f"{n} front point{'s' if n != 1 else ''} from {front.runs} exact "
             f"search{'es' if front.runs != 1 else ''} (feasible {basis})")
     if front.complete:
@@ -34,7 +40,8 @@ def front_plot(front: ErrorFront, candidates: Sequence[Candidate] = (), *,
 
     The front is a staircase (the least error reachable within each supply
     budget), its points filled squares (open squares when unproven); the
-    ranked candidates, when given, are open circles labelled by rank.
+    ranked candidates, when given, are open circles labelled by rank (crosses,
+    named nearest designs, when none is feasible).
 
     Parameters
     ----------
@@ -85,8 +92,10 @@ def front_plot(front: ErrorFront, candidates: Sequence[Candidate] = (), *,
     if candidates:
         cx = [c.supply_current for c in candidates]
         cy = [c.objective * 100 for c in candidates]
-        ax.plot(cx, cy, linestyle="none", marker="o", markersize=8, markerfacecolor="none",
-                color="black", label="ranked candidates")
+        feasible = all(c.feasible for c in candidates)
+        ax.plot(cx, cy, linestyle="none", marker="o" if feasible else "x", markersize=8,
+                markerfacecolor="none", color="black",
+                label="ranked candidates" if feasible else "nearest designs (infeasible)")
         for c, x, y in zip(candidates, cx, cy, strict=True):
             ax.annotate(str(c.rank), (x, y), textcoords="offset points", xytext=(6, -10),
                         fontsize=7)

@@ -64,3 +64,30 @@ def test_an_unproven_front_says_so_on_a_given_axes():
     one = ErrorFront(points=(FrontPoint(1e-3, 0.01, {}, True),), complete=False, runs=1,
                      elapsed_s=0.1, stopped=None, require="nominal")
     assert front_summary(one).startswith("1 front point from 1 exact search (")
+
+
+def test_an_empty_front_says_that_nothing_is_feasible():
+    # 50 V from 100 V needs R1 = R2; the 0201 allows 25 mW, far below what 10..100 ohm
+    # take (at least 25 W) [HB-ohm] [CP-derating]: nothing is feasible
+    design = design_from_dict({
+        "design": {"package": "0201"},
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "value": "100 V"}],
+        "resistor": [{"ref": "R1", "nodes": ["in", "out"], "choose": "E12",
+                      "range": ["10", "100"]},
+                     {"ref": "R2", "nodes": ["out", "gnd"], "choose": "E12",
+                      "range": ["10", "100"]}],
+        "target": [{"voltage": "out", "equals": "50 V", "within": "1%"}]})
+    front = error_front(design)
+    assert front.points == () and front.complete
+    result = synthesize(design, top=2)
+    figure = front_plot(front, result.candidates)
+    labels = {line.get_label() for line in figure.axes[0].get_lines()}
+    assert labels == {"nearest designs (infeasible)"}
+    assert front_summary(front) == ("no design meets every window and limit at nominal "
+                                    "values: the front is empty (proven by 1 exact search)")
+    cut = ErrorFront((), False, 1, 1.0, "time limit 1 s", "nominal")
+    assert front_summary(cut) == ("no feasible design found before the time limit 1 s; "
+                                  "the front is unknown")
+    assert front_summary(ErrorFront((), False, 0, 0.0, None, "nominal")) == (
+        "no feasible design found; the front is unknown")
