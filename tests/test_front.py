@@ -165,3 +165,18 @@ def test_a_design_without_free_parts_is_refused():
         "target": [{"voltage": "in", "equals": "10 V"}]})
     with pytest.raises(DesignError, match="no resistor has choose"):
         error_front(design)
+
+
+def test_a_design_fed_by_a_current_source_has_one_point_at_no_supply():
+    # the supply current counts voltage sources and regulators only: a current source's
+    # design draws none, so the least error is the whole front; 1 mA x 3.3k = 3.3 V [HB-ohm]
+    design = design_from_dict({
+        "source": [{"ref": "I1", "kind": "current", "from": "gnd", "to": "out",
+                    "value": "1 mA"}],
+        "resistor": [{"ref": "R1", "nodes": ["out", "gnd"], "choose": "E12",
+                      "range": ["1k", "10k"]}],
+        "target": [{"voltage": "out", "equals": "3.3 V"}]})
+    front = error_front(design)
+    assert front.complete and front.runs == 1
+    assert [(p.supply_current, p.values) for p in front.points] == [(0.0, {"R1": 3300.0})]
+    assert front.points[0].objective == pytest.approx(0.0, abs=1e-12)
