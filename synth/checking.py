@@ -21,6 +21,7 @@ import numpy as np
 from synth.cautions import power_cautions, voltage_cautions
 from synth.circuit.measure import Evaluation, Evaluator
 from synth.circuit.nodal import nodal_solve
+from synth.circuit.solution import solution_difference
 from synth.design.model import Design
 from synth.errors import DesignError, nearest_name
 from synth.rating import exceeds, falls_short, use_of
@@ -30,19 +31,22 @@ from synth.spread.analyse import analyse_spread
 from synth.spread.records import SpreadResult, SpreadSettings
 
 
-def target_reports(design: Design, values: np.ndarray) -> tuple[TargetReport, ...]:
+def target_reports(design: Design, values: np.ndarray, noise: np.ndarray | None = None
+                   ) -> tuple[TargetReport, ...]:
     """Build :class:`TargetReport` rows from one candidate's target values.
 
     A target is met when its value lies inside its window, edges included
-    (with the slack of :data:`synth.rating.LIMIT_SLACK`).  Its error follows
+    (with the slack of :data:`synth.rating.LIMIT_SLACK`, or the value's noise
+    floor from ``noise`` where that is larger: :attr:`Evaluation.target_noise`).  Its error follows
     :meth:`synth.design.model.Target.error`: relative for a non-zero goal,
     absolute in the target's unit for a zero goal.
     """
     rows = []
-    for target, value in zip(design.targets, values, strict=True):
+    floors = np.zeros(len(design.targets)) if noise is None else noise
+    for target, value, floor in zip(design.targets, values, floors, strict=True):
         low, high = target.bounds
-        met = (bool(np.isfinite(value)) and not bool(falls_short(value, low))
-               and not bool(exceeds(value, high)))
+        met = (bool(np.isfinite(value)) and not bool(falls_short(value, low, floor))
+               and not bool(exceeds(value, high, floor)))
         error = None if target.equals is None else float(target.error(float(value)))
         if not met:
             status = "out of window"
@@ -236,7 +240,7 @@ def check_block(design: Design, evaluator: Evaluator, positions: np.ndarray,
     for row in range(len(positions)):
         v = result.solution.node_voltages[row]
         reports = _part_reports(design, evaluator, row, result, parts[row])
-        targets = target_reports(design, result.targets[row])
+        targets = target_reports(design, result.targets[row], result.target_noise[row])
         problems = [p for part in reports if part.kind == "resistor" for p in part_problems(part)]
         problems += [_window_problem(t) for t in targets if not t.met]
         max_voltage = float(v.max() - v.min())
@@ -323,12 +327,7 @@ def check(design: Design, *, values: Mapping[str, float] | None = None,
         solved = ev.evaluate(positions[None, :], part_values=parts[None, :]).solution
         net, src = ev.network, ev.nominal_sources
         other = nodal_solve(net, positions[None, :], src.voltages, src.currents, src.setpoints)
-        scale_v = max(float(np.abs(solved.node_voltages).max()), 1e-300)
-        scale_i = max(float(np.abs(solved.branch_currents).max()), 1e-300)
-        difference = max(
-            float(np.abs(other.node_voltages - solved.node_voltages).max()) / scale_v,
-            float(np.abs(other.branch_currents - solved.branch_currents).max()) / scale_i,
-        )
+        difference = solution_difference(solved, other, positions[None, :])
     spread_result = None
     if spread is None and design.require != "nominal":
         spread = SpreadSettings(samples=0) if design.require == "worst-case" else SpreadSettings()
@@ -355,7 +354,8 @@ def required_problems(design: Design, spread: SpreadResult | None) -> tuple[Prob
         for target, ts in zip(design.targets, spread.targets, strict=True):
             low, high = target.bounds
             for value in (ts.worst_low, ts.worst_high):
-                if not np.isfinite(value) or falls_short(value, low) or exceeds(value, high):
+                if (not np.isfinite(value) or falls_short(value, low, ts.noise)
+                        or exceeds(value, high, ts.noise)):
                     edge = low if value < low else high
                     problems.append(Problem("window", target.label, value, edge, target.unit,
                                             low=low, high=high, basis="worst case"))

@@ -20,13 +20,17 @@ Limits met exactly
 A value that meets its limit exactly meets it.  Limits are compared with a
 relative slack of :data:`LIMIT_SLACK` (1e-9), so float rounding of a design
 that lands on its limit (300 kΩ over 100 kΩ from 12 V drawing 30 µA against
-"at most 30 µA") does not turn it into a failure.
+"at most 30 µA") does not turn it into a failure.  A window on a quantity is
+also compared with a noise floor: :data:`NOISE_FRACTION` (1e-12) of the
+network's scale for that quantity (its largest node voltage for a voltage),
+so a node that is 0 V exactly but solves to -1e-16 V among 3.3 V sources
+meets "at least 0 V" (rounding of a solve is about 1e-16 of its scale).
 """
 
 from __future__ import annotations
 
 __all__ = [
-    "LIMIT_SLACK", "Allowance", "allowance", "allowed_power", "allowed_voltage",
+    "LIMIT_SLACK", "NOISE_FRACTION", "Allowance", "allowance", "allowed_power", "allowed_voltage",
     "derating_factor", "exceeds", "falls_short", "use_of",
 ]
 
@@ -39,6 +43,11 @@ from synth.catalog.packages import PackageRating
 
 LIMIT_SLACK = 1e-9
 """Relative slack of every limit comparison: a value within 1e-9 of its limit meets it."""
+
+NOISE_FRACTION = 1e-12
+"""Share of a network's scale below which a difference is float noise of an exact result
+(a solve rounds to about 1e-16 of its scale): a window edge is met within it, and a
+relative error smaller than it is shown as 0 %."""
 
 
 def derating_factor(
@@ -183,31 +192,47 @@ def use_of(value: ArrayLike, allowed: ArrayLike) -> np.ndarray:
     return np.where(allowed > 0, share, np.where(value > 0, np.inf, 0.0))
 
 
-def exceeds(value: ArrayLike, limit: ArrayLike) -> np.ndarray:
-    """True where ``value`` lies above an upper ``limit`` by more than :data:`LIMIT_SLACK`.
+def _slack(limit: np.ndarray, noise: ArrayLike) -> np.ndarray:
+    """The larger of the relative slack of ``limit`` and the absolute ``noise`` floor."""
+    with np.errstate(invalid="ignore"):
+        return np.maximum(LIMIT_SLACK * np.abs(limit), np.nan_to_num(  # type: ignore[no-any-return]  # numpy types this array expression as Any
+            np.asarray(noise, dtype=float), nan=0.0, posinf=0.0))
 
-    NaN limits (unrated parts, open windows) are never exceeded.
+
+def exceeds(value: ArrayLike, limit: ArrayLike, noise: ArrayLike = 0.0) -> np.ndarray:
+    """True where ``value`` lies above an upper ``limit`` by more than its slack.
+
+    The slack is :data:`LIMIT_SLACK` of the limit, or the absolute ``noise``
+    floor (the quantity's rounding, :data:`NOISE_FRACTION` of its network's
+    scale) where that is larger.  NaN limits (unrated parts, open windows)
+    are never exceeded.
 
     Examples
     --------
     >>> exceeds([3.0000000000000004e-05, 3.1e-05], 3e-05).tolist()
     [False, True]
-    """
-    value = np.asarray(value, dtype=float)
-    limit = np.asarray(limit, dtype=float)
-    with np.errstate(invalid="ignore"):
-        return value > limit + LIMIT_SLACK * np.abs(limit)  # type: ignore[no-any-return]  # numpy types this array expression as Any
-
-
-def falls_short(value: ArrayLike, limit: ArrayLike) -> np.ndarray:
-    """True where ``value`` lies below a lower ``limit`` by more than :data:`LIMIT_SLACK`.
-
-    Examples
-    --------
-    >>> falls_short([2.9999999999999996, 2.9], 3.0).tolist()
+    >>> exceeds([1e-16, 1e-3], 0.0, noise=3.3e-12).tolist()
     [False, True]
     """
     value = np.asarray(value, dtype=float)
     limit = np.asarray(limit, dtype=float)
     with np.errstate(invalid="ignore"):
-        return value < limit - LIMIT_SLACK * np.abs(limit)  # type: ignore[no-any-return]  # numpy types this array expression as Any
+        return value > limit + _slack(limit, noise)  # type: ignore[no-any-return]  # numpy types this array expression as Any
+
+
+def falls_short(value: ArrayLike, limit: ArrayLike, noise: ArrayLike = 0.0) -> np.ndarray:
+    """True where ``value`` lies below a lower ``limit`` by more than its slack.
+
+    The slack is that of :func:`exceeds`.
+
+    Examples
+    --------
+    >>> falls_short([2.9999999999999996, 2.9], 3.0).tolist()
+    [False, True]
+    >>> falls_short([-1.1e-16, -1e-3], 0.0, noise=3.3e-12).tolist()
+    [False, True]
+    """
+    value = np.asarray(value, dtype=float)
+    limit = np.asarray(limit, dtype=float)
+    with np.errstate(invalid="ignore"):
+        return value < limit - _slack(limit, noise)  # type: ignore[no-any-return]  # numpy types this array expression as Any

@@ -197,8 +197,9 @@ class CheckResult:
     problems : tuple of Problem
         One record per part over its allowance or target out of its window.
     verify_difference : float or None
-        Largest difference between mesh and nodal results, relative to the
-        largest voltage or current (None unless ``verify``).
+        Largest difference between mesh and nodal results, each quantity relative
+        to the larger of its two values with a floor from the network's scale
+        (:func:`synth.circuit.solution.solution_difference`; None unless ``verify``).
     filled : dict of str to float
         Free parts that had no value and were checked at their ideal value, ohm.
     spread : SpreadResult or None

@@ -31,6 +31,24 @@ def divider(top="10k", bottom="10k", supply="10 V", **extra_design):
     })
 
 
+def balanced_bridge(target, free=False, **design):
+    """±3.3 V through 4.7k and 4.7k with 1k to ground: the midpoint is 0 V exactly
+    [HB-divider]; ``free`` lets R2 be chosen from E12 between 1k and 10k."""
+    r2 = {"ref": "R2", "nodes": ["out", "b"], "value": "4.7k"}
+    if free:
+        r2.update(choose="E12", range=["1k", "10k"])
+    return design_from_dict({
+        "design": design,
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "a", "minus": "gnd",
+                    "value": "3.3 V"},
+                   {"ref": "V2", "kind": "voltage", "plus": "gnd", "minus": "b",
+                    "value": "3.3 V"}],
+        "resistor": [{"ref": "R1", "nodes": ["a", "out"], "value": "4.7k"}, r2,
+                     {"ref": "R3", "nodes": ["out", "gnd"], "value": "1k"}],
+        "target": [target],
+    })
+
+
 @pytest.fixture
 def tmp_design(tmp_path):
     """Write design text to a file and return its path."""

@@ -6,7 +6,7 @@ from __future__ import annotations
 
 __all__ = [
     "SparseMap", "as_block", "block_rows", "broadcast_rows", "fill_pattern", "ldl_solve",
-    "node_depths",
+    "node_depths", "resistance_scale",
 ]
 
 import numpy as np
@@ -163,3 +163,47 @@ def ldl_solve(
             np.subtract(rhs[i], rhs_scratch, out=rhs[i])
         np.multiply(rhs[i], inverse[i], out=rhs[i])
     return rhs
+
+
+_SCALE_ABOVE = 600
+"""Binary exponent of the largest resistance above which a block is solved per unit: sums
+and products of loop resistances near 2**1024 (1.8e308 ohm) would overflow."""
+
+_SCALE_BELOW = -600
+"""Binary exponent below which a block is solved per unit (loop currents would overflow)."""
+
+_SCALED_TOP = 500
+"""Binary exponent the largest resistance of a scaled candidate is brought to: high enough
+that the smallest ones of a wide network stay normal floats, low enough that loop sums
+and products of two entries stay finite."""
+
+
+def resistance_scale(r: np.ndarray) -> np.ndarray | None:
+    """Per-candidate powers of two to divide resistances ``(resistors, M)`` by, or None.
+
+    None (no scaling) for every ordinary block; only a block whose largest
+    resistance lies beyond about 1e180 ohm, or whose candidates have every
+    resistance below about 2e-181 ohm, is solved in per-unit form.  Dividing
+    by a power of two is exact, so scaled and unscaled solves agree wherever
+    both are finite.
+
+    Examples
+    --------
+    >>> resistance_scale(np.array([[1e3], [2e3]])) is None
+    True
+    >>> float(resistance_scale(np.array([[1e308], [1e308]]))[0]) == 2.0 ** 524
+    True
+    """
+    if r.size == 0:
+        return None
+    with np.errstate(invalid="ignore"):
+        top = np.max(np.abs(r), axis=0)
+    finite = np.isfinite(top) & (top > 0)
+    if not finite.any():
+        return None
+    exponent = np.frexp(np.where(finite, top, 1.0))[1]
+    shift = np.where(exponent > _SCALE_ABOVE, exponent - _SCALED_TOP,
+                     np.where(exponent < _SCALE_BELOW, exponent, 0))
+    if not shift.any():
+        return None
+    return np.ldexp(1.0, shift)

@@ -22,6 +22,7 @@ from synth.circuit.solution import MeshSolution
 from synth.design.model import Design
 from synth.design.target import Target
 from synth.errors import DesignError
+from synth.rating import NOISE_FRACTION
 
 
 @dataclass(frozen=True)
@@ -70,6 +71,10 @@ class Evaluation:
         ``(N, parts)`` each physical part's current (A), voltage (V, absolute)
         and dissipation (W), in the order of :attr:`Design.part_refs`, from
         :meth:`Position.split`.
+    target_noise : numpy.ndarray
+        ``(N, targets)`` each target value's noise floor in its unit:
+        :data:`synth.rating.NOISE_FRACTION` of the network's scale for that
+        quantity (see :func:`target_noise`); windows are met within it.
     """
 
     solution: MeshSolution
@@ -80,6 +85,7 @@ class Evaluation:
     part_current: np.ndarray
     part_voltage: np.ndarray
     part_power: np.ndarray
+    target_noise: np.ndarray
 
 
 class Evaluator:
@@ -237,7 +243,7 @@ class Evaluator:
         sol = self._solve(self.solver, r, src.voltages, src.currents, src.setpoints, gains)
         n_r = len(self.network.resistor_refs)
         i_r = sol.branch_currents[:, :n_r]
-        power = i_r * i_r * r
+        power = i_r * r * i_r  # (I·R)·I: neither I² nor I²·R leaves the float range first
         ends = self.network.resistor_ends
         across = np.abs(sol.node_voltages[:, ends[:, 0]] - sol.node_voltages[:, ends[:, 1]])
         targets = np.column_stack(
@@ -248,9 +254,50 @@ class Evaluator:
             part_i, part_u, part_p = self._split(r, i_r, across, power, part_values)
         else:
             part_i = part_u = part_p = np.zeros((len(r), 0))
+        noise = self.target_noise(sol, power)
         return Evaluation(solution=sol, targets=targets, resistor_power=power,
                           resistor_voltage=across, supply_current=supply,
-                          part_current=part_i, part_voltage=part_u, part_power=part_p)
+                          part_current=part_i, part_voltage=part_u, part_power=part_p,
+                          target_noise=noise)
+
+    def target_noise(self, sol: MeshSolution, power: np.ndarray) -> np.ndarray:
+        """``(N, targets)`` the noise floor of each target value, in the target's unit.
+
+        :data:`synth.rating.NOISE_FRACTION` of the network's scale for the
+        quantity: the largest node voltage (V) for a voltage, the largest
+        branch current (A) for a current, the largest dissipation (W) for a
+        power; for a ratio the voltage scale over the ratio's reference
+        voltage, for a loss the same through the logarithm (dB).  A resistance
+        has none (its slack is relative).  A solve rounds to about 1e-16 of
+        its scale, so a value within this floor of a window's edge cannot be
+        told from the edge.
+        """
+        n = len(sol.node_voltages)
+        out = np.zeros((n, len(self.design.targets)))
+        if not self.design.targets:
+            return out
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            def largest(values: np.ndarray) -> np.ndarray:
+                finite = np.where(np.isfinite(values), np.abs(values), 0.0)
+                return finite.max(axis=1, initial=0.0)  # type: ignore[no-any-return]  # numpy types this array expression as Any
+
+            v_scale = NOISE_FRACTION * largest(sol.node_voltages)
+            v = sol.node_voltages
+            idx = self.node_index
+            for k, target in enumerate(self.design.targets):
+                if target.kind == "voltage":
+                    out[:, k] = v_scale
+                elif target.kind == "current":
+                    out[:, k] = NOISE_FRACTION * largest(sol.branch_currents)
+                elif target.kind == "power":
+                    out[:, k] = NOISE_FRACTION * largest(power)
+                elif target.kind in ("ratio", "loss"):
+                    a, b, c, d = target.nodes
+                    num = np.abs(v[:, idx[a]] - v[:, idx[b]])
+                    den = np.abs(v[:, idx[c]] - v[:, idx[d]])
+                    out[:, k] = (v_scale / den if target.kind == "ratio"
+                                 else 20.0 / np.log(10.0) * v_scale * (1 / num + 1 / den))
+        return np.nan_to_num(out, nan=0.0, posinf=0.0)
 
     def _split(self, r: np.ndarray, current: np.ndarray, across: np.ndarray, power: np.ndarray,
                part_values: np.ndarray | None

@@ -42,6 +42,7 @@ from synth.circuit.kernels import (
     fill_pattern,
     ldl_solve,
     node_depths,
+    resistance_scale,
 )
 from synth.circuit.network import Network
 from synth.circuit.solution import MeshSolution
@@ -344,6 +345,12 @@ class MeshSolver:
             out = (np.empty((len(self.network.nodes), m)),
                    np.empty((len(self.network.branch_refs), m)), np.empty((self.n_g, m)))
         voltages, currents, outputs = out
+        scale = resistance_scale(r)
+        if scale is not None:
+            # per-unit form: R' = R / s, J' = s J and loop currents s i leave every voltage
+            # as it is; s is a power of two, so nothing is rounded on the way
+            r = r / scale
+            j = j * scale
         work = self._workspace(m)
         rhs = work["rhs"]
         main = rhs[:, 0] if self.n_g else rhs
@@ -379,6 +386,8 @@ class MeshSolver:
             else:
                 branch, sign_v = outputs[b - n_rv - self.n_i], -sign
             (np.add if sign_v > 0 else np.subtract)(voltages[parent], branch, out=voltages[child])
+        if scale is not None:
+            currents /= scale
         return voltages, currents, outputs
 
     def _workspace(self, m: int) -> dict[str, np.ndarray]:

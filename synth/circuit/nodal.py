@@ -23,7 +23,7 @@ __all__ = ["nodal_solve"]
 import numpy as np
 from numpy.typing import ArrayLike
 
-from synth.circuit.kernels import broadcast_rows
+from synth.circuit.kernels import broadcast_rows, resistance_scale
 from synth.circuit.network import ControlledBranch, Network
 from synth.circuit.solution import MeshSolution
 
@@ -111,6 +111,22 @@ def nodal_solve(
     n_g = len(network.regulator_refs)
     e, j = broadcast_rows(voltages, n_v, n), broadcast_rows(currents, n_i, n)
     s = broadcast_rows(setpoints, n_g, n)
+    gain = broadcast_rows(gains if gains is not None else [c.gain for c in network.controlled],
+                          len(network.controlled), n)
+    scale = resistance_scale(r.T)
+    if scale is not None:
+        # per unit, as the mesh solve: R / s, and every current s times larger (voltages
+        # as they are), so conductances near 1e-308 S are not subnormal; a gain from a
+        # current to a voltage shrinks by s, one from a voltage to a current grows by s
+        r, j = r / scale[:, None], j * scale[:, None]
+        factor = np.ones_like(gain)
+        for k, c in enumerate(network.controlled):
+            by_current = c.control_nodes is None
+            if by_current and c.voltage_output:
+                factor[:, k] = 1.0 / scale
+            elif not by_current and not c.voltage_output:
+                factor[:, k] = scale
+        gain = gain * factor
     inc_r = _incidence(network.resistor_ends, n_nodes)[1:]
     inc_v = _incidence(network.vsource_ends, n_nodes)[1:]
     inc_i = _incidence(network.isource_ends, n_nodes)[1:]
@@ -136,8 +152,6 @@ def nodal_solve(
     rhs[:, :m] = -(fixed_j @ inc_i.T)
     rhs[:, m:m + n_v] = e
     rhs[:, m + n_v:] = s
-    gain = broadcast_rows(gains if gains is not None else [c.gain for c in network.controlled],
-                 len(network.controlled), n)
     for k, c in enumerate(network.controlled):
         coeff, const = _control_row(network, c, r, j, m, size)
         coeff, const = coeff * gain[:, k:k + 1], const * gain[:, k]
@@ -159,5 +173,7 @@ def nodal_solve(
             coeff, const = _control_row(network, c, r, j, m, size)
             j_all[:, c.slot] = gain[:, k] * (np.einsum("ns,ns->n", coeff, x) + const)
     branch_i = np.concatenate([i_r, x[:, m:m + n_v], j_all, x[:, m + n_v:]], axis=1)
+    if scale is not None:
+        branch_i /= scale[:, None]
     outputs = node_v[:, network.regulator_ends[:, 1]] if n_g else np.zeros((n, 0))
     return MeshSolution(node_voltages=node_v, branch_currents=branch_i, regulator_outputs=outputs)

@@ -6,8 +6,7 @@ __all__ = ["NOISE_FRACTION", "json_number"]
 
 import math
 
-NOISE_FRACTION = 1e-12
-"""Relative errors smaller than this are float noise of an exact result: shown as 0 %."""
+from synth.rating import NOISE_FRACTION  # relative errors below it are shown as 0 %
 
 
 def json_number(value: float | None) -> float | None:

@@ -99,17 +99,21 @@ class SearchProblem:
 
     # ----- exact measures of enumerated candidates -----
 
-    def feasible(self, targets: np.ndarray, power: np.ndarray, volts: np.ndarray
-                 ) -> np.ndarray:
-        """``(M,)`` True where every window and every part's limits hold (with the slack)."""
+    def feasible(self, targets: np.ndarray, power: np.ndarray, volts: np.ndarray,
+                 noise: np.ndarray | float = 0.0) -> np.ndarray:
+        """``(M,)`` True where every window and every part's limits hold (with the slack).
+
+        ``noise`` is each target value's noise floor (:attr:`Evaluation.target_noise`).
+        """
         ok: np.ndarray = np.all(np.isfinite(targets), axis=1)
-        ok &= ~np.any(falls_short(targets, self.low) | exceeds(targets, self.high), axis=1)
+        ok &= ~np.any(falls_short(targets, self.low, noise)
+                      | exceeds(targets, self.high, noise), axis=1)
         if power.shape[1]:
             ok &= ~np.any(exceeds(power, self.allowed_p) | exceeds(volts, self.allowed_v), axis=1)
         return ok
 
-    def violations(self, targets: np.ndarray, power: np.ndarray, volts: np.ndarray
-                   ) -> np.ndarray:
+    def violations(self, targets: np.ndarray, power: np.ndarray, volts: np.ndarray,
+                   noise: np.ndarray | float = 0.0) -> np.ndarray:
         """Largest relative violation of any window or limit, ``(M,)``; 0 when all hold.
 
         Windows count in units of the target's scale, limits as the share
@@ -130,7 +134,8 @@ class SearchProblem:
         if power.shape[1]:
             worst = np.maximum(worst, np.max(over_p, axis=1))
             worst = np.maximum(worst, np.max(over_v, axis=1))
-        return np.where(self.feasible(targets, power, volts), 0.0, np.maximum(worst, 0.0))
+        return np.where(self.feasible(targets, power, volts, noise), 0.0,
+                        np.maximum(worst, 0.0))
 
     def errors(self, targets: np.ndarray) -> np.ndarray:
         """Largest ``|value - goal| / scale`` over ``equals`` targets, ``(M,)``."""
@@ -147,10 +152,12 @@ class SearchProblem:
         ev = self.evaluate(r, parts)
         error = self.errors(ev.targets)
         if self.relaxed:
-            objective = self.violations(ev.targets, ev.part_power, ev.part_voltage)
+            objective = self.violations(ev.targets, ev.part_power, ev.part_voltage,
+                                        ev.target_noise)
             keep = np.isfinite(objective)
         else:
-            keep = self.feasible(ev.targets, ev.part_power, ev.part_voltage) & np.isfinite(error)
+            keep = (self.feasible(ev.targets, ev.part_power, ev.part_voltage, ev.target_noise)
+                    & np.isfinite(error))
             if self.max_supply_a is not None:
                 keep &= ev.supply_current <= self.max_supply_a
             if self.robust is not None and keep.any():
@@ -194,6 +201,7 @@ class SearchProblem:
             return v.min(axis=1), v.max(axis=1)
 
         t_lo, t_hi = span(ev.targets)
+        _, noise = span(ev.target_noise)  # the largest floor of any vertex
         current = ev.solution.branch_currents[:, : self.n_r]
         i_lo, i_hi = span(current)
         node_v = ev.solution.node_voltages
@@ -234,7 +242,8 @@ class SearchProblem:
                               part_p_lo / self.position_allowed_p - 1)
             over_v = np.where(np.isnan(self.position_allowed_v), -np.inf,
                               part_u_lo / self.position_allowed_v - 1)
-        broken = (np.any(exceeds(t_lo, self.high) | falls_short(t_hi, self.low), axis=1)
+        broken = (np.any(exceeds(t_lo, self.high, noise) | falls_short(t_hi, self.low, noise),
+                         axis=1)
                   | np.any(exceeds(part_p_lo, self.position_allowed_p)
                            | exceeds(part_u_lo, self.position_allowed_v), axis=1))
         if self.max_supply_a is not None and not self.relaxed:
@@ -273,3 +282,4 @@ def distinct_values(values: np.ndarray) -> np.ndarray:
     changes = np.concatenate([finite[:, :1], (np.diff(ordered, axis=1) != 0) & finite[:, 1:]],
                              axis=1)
     return changes.sum(axis=1).astype(np.int64)  # type: ignore[no-any-return]  # numpy types this array expression as Any
+

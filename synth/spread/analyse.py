@@ -148,6 +148,8 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
             sensitivities={name: float(sens[i, j]) for i, name in enumerate(var.names)},
             mc_mean=None, mc_std=None, mc_values=None, inside=None, rss_abs=rss_abs,
             rss_terms=terms,
+            noise=float(max(np.max(vertices.target_noise[:, j], initial=0.0),
+                            nominal.target_noise[0, j])),
         ))
 
     parts = part_spread(design, ev, var, bits if exact else None, vertices, nominal, p_v)

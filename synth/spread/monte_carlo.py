@@ -77,7 +77,7 @@ def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, parts0: np.
         if kept is not None:
             kept[rows] = result.targets
         stats.add(result.targets)
-        inside = inside_windows(design, result.targets)
+        inside = inside_windows(design, result.targets, result.target_noise)
         inside_count += inside.sum(axis=0)
         good = inside.all(axis=1)
         good &= ~np.any(exceeds(result.part_power, ev.allowed_power)

@@ -73,6 +73,10 @@ class TargetSpread:
         unit squared: ``(tolerance term, temperature-drift term)``, each the
         squared product of the target's slope and the quantity's relative
         half-width.  Their sum over every quantity is ``rss_abs ** 2``.
+    noise : float
+        The largest noise floor of the target's value over the nominal point
+        and the vertices solved (:attr:`synth.circuit.measure.Evaluation.target_noise`):
+        the worst case meets a window edge within it.
     """
 
     label: str
@@ -93,6 +97,7 @@ class TargetSpread:
     mc_min: float | None = None
     mc_max: float | None = None
     rss_terms: dict[str, tuple[float, float]] = field(default_factory=dict)
+    noise: float = 0.0
 
     def variance_shares(self) -> dict[str, float]:
         """Each varying quantity's share of the root-sum-square variance (they add up to 1).

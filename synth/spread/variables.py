@@ -145,11 +145,17 @@ def box_corners(n: int) -> np.ndarray:
     return ((np.arange(2 ** n)[:, None] >> np.arange(n)[None, :]) & 1).astype(bool)
 
 
-def inside_windows(design: Design, values: np.ndarray) -> np.ndarray:
-    """``(M, targets)`` True where each target lies in its window (edges and slack included)."""
+def inside_windows(design: Design, values: np.ndarray, noise: np.ndarray | float = 0.0
+                   ) -> np.ndarray:
+    """``(M, targets)`` True where each target lies in its window (edges and slack included).
+
+    ``noise`` is each value's noise floor, ``(M, targets)``
+    (:attr:`synth.circuit.measure.Evaluation.target_noise`).
+    """
     inside = np.ones(values.shape, dtype=bool)
+    floor = np.broadcast_to(np.asarray(noise, dtype=float), values.shape)
     for j, t in enumerate(design.targets):
         low, high = t.bounds
-        inside[:, j] = (np.isfinite(values[:, j]) & ~falls_short(values[:, j], low)
-                        & ~exceeds(values[:, j], high))
+        inside[:, j] = (np.isfinite(values[:, j]) & ~falls_short(values[:, j], low, floor[:, j])
+                        & ~exceeds(values[:, j], high, floor[:, j]))
     return inside

@@ -77,6 +77,7 @@ class WorstCase:
             )
         self.bits = box_corners(len(self.var))
         self.factors = np.where(self.bits, self.var.high[None, :], self.var.low[None, :])
+        self._noise = np.zeros((0, len(design.targets)))  # of the last stress, per target
 
     def stress(self, positions: np.ndarray, parts: np.ndarray
                ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
@@ -104,6 +105,7 @@ class WorstCase:
         n_t, n_p = len(self.design.targets), parts.shape[1]
         low, high = np.empty((m, n_t)), np.empty((m, n_t))
         power, voltage = np.empty((m, n_p)), np.empty((m, n_p))
+        noise = np.empty((m, n_t))
         block = max(1, (1 << 17) // n_v)
         src = self.ev.nominal_sources
         columns = self.var.column_of_part()
@@ -118,6 +120,7 @@ class WorstCase:
             values = ev.targets.reshape(count, n_v, -1)
             low[start:start + count] = values.min(axis=1)
             high[start:start + count] = values.max(axis=1)
+            noise[start:start + count] = ev.target_noise.reshape(count, n_v, -1).max(axis=1)
             p = ev.part_power.reshape(count, n_v, -1)
             worst = p.max(axis=1)
             current = ev.part_current.reshape(count, n_v, -1)
@@ -137,6 +140,7 @@ class WorstCase:
                     if cols.stop - cols.start == 1:
                         high[start:start + count, k_t] = np.maximum(
                             high[start:start + count, k_t], worst[:, cols.start])
+        self._noise = noise
         return low, high, power, voltage
 
     def holds(self, positions: np.ndarray, parts: np.ndarray) -> np.ndarray:
@@ -148,10 +152,12 @@ class WorstCase:
         comparisons are those of :mod:`synth.rating`, slack included.
         """
         low, high, power, voltage = self.stress(positions, parts)
+        noise = self._noise  # the largest noise floor of each target over each box
         ok: np.ndarray = np.all(np.isfinite(low) & np.isfinite(high), axis=1)
         for j, target in enumerate(self.design.targets):
             w_low, w_high = target.bounds
-            ok &= ~falls_short(low[:, j], w_low) & ~exceeds(high[:, j], w_high)
+            ok &= (~falls_short(low[:, j], w_low, noise[:, j])
+                   & ~exceeds(high[:, j], w_high, noise[:, j]))
         ok &= ~np.any(exceeds(power, self.ev.allowed_power)
                       | exceeds(voltage, self.ev.allowed_voltage), axis=1)
         return ok

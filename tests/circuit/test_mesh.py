@@ -318,3 +318,38 @@ def test_kirchhoff_current_law_and_power_balance(seed):
         delivered = float((across[n_r:] * currents[n_r:]).sum())
         assert delivered == pytest.approx(dissipated, rel=1e-8, abs=1e-15)
     assert isinstance(MeshSolver(build_network(design)).loop_count, int)
+
+
+@pytest.mark.parametrize(("ohms", "current_source"), [
+    (1e308, 0.0), (1.7e308, 0.0), (1e300, 0.0), (1e-300, 0.0), (1e308, 1e-308),
+])
+def test_resistances_near_the_float_limits_are_solved_per_unit(ohms, current_source):
+    # 10 V across R + R: 5 V at the tap [HB-divider], 10 V / 2R through both [HB-ohm];
+    # a current source J into the tap adds J·R/2 there; solved unscaled, R + R
+    # overflows (1e308 + 1e308 = inf) and every voltage but the source's came out 0 V
+    net = build_network(design_from_dict({
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "value": 10.0},
+                   {"ref": "J1", "kind": "current", "from": "gnd", "to": "out",
+                    "value": current_source}],
+        "resistor": [{"ref": "R1", "nodes": ["in", "out"], "value": ohms},
+                     {"ref": "R2", "nodes": ["out", "gnd"], "value": ohms}]}))
+    expected = 5.0 + current_source * ohms / 2
+    for solution in (MeshSolver(net).solve([[ohms, ohms]], voltages=[10.0],
+                                           currents=[current_source]),
+                     nodal_solve(net, [[ohms, ohms]], voltages=[10.0],
+                                 currents=[current_source])):
+        out = solution.node_voltages[0, net.nodes.index("out")]
+        assert out == pytest.approx(expected, rel=1e-14)
+        assert solution.branch_currents[0, 0] == pytest.approx(
+            (10.0 - expected) / ohms, rel=1e-14)
+
+
+def test_ordinary_blocks_are_solved_as_they_are():
+    from synth.circuit.kernels import resistance_scale
+
+    # no scaling at all unless a resistance lies beyond about 1e180 ohm (or all below
+    # 1e-181): the everyday solve is bit for bit what it was
+    assert resistance_scale(np.array([[1.0, 1e15], [1e-3, 1e170]])) is None
+    scale = resistance_scale(np.array([[1e3, 1e308], [1e3, 1.0]]))
+    assert scale is not None and scale[0] == 1.0 and np.log2(scale[1]) == 524

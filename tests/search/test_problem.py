@@ -38,3 +38,15 @@ def test_series_position_is_limited_part_by_part_not_as_a_whole():
     best = result.candidates[0]
     across = best.check.nodes["in"] - best.check.nodes["out"]
     assert across > 25 * 0.8  # more than one part could take alone
+
+
+def test_a_band_of_zero_width_at_0_v_is_found_where_the_bridge_balances():
+    # R2 = R1 = 4.7k puts the midpoint at 0 V exactly [HB-divider]; the loop solve rounds
+    # it to about 1e-16 V of a 3.3 V network, within its noise floor [CP-noise-floor], so
+    # the search keeps that candidate (and its box) instead of calling the band infeasible
+    from conftest import balanced_bridge
+
+    design = balanced_bridge({"voltage": "out", "at_least": "0 V", "at_most": "0 V"},
+                             free=True)
+    result = synthesize(design, top=3)
+    assert result.feasible and [c.values for c in result.candidates] == [{"R2": 4700.0}]

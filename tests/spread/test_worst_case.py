@@ -70,3 +70,17 @@ def test_require_worst_case_refuses_a_box_whose_interior_breaks_the_limit(limit)
     assert [c.values["RL"] for c in robust.candidates] == [75.0, 68.0, 150.0]
     for c in robust.candidates:
         assert holds_over_the_box(c.values["RL"])
+
+
+def test_the_worst_case_meets_a_zero_edge_within_the_noise_floor():
+    # exact parts and sources: the box is the nominal point, 0 V at the balanced
+    # midpoint [HB-divider], rounded to about 1e-16 V [CP-noise-floor]
+    from synth.checking import check
+
+    from conftest import balanced_bridge
+
+    design = balanced_bridge({"voltage": "out", "at_least": "0 V", "at_most": "0 V"},
+                             tolerance="0%", require="worst-case")
+    result = check(design)
+    assert result.spread is not None and result.spread.targets[0].noise > 0
+    assert result.ok and result.problems == ()
