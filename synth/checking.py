@@ -23,7 +23,7 @@ from synth.circuit.measure import Evaluation, Evaluator
 from synth.circuit.nodal import nodal_solve
 from synth.circuit.solution import solution_difference
 from synth.design.model import Design
-from synth.errors import DesignError, nearest_name
+from synth.errors import DesignError, name_list, nearest_name
 from synth.rating import exceeds, falls_short, use_of
 from synth.results import CheckResult, PartReport, Problem, TargetReport
 from synth.search.ideal import ideal_values
@@ -94,7 +94,7 @@ def resolve_values(design: Design, given: Mapping[str, float] | None = None
     if unknown:
         raise DesignError(
             f"{design.origin}: values name {unknown[0]!r}, not a resistor of the design"
-            f"{nearest_name(unknown[0], known)}; use the designators {', '.join(sorted(known))}"
+            f"{nearest_name(unknown[0], known)}; use the designators {name_list(sorted(known))}"
         )
     positions, parts = [], []
     missing = []
@@ -103,8 +103,8 @@ def resolve_values(design: Design, given: Mapping[str, float] | None = None
         named = [ref for ref in position.part_refs if ref in given and ref != resistor.ref]
         if named and len(named) < position.count:
             absent = [ref for ref in position.part_refs if ref not in given]
-            raise DesignError(f"{design.origin}: values give {', '.join(named)} but not "
-                              f"{', '.join(absent)}; give every part of {resistor.ref}")
+            raise DesignError(f"{design.origin}: values give {name_list(named)} but not "
+                              f"{name_list(absent)}; give every part of {resistor.ref}")
         if named:
             values = np.array([given[ref] for ref in position.part_refs], dtype=float)
         elif resistor.ref in given:
@@ -128,7 +128,7 @@ def resolve_values(design: Design, given: Mapping[str, float] | None = None
         positions.append(float(position.effective(values[None, :])[0]))
     if missing:
         raise DesignError(
-            f"{design.origin}: {', '.join(missing)} still need a value for check; add value = "
+            f"{design.origin}: {name_list(missing)} still need a value for check; add value = "
             "\"...\" to each or run rnsynth design to choose them"
         )
     return np.array(positions, dtype=float), np.array(parts, dtype=float)
@@ -321,6 +321,7 @@ def check(design: Design, *, values: Mapping[str, float] | None = None,
     positions, parts = resolve_values(design, given)
     ev = Evaluator(design, typical_resistances=positions)
     ev.check_regulators(positions)
+    ev.check_ratios(positions)
     result = check_block(design, ev, positions[None, :], parts[None, :])[0]
     difference = None
     if verify:

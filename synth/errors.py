@@ -9,7 +9,7 @@ an engineering answer, not a bug, and the command line exits 1 for it.
 
 from __future__ import annotations
 
-__all__ = ["DesignError", "InfeasibleError", "RnsynthError", "nearest_name"]
+__all__ = ["DesignError", "InfeasibleError", "RnsynthError", "excerpt", "name_list", "nearest_name"]
 
 import difflib
 from collections.abc import Iterable
@@ -53,3 +53,35 @@ def nearest_name(word: str, choices: Iterable[str]) -> str:
         if word.lower() in lowered:
             close = [lowered[word.lower()]]
     return f"; did you mean '{close[0]}'?" if close else ""
+
+
+def excerpt(text: str, limit: int = 40) -> str:
+    """A user's name or text as a message shows it: itself when short and printable, else
+    quoted (a newline stays on the line as \\n) and cut to about ``limit`` characters.
+
+    Examples
+    --------
+    >>> excerpt("R1"), excerpt("R\\n1"), excerpt("x" * 50)[-6:]
+    ('R1', "'R\\\\n1'", "xx...'")
+    """
+    if text.isprintable() and len(text) <= limit:
+        return text
+    shown = repr(text)
+    return shown if len(shown) <= limit + 2 else shown[:limit] + "..." + shown[0]
+
+
+def name_list(names: Iterable[str], limit: int = 10) -> str:
+    """Names for a message: at most ``limit`` of them, then how many there are in all.
+
+    Examples
+    --------
+    >>> name_list(["0402", "0603"]), name_list(f"R{k}" for k in range(1, 21))
+    ('0402, 0603', 'R1, R2, R3, R4, R5, R6, R7, R8, R9, R10, ... (20 in all)')
+    >>> name_list([])
+    '(none)'
+    """
+    pool = list(names)
+    if not pool:
+        return "(none)"
+    text = ", ".join(excerpt(name) for name in pool[:limit])
+    return text if len(pool) <= limit else f"{text}, ... ({len(pool):,} in all)"

@@ -55,6 +55,17 @@ def _series_label(value: float, choice: Choices) -> str:
     return coarsest_series(value) or choice.label
 
 
+def _probes(design: Design, choices: list[Choices]) -> np.ndarray:
+    """``(3, resistors)`` value sets: every free part at its lowest, middle and highest choice."""
+    base = np.array([r.value if r.value is not None else 1.0 for r in design.resistors])
+    probes = np.tile(base, (3, 1))
+    index = {r.ref: k for k, r in enumerate(design.resistors)}
+    for choice in choices:
+        values = choice.values
+        probes[:, index[choice.ref]] = values[[0, len(values) // 2, -1]]
+    return probes
+
+
 def _candidates(design: Design, evaluator: Evaluator, choices: list[Choices],
                 indices: np.ndarray) -> list[Candidate]:
     """Re-check ranked candidates in one batched solve and build their records."""
@@ -231,6 +242,7 @@ def synthesize(
     evaluator = Evaluator(design)
     worst = (WorstCase(design, evaluator)
              if rank_by == "worst-case" or require == "worst-case" else None)
+    evaluator.check_ratios(_probes(design, choices))
     ideal = ideal_values(design, evaluator)
     seeds = _seeds(choices, ideal)
     by_yield = rank_by == "yield" or require == "yield"

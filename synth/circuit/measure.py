@@ -355,6 +355,41 @@ class Evaluator:
                                       np.array(kept, dtype=int))
         return self._without[without]
 
+    def check_ratios(self, resistances: np.ndarray) -> None:
+        """Refuse a ratio or loss whose reference voltage is zero for every value set given.
+
+        A reference voltage within the noise floor of the network's voltage
+        scale (:data:`synth.rating.NOISE_FRACTION`) counts as zero: 0 / 0 (a
+        network whose sources are all 0 V) and noise / noise say nothing.
+
+        Raises
+        ------
+        DesignError
+            Naming the target and the reference voltage.
+        """
+        ratios = [(k, t) for k, t in enumerate(self.design.targets)
+                  if t.kind in ("ratio", "loss")]
+        if not ratios:
+            return
+        src = self.nominal_sources
+        sol = self._solve(self.solver, np.atleast_2d(resistances), src.voltages,
+                          src.currents, src.setpoints, src.gains)
+        v = sol.node_voltages
+        with np.errstate(invalid="ignore"):
+            scale = np.where(np.isfinite(v), np.abs(v), 0.0).max(axis=1, initial=0.0)
+        for _, target in ratios:
+            _, _, c, d = target.nodes
+            den = np.abs(v[:, self.node_index[c]] - v[:, self.node_index[d]])
+            if np.all(~(den > NOISE_FRACTION * scale)):
+                reference = f"V({c})" if d == self.design.ground else f"V({c}) - V({d})"
+                volts = "every voltage of the network is 0 V" if not np.any(scale > 0) \
+                    else "it is 0 V up to rounding"
+                raise DesignError(
+                    f"{self.design.origin}, target {_excerpt(target.label)}: the {target.kind}'s "
+                    f"reference voltage {reference} is 0 V for these values ({volts}), so "
+                    f"the {target.kind} is undefined; drive that node pair with a source "
+                    "or measure against another pair")
+
     def check_regulators(self, resistances: np.ndarray) -> None:
         """Refuse a design whose regulating element cannot move its sense node.
 
@@ -375,9 +410,18 @@ class Evaluator:
                 "unique solution (their loop gain is exactly one); check their gains and "
                 "control connections"
             )
+        # an output far beyond what the sources could drive through the network's resistors
+        # (1e12 times it) is the pole of a sense node the output cannot move
+        r = np.atleast_2d(resistances)
+        with np.errstate(over="ignore", invalid="ignore"):
+            drive = max(np.max(np.abs(src.voltages), initial=0.0),
+                        np.max(np.abs(src.setpoints), initial=0.0),
+                        np.max(np.abs(src.currents), initial=0.0)
+                        * float(np.max(np.abs(r), initial=0.0)), 1.0)
         for k, ref in enumerate(self.network.regulator_refs):
             out = sol.regulator_outputs[:, k]
-            if not np.all(np.isfinite(out)) or np.any(np.abs(out) > 1e12):
+            if (not np.all(np.isfinite(out)) and np.isfinite(drive)) or np.any(
+                    np.abs(out) > 1e12 * drive):
                 raise DesignError(
                     f"{self.design.origin}, regulator {ref}: its output cannot move its sense "
                     "node, so nothing sets its voltage; connect the sense node to the output "
@@ -393,3 +437,9 @@ def _typical(resistor: object) -> float:
     if span is not None:
         return float(np.sqrt(span[0] * span[1]))
     return 1e3
+
+
+def _excerpt(text: str, limit: int = 40) -> str:
+    """A user's label quoted on one line, cut to ``limit`` characters."""
+    shown = repr(text)
+    return shown if len(shown) <= limit + 2 else shown[:limit] + "..." + shown[0]

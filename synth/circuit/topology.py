@@ -11,7 +11,7 @@ from typing import Any, Protocol
 
 import numpy as np
 
-from synth.errors import DesignError
+from synth.errors import DesignError, name_list
 
 
 class Graph(Protocol):
@@ -81,7 +81,7 @@ def check_topology(network: Graph) -> None:
     if stranded:
         island = [names[i] for i in stranded]
         parts = sorted({refs[k] for k, (a, b) in enumerate(ends) if a in stranded or b in stranded})
-        raise DesignError(f"{origin}: node(s) {', '.join(island)} (parts {', '.join(parts)}) "
+        raise DesignError(f"{origin}: node(s) {name_list(island)} (parts {name_list(parts)}) "
                           f"have no path to ground {names[0]!r}; connect them to the rest")
 
     voltage_defined = UnionFind(n)
@@ -89,7 +89,7 @@ def check_topology(network: Graph) -> None:
         if kinds[k] == "voltage" and not voltage_defined.union(int(a), int(b)):
             loop = [refs[j] for j in range(k + 1) if kinds[j] == "voltage"]
             raise DesignError(f"{origin}, {refs[k]}: voltage sources and regulator outputs "
-                              f"{', '.join(loop)} close a "
+                              f"{name_list(loop)} close a "
                               f"loop through nodes {names[a]!r} and {names[b]!r} with no "
                               "resistor in it; remove one or add a resistor in series")
 
@@ -102,8 +102,8 @@ def check_topology(network: Graph) -> None:
         cut = [names[i] for i in fed]
         sources = sorted({refs[k] for k, (a, b) in enumerate(ends)
                           if kinds[k] == "current" and ((a in fed) != (b in fed))})
-        raise DesignError(f"{origin}: node(s) {', '.join(cut)} are reached only through current "
-                          f"source(s) {', '.join(sources)}, a cut of current sources with no "
+        raise DesignError(f"{origin}: node(s) {name_list(cut)} are reached only through current "
+                          f"source(s) {name_list(sources)}, a cut of current sources with no "
                           "defined voltage; add a resistor from them to the rest")
 
     # a regulator whose sense and reference nodes independent voltage sources already join:

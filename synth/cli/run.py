@@ -84,6 +84,9 @@ def quick_run(tables: dict[str, Any], origin: str, quick: QuickOptions, search: 
                spread: SpreadOptions, rules: Rules | None = None) -> None:
     from synth.design.reader import design_from_dict
     from synth.files import write_atomic
+    from synth.templates.passive import option_names
+
+    names = option_names(tables)
 
     prepared = None
     if quick.package.lower() == "auto":
@@ -97,11 +100,11 @@ def quick_run(tables: dict[str, Any], origin: str, quick: QuickOptions, search: 
                               min_yield=None if search.min_yield is None
                               else search.min_yield.value)
 
-        tables, design, prepared, chosen = synthesize_auto(tables, origin, run)
+        tables, design, prepared, chosen = synthesize_auto(tables, origin, run, options=names)
         if not search.as_json:
             click.echo("packages chosen: " + ", ".join(map(str, chosen)))
     else:
-        design = design_from_dict(tables, origin=origin)
+        design = design_from_dict(tables, origin=origin, options=names)
     if quick.save is not None:
         import tomli_w
 

@@ -110,7 +110,11 @@ def _board_file(path: Path, data: dict[str, Any]) -> tuple[str, list[BoardNetwor
                               "check the path")
     networks = []
     entries = data.get("network", [])
-    if not isinstance(entries, list) or not entries:
+    if not isinstance(entries, list):
+        raise DesignError(f"{path}: network must be [[network]] tables, not "
+                          f"{type(entries).__name__}; write each as [[network]] with "
+                          "file = \"design.toml\"")
+    if not entries:
         raise DesignError(f"{path}: the board lists no networks; add [[network]] tables with "
                           "file = \"design.toml\"")
     for index, entry in enumerate(entries, start=1):

@@ -4,15 +4,48 @@
 from __future__ import annotations
 
 __all__ = [
-    "ItemReader", "item_label", "node_pair", "range_end", "read_ohms", "table_array",
-    "temperature_end",
+    "ItemReader", "fail_item", "item_label", "node_pair", "option_names", "range_end",
+    "read_ohms", "table_array", "temperature_end",
 ]
 
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Callable, Iterator, Mapping, Sequence
+from contextlib import contextmanager
+from contextvars import ContextVar
 from typing import Any, NoReturn
 
-from synth.errors import DesignError, nearest_name
+from synth.errors import DesignError, excerpt, nearest_name
 from synth.units import parse_fraction, parse_resistance, parse_temperature
+
+_OPTION_NAMES: ContextVar[Mapping[tuple[str, str], str] | None] = ContextVar("option_names",
+                                                                           default=None)
+
+
+@contextmanager
+def option_names(names: Mapping[tuple[str, str], str]) -> Iterator[None]:
+    """While reading, refuse the key ``key`` of item ``item`` under the option it came from.
+
+    ``names`` maps ``(item, key)`` (``("resistor RLOAD", "value")``) to the
+    command-line option that wrote it (``"--load"``): a design built from a
+    quick command's options is then refused in the user's words.
+    """
+    token = _OPTION_NAMES.set(names)
+    try:
+        yield
+    finally:
+        _OPTION_NAMES.reset(token)
+
+
+def fail_item(origin: str, item: str, problem: str) -> NoReturn:
+    """Raise the one-line refusal of ``item``: ``"origin, item: problem"``, or, when the
+    problem is about a key a command-line option gave, ``"--option ..."``."""
+    for (named, key), option in (_OPTION_NAMES.get() or {}).items():
+        if named == item and (problem == key or problem.startswith((f"{key} ", f"{key}:"))):
+            raise DesignError(f"{option}{problem[len(key):]}")
+    raise DesignError(f"{origin}, {item}: {problem}")
+
+
+_FREE_TEXT = ("title", "note", "notes")
+"""Keys whose text is free (shown as written); every other text key is a name."""
 
 
 class ItemReader:
@@ -30,7 +63,7 @@ class ItemReader:
                 )
 
     def fail(self, problem: str) -> NoReturn:
-        raise DesignError(f"{self.origin}, {self.item}: {problem}")
+        fail_item(self.origin, self.item, problem)
 
     def has(self, key: str) -> bool:
         return key in self.table
@@ -42,7 +75,11 @@ class ItemReader:
             return default
         value = self.table[key]
         if not isinstance(value, str) or not value.strip():
-            self.fail(f"{key} must be a non-empty text in quotes, not {value!r}")
+            self.fail(f"{key} must be a non-empty text in quotes, not {excerpt(repr(value))}")
+        if key not in _FREE_TEXT and not value.strip().isprintable():
+            # a newline or tab in a designator, node or name would split report rows
+            self.fail(f"{key} {excerpt(value.strip())} holds a control character (a newline, "
+                      "tab, ...); write it on one line in printable characters")
         return value.strip()
 
     def parsed(self, key: str, parse: Callable[[Any], float], default: Any = None) -> float:
@@ -78,12 +115,12 @@ def read_ohms(raw: Any) -> float:
 
 def node_pair(reader: ItemReader, key: str, ground: str) -> tuple[str, str]:
     raw = reader.table[key]
-    if isinstance(raw, str) and raw.strip():
+    if isinstance(raw, str) and raw.strip() and raw.strip().isprintable():
         return raw.strip(), ground
     if (
         isinstance(raw, list)
         and len(raw) == 2
-        and all(isinstance(n, str) and n.strip() for n in raw)
+        and all(isinstance(n, str) and n.strip() and n.strip().isprintable() for n in raw)
     ):
         return raw[0].strip(), raw[1].strip()
     reader.fail(f"{key} must be a node name or a pair of node names such as [\"out\", \"gnd\"]")

@@ -21,7 +21,7 @@ from synth.design.fields import (
 )
 from synth.design.model import Resistor
 from synth.design.position import MAX_PARTS, Position
-from synth.errors import DesignError, nearest_name
+from synth.errors import DesignError, name_list, nearest_name
 from synth.inputs import present
 from synth.units import (
     parse_tcr,
@@ -49,7 +49,8 @@ def read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
     ref = reader.text("ref")
     nodes = raw.get("nodes")
     if not (isinstance(nodes, list) and len(nodes) == 2
-            and all(isinstance(n, str) and n.strip() for n in nodes)):
+            and all(isinstance(n, str) and n.strip() and n.strip().isprintable()
+                    for n in nodes)):
         reader.fail('nodes must be a pair of node names such as ["in", "out"]')
     a, b = nodes[0].strip(), nodes[1].strip()
     if a == b:
@@ -118,7 +119,7 @@ def read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
     if package is not None and package not in packages:
         hint = nearest_name(package, packages)
         reader.fail(f"package {package!r} is not in the package table{hint}; "
-                    f"use one of {', '.join(sorted(packages))} or add a row to your table")
+                    f"use one of {name_list(sorted(packages))} or add a row to your table")
     return Resistor(
         ref=ref, nodes=(a, b), value=value, choose=choose, stock_path=stock_path, range=span,
         tolerance=tolerance, tcr=tcr, package=package, position=position, bom=bom,

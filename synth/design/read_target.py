@@ -13,7 +13,7 @@ from synth.design.fields import (
     item_label,
     node_pair,
 )
-from synth.design.target import TARGET_KINDS, TARGET_UNITS, Target
+from synth.design.target import SMALLEST_GOAL, TARGET_KINDS, TARGET_UNITS, Target
 from synth.errors import DesignError
 from synth.units import (
     parse_decibels,
@@ -119,9 +119,18 @@ def read_target(origin: str, index: int, raw: Any, ground: str) -> Target:
         if isinstance(text, str) and text.strip().endswith(("%", "ppm")):
             within_rel = reader.fraction("within", "0%", upper=10.0, strict=True)
         else:
-            within_abs = abs(_target_quantity(reader, kind, "within"))
+            within_abs = _target_quantity(reader, kind, "within")
+            if within_abs < 0:
+                reader.fail(f"within {str(text)[:40]!r} is negative; a window is a half-width "
+                            f"on each side of the goal, write it without a sign")
             if within_abs == 0:
                 reader.fail("within must be wider than zero")
+    for key, size in (("equals", equals), ("within", within_abs)):
+        if size is not None and size != 0 and abs(size) < SMALLEST_GOAL:
+            shown = str(raw[key])
+            reader.fail(f"{key} {shown[:40]!r} is too small to measure errors against (a "
+                        f"non-zero goal or window is at least {SMALLEST_GOAL:g} in its unit); "
+                        f"give it in its unit, or use equals = 0 with an absolute within")
     if equals is None and at_least is None and at_most is None:
         reader.fail("give equals (with an optional within), at_least or at_most")
     if equals is not None and (at_least is not None or at_most is not None):

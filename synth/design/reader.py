@@ -24,14 +24,16 @@ from synth.design.active import read_active_parts
 from synth.design.checks import check_references
 from synth.design.fields import (
     ItemReader,
+    fail_item,
     item_label,
+    option_names,
     table_array,
     temperature_end,
 )
 from synth.design.model import REQUIREMENTS, Design, Regulator, Source
 from synth.design.read_resistor import read_resistor
 from synth.design.read_target import read_target
-from synth.errors import DesignError, nearest_name
+from synth.errors import DesignError, name_list, nearest_name
 from synth.inputs import present
 from synth.units import (
     parse_quantity,
@@ -187,7 +189,8 @@ def _read_regulator(origin: str, index: int, raw: Any) -> Regulator:
 
 
 
-def design_from_dict(data: Mapping[str, Any], origin: str = "<design>") -> Design:
+def design_from_dict(data: Mapping[str, Any], origin: str = "<design>", *,
+                     options: Mapping[tuple[str, str], str] | None = None) -> Design:
     """Validate a parsed design (the dict ``tomllib`` gives) into a :class:`Design`.
 
     Parameters
@@ -196,6 +199,10 @@ def design_from_dict(data: Mapping[str, Any], origin: str = "<design>") -> Desig
         Tables as in a design file.
     origin : str
         Named in error messages: the file path, or a description.
+    options : mapping, optional
+        For a design built from command-line options: the option behind each
+        ``(item, key)`` (``("resistor RLOAD", "value")`` -> ``"--load"``), which
+        a refusal of that key names instead of the item.
 
     Raises
     ------
@@ -212,6 +219,11 @@ def design_from_dict(data: Mapping[str, Any], origin: str = "<design>") -> Desig
     >>> [r.value for r in d.resistors]
     [10000.0, 10000.0]
     """
+    with option_names(options or {}):
+        return _design(data, origin)
+
+
+def _design(data: Mapping[str, Any], origin: str) -> Design:
     for key in data:
         if key not in _TOP_KEYS:
             raise DesignError(f"{origin}: unknown table {key!r}{nearest_name(key, _TOP_KEYS)} "
@@ -228,9 +240,9 @@ def design_from_dict(data: Mapping[str, Any], origin: str = "<design>") -> Desig
         packages = load_package_table()
     if settings["default_package"] and settings["default_package"] not in packages:
         name = settings["default_package"]
-        raise DesignError(f"{origin}, [design]: package {name!r} is not in the package "
-                          f"table{nearest_name(name, packages)}; use one of "
-                          f"{', '.join(sorted(packages))}")
+        fail_item(origin, "[design]", f"package {name!r} is not in the package "
+                  f"table{nearest_name(name, packages)}; use one of "
+                  f"{name_list(sorted(packages))}")
     sources = tuple(_read_source(origin, i, s)
                     for i, s in enumerate(table_array(origin, data, "source"), 1))
     resistors = tuple(read_resistor(origin, i, r, settings, packages)

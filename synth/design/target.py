@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-__all__ = ["TARGET_KINDS", "TARGET_UNITS", "Target"]
+__all__ = ["SMALLEST_GOAL", "TARGET_KINDS", "TARGET_UNITS", "Target"]
 
 import math
 from dataclasses import dataclass
@@ -12,6 +12,11 @@ import numpy as np
 TARGET_KINDS = ("voltage", "current", "ratio", "power", "resistance", "loss")
 TARGET_UNITS = {"voltage": "V", "current": "A", "power": "W", "resistance": "Ω", "ratio": "",
                 "loss": "dB"}
+
+SMALLEST_GOAL = 1e-100
+"""Least size of a non-zero goal and of an absolute window, in the target's unit: errors are
+measured in units of them, and below this a value of the network (up to 1e200 V or A) would
+give an error beyond the float range (70 orders of magnitude below a quectovolt)."""
 
 @dataclass(frozen=True)
 class Target:

@@ -47,7 +47,10 @@ def bounded_least_squares(fun: Callable[[np.ndarray], np.ndarray],
     """
     x = np.clip(np.asarray(x0, dtype=float), lo, hi)
     f = fun(x)
-    cost = 0.5 * float(f @ f)
+    with np.errstate(over="ignore", invalid="ignore"):
+        cost = 0.5 * float(f @ f)
+    if not np.isfinite(cost):
+        return x, np.inf  # residuals beyond the float range: nothing to descend on
     damping = 1e-3
     for _ in range(max_iter):
         if cost < 1e-30:
@@ -72,7 +75,8 @@ def bounded_least_squares(fun: Callable[[np.ndarray], np.ndarray],
                 continue
             trial = np.clip(x + step, lo, hi)
             f_trial = fun(trial)
-            cost_trial = 0.5 * float(f_trial @ f_trial)
+            with np.errstate(over="ignore", invalid="ignore"):
+                cost_trial = 0.5 * float(f_trial @ f_trial)
             if cost_trial < cost:
                 moved = float(np.max(np.abs(trial - x)))
                 gain = cost - cost_trial
@@ -146,12 +150,18 @@ def ideal_values(design: Design, evaluator: Evaluator | None = None) -> dict[str
     flat = hi - lo < 1e-12
     hi = np.where(flat, lo + 1e-9, hi)
 
-    def residuals(points: np.ndarray) -> np.ndarray:
+    norm = [1.0]  # residuals are divided by their size at the middle of the box
+
+    def raw_residuals(points: np.ndarray) -> np.ndarray:
         r = np.tile(base, (len(points), 1))
         r[:, index] = np.exp(points)
         with np.errstate(all="ignore"):
-            res = _residuals(design, ev.evaluate(r).targets)
-        return np.nan_to_num(res, nan=1e6, posinf=1e6, neginf=-1e6)  # type: ignore[no-any-return]  # numpy types this array expression as Any
+            return _residuals(design, ev.evaluate(r).targets)
+
+    def residuals(points: np.ndarray) -> np.ndarray:
+        with np.errstate(all="ignore"):
+            res = raw_residuals(points) / norm[0]
+        return np.nan_to_num(res, nan=1e6, posinf=1e6, neginf=-1e6)
 
     def residual(logs: np.ndarray) -> np.ndarray:
         return residuals(logs[None, :])[0]  # type: ignore[no-any-return]  # numpy types this array expression as Any
@@ -164,8 +174,14 @@ def ideal_values(design: Design, evaluator: Evaluator | None = None) -> dict[str
         return (values[1:] - values[0]).T / step  # type: ignore[no-any-return]  # numpy types this array expression as Any
 
     middle = (lo + hi) / 2
-    if residual(middle).size == 0:
+    first = raw_residuals(middle[None, :])[0]
+    if first.size == 0:
         return {}
+    # a goal far below what the network gives (1e-90 V from 10 V), or a source far beyond
+    # it, makes residuals whose squares overflow; one common factor leaves the best fit
+    # where it is
+    sizes = np.abs(first[np.isfinite(first)])
+    norm[0] = min(max(1.0, float(sizes.max())), 1e300) if sizes.size else 1.0
     # several starts: a network with a negative conductance (a controlled source) can
     # have a local minimum at the edge of the box far from a near-zero-error point
     rng = np.random.default_rng(0)
@@ -177,4 +193,6 @@ def ideal_values(design: Design, evaluator: Evaluator | None = None) -> dict[str
             best_x, best_cost = x, cost
         if best_cost < 1e-24:
             break
+    if not np.all(np.isfinite(best_x)):
+        best_x = middle  # no fit at all: the middle of each range, as the search starts
     return {r.ref: float(np.exp(v)) for r, v in zip(free, best_x, strict=True)}

@@ -121,7 +121,10 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
     targets = []
     for j, t in enumerate(design.targets):
         column = vertices.targets[:, j]
-        lo_at, hi_at = int(np.nanargmin(column)), int(np.nanargmax(column))
+        known = np.isfinite(column)
+        # a target undefined at every vertex keeps NaN extremes (and the first corner)
+        lo_at = int(np.nanargmin(np.where(known, column, np.inf))) if known.any() else 0
+        hi_at = int(np.nanargmax(np.where(known, column, -np.inf))) if known.any() else 0
 
         def corner(at: int) -> dict[str, str]:
             return {name: "+" if bits[at, i] else "-" for i, name in enumerate(var.names)}

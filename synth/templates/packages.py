@@ -22,6 +22,8 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from typing import Any
 
+import numpy as np
+
 from synth.catalog.packages import PackageRating
 from synth.checking import check
 from synth.design.model import Design
@@ -89,8 +91,12 @@ def _first_choice(design: Design, order: list[PackageRating], ref: str, power_w:
     tallest = max(order, key=lambda p: (p.limiting_voltage_v, p.rated_power_w))
     share = allowance(tallest, ambient_c=design.rating_ambient_c,
                       max_power_use=design.margin_frac, max_voltage_use=design.voltage_margin_frac)
-    count = max(2, math.ceil(voltage_v / share.voltage_v * 1.05),
-                math.ceil(power_w / max(share.power_w, 1e-300) * 1.05))
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        need = np.array([voltage_v / share.voltage_v, power_w / max(share.power_w, 1e-300)])
+    # a stress beyond any string (or not a number at all) takes the longest string: the
+    # search then judges it and names the limit
+    need = np.where(np.isfinite(need), need * 1.05, MAX_PARTS)
+    count = max(2, math.ceil(min(float(need.max()), MAX_PARTS)))
     return PackageChoice(ref, tallest.name, min(count, MAX_PARTS))
 
 
@@ -108,7 +114,8 @@ def _apply(tables: dict[str, Any], choices: dict[str, PackageChoice]) -> dict[st
 
 
 def synthesize_auto(tables: dict[str, Any], origin: str,
-                    run: Callable[[Design], SynthesisResult]
+                    run: Callable[[Design], SynthesisResult],
+                    options: Mapping[tuple[str, str], str] | None = None,
                     ) -> tuple[dict[str, Any], Design, SynthesisResult, list[PackageChoice]]:
     """Choose packages for a quick design's free parts, then search with ``run``.
 
@@ -120,6 +127,9 @@ def synthesize_auto(tables: dict[str, Any], origin: str,
         Named in messages.
     run : callable
         Runs the search on a design (the caller's settings: top, spread, ...).
+    options : mapping, optional
+        The command-line option behind each ``(item, key)``, for the reader's
+        refusals (see :func:`synth.templates.passive.option_names`).
 
     Returns
     -------
@@ -132,7 +142,7 @@ def synthesize_auto(tables: dict[str, Any], origin: str,
     for row in bare.get("resistor", []):
         if "choose" in row:
             row.pop("package", None)
-    unrated = design_from_dict(bare, origin=origin)
+    unrated = design_from_dict(bare, origin=origin, options=options)
     order = package_order(unrated.packages)
     ideal = check(unrated)
     stress = {p.ref: (p.power, abs(p.voltage)) for p in ideal.parts if p.kind == "resistor"}
@@ -140,7 +150,7 @@ def synthesize_auto(tables: dict[str, Any], origin: str,
                for r in unrated.free_resistors}
     index = {p.name: k for k, p in enumerate(order)}
     chosen = _apply(tables, choices)
-    design = design_from_dict(chosen, origin=origin)
+    design = design_from_dict(chosen, origin=origin, options=options)
     result = run(design)
     for _ in range(AUTO_ROUNDS - 1):
         if result.feasible or not result.candidates:
@@ -160,6 +170,6 @@ def synthesize_auto(tables: dict[str, Any], origin: str,
         if not stepped:
             break
         chosen = _apply(tables, choices)
-        design = design_from_dict(chosen, origin=origin)
+        design = design_from_dict(chosen, origin=origin, options=options)
         result = run(design)
     return chosen, design, result, [choices[r.ref] for r in unrated.free_resistors]

@@ -10,8 +10,9 @@ from __future__ import annotations
 
 __all__ = [
     "QuickSettings",
-    "default_window", "design_table", "divider_tables", "free_part", "led_tables", "pad_ideal",
-    "pad_tables", "read_option", "regulator_tables", "value_range", "with_goal",
+    "default_window", "design_table", "divider_tables", "free_part", "led_tables",
+    "option_names", "pad_ideal", "pad_tables", "read_option", "regulator_tables", "value_range",
+    "with_goal",
 ]
 
 from dataclasses import dataclass
@@ -300,3 +301,63 @@ def pad_tables(impedance: str, loss: str, shape: str, settings: QuickSettings
                       f"{db:.12g} dB", settings),
         ],
     }
+
+
+_ITEM_OPTIONS = {
+    ("[design]", "ambient"): "--ambient", ("[design]", "max_power_use"): "--margin",
+    ("[design]", "package"): "--package",
+    ("resistor RLOAD", "value"): "--load", ("resistor RS", "value"): "--impedance",
+    ("resistor RL", "value"): "--impedance", ("resistor RIN", "value"): "--input-resistance",
+    ("source VIN", "value"): "--input", ("source VS", "value"): "--supply",
+    ("source VCC", "value"): "--supply", ("source IPIN", "value"): "--pin-current",
+    ("regulator U1", "setpoint"): "--reference",
+    ("transistor Q1", "beta"): "--beta", ("transistor Q1", "vbe"): "--vbe",
+    ("amplifier U1", "open_loop_gain"): "--open-loop-gain",
+}
+"""The option behind each fixed item a quick command writes, by (item, key)."""
+
+_TARGET_OPTIONS = {
+    ("output", "equals"): "--output", ("supply current", "at_most"): "--max-current",
+    ("divider current", "at_least"): "--min-current",
+    ("divider current", "at_most"): "--max-current", ("LED current", "equals"): "--current",
+    ("input match", "equals"): "--impedance", ("output match", "equals"): "--impedance",
+    ("loss", "equals"): "--loss", ("collector current", "equals"): "--collector-current",
+    ("collector voltage", "equals"): "--collector-voltage", ("gain", "equals"): "--gain",
+    ("input resistance", "equals"): "--input-resistance",
+}
+"""The option behind each target a quick command writes, by (target name, key)."""
+
+
+def option_names(tables: dict[str, Any]) -> dict[tuple[str, str], str]:
+    """The command-line option behind each ``(item, key)`` of a quick command's tables.
+
+    Handed to :func:`synth.design.reader.design_from_dict`, so that a value
+    the reader refuses is named by the option the user typed (``--load``),
+    not by the item the command built (``resistor RLOAD``).
+
+    Examples
+    --------
+    >>> names = option_names(divider_tables("12 V", "3 V", QuickSettings(), load="10k"))
+    >>> names[("resistor RLOAD", "value")], names[("target 'output'", "within")]
+    ('--load', '--within')
+    >>> names[("resistor R1", "choose")], names[("[design]", "max_power_use")]
+    ('--series', '--margin')
+    """
+    names = dict(_ITEM_OPTIONS)
+    for row in tables.get("resistor", []):
+        if "choose" in row:
+            item = f"resistor {row['ref']}"
+            names.update({(item, "choose"): "--series", (item, "range"): "--range",
+                          (item, "package"): "--package"})
+    for row in tables.get("source", []):
+        if str(row.get("ref", "")).startswith("D") and row.get("note") == "LED forward drop":
+            names[(f"source {row['ref']}", "value")] = "--forward"
+    for row in tables.get("target", []):
+        name = row.get("name", "")
+        item = f"target {name!r}"
+        for key in ("equals", "at_least", "at_most"):
+            if (name, key) in _TARGET_OPTIONS:
+                names[(item, key)] = _TARGET_OPTIONS[(name, key)]
+        if name != "input resistance":  # its 5 % window is the command's own
+            names[(item, "within")] = "--within"
+    return names
