@@ -35,6 +35,7 @@ import numpy as np
 
 from synth.circuit.measure import Evaluator
 from synth.design.model import Design
+from synth.search.chains import SearchSpace
 from synth.search.choices import Choices
 from synth.search.problem import RobustCheck, SearchProblem, TargetRanges
 from synth.search.ranking import TIE_TOLERANCE, RankedCandidates
@@ -113,6 +114,7 @@ def search(
     part_limits: bool = True,
     max_supply_a: float | None = None,
     supply_first: bool = False,
+    chains: bool = True,
 ) -> SearchOutcome:
     """Find the ``top`` best candidates by branch and bound.
 
@@ -153,6 +155,11 @@ def search(
     supply_first : bool
         Break a tie in the objective by the lower supply current first (see
         :meth:`RankedCandidates.merged`).
+    chains : bool
+        Bound each series chain of free positions by its sum
+        (:mod:`synth.search.chains`); False bounds every position apart.  The
+        result is the same either way; chains make under-determined designs
+        fast.
 
     Returns
     -------
@@ -180,14 +187,18 @@ def search(
         ranked = ranked.merged(seeded, top, supply_first)
         if len(ranked.objective) >= top:
             bar = float(ranked.objective[-1])
-    leaf_size = max(_LEAF_MIN, _LEAF_PER_VERTEX * 2 ** k)
-    if k == 0 or total <= leaf_size:
+    if k == 0 or total <= max(_LEAF_MIN, _LEAF_PER_VERTEX * 2 ** k):
         found, n = problem.score(_enumerate(np.zeros(k, np.int64), sizes - 1))
         return SearchOutcome(ranked.merged(found, top, supply_first), True, n + evaluated, total,
                              time.perf_counter() - start)
+    # boxes span the space's axes (a chain of positions is one axis of sums)
+    space = SearchSpace(problem, chains)
+    bounds = space.bounds
+    k = len(space.sizes)
+    leaf_size = max(_LEAF_MIN, _LEAF_PER_VERTEX * 2 ** k)
     lo = np.zeros((1, k), dtype=np.int64)
-    hi = (sizes - 1)[None, :]
-    bound, feasible = problem.box_bounds(lo, hi)
+    hi = (space.sizes - 1)[None, :]
+    bound, feasible = bounds.box_bounds(lo, hi)
     evaluated += 2 ** k
     open_lo, open_hi, open_bound = lo[feasible], hi[feasible], bound[feasible]
     settled = 0 if feasible[0] else total
@@ -200,7 +211,7 @@ def search(
                           else math.inf)
         keep = open_bound <= current_bar + TIE_TOLERANCE
         if not keep.all():
-            volume = np.prod((open_hi[~keep] - open_lo[~keep] + 1).astype(float), axis=1)
+            volume = space.volume(open_lo[~keep], open_hi[~keep])
             settled += int(volume.sum())
             open_lo, open_hi, open_bound = open_lo[keep], open_hi[keep], open_bound[keep]
             if not len(open_bound):
@@ -209,7 +220,7 @@ def search(
             # half the batch by lowest bound (best first), half by smallest box (depth
             # first): the dive finds good candidates early, which raises the bar; past
             # the frontier cap only the smallest boxes are taken, to drain it
-            volume = np.prod((open_hi - open_lo + 1).astype(float), axis=1)
+            volume = space.volume(open_lo, open_hi)
             half = 0 if len(open_bound) > _FRONTIER_CAP else _BATCH_BOXES // 2
             deep = np.argpartition(volume, _BATCH_BOXES - half)[: _BATCH_BOXES - half]
             best = np.argpartition(open_bound, half)[:half] if half else deep[:0]
@@ -221,11 +232,13 @@ def search(
         b_lo, b_hi = open_lo[pick], open_hi[pick]
         open_lo, open_hi, open_bound = open_lo[rest], open_hi[rest], open_bound[rest]
         counts = b_hi - b_lo + 1
-        volume = np.prod(counts.astype(float), axis=1)
-        leaf = volume <= leaf_size
+        volume = space.volume(b_lo, b_hi)
+        # a box of one sum per chain cannot be split further, however many candidates
+        leaf = (volume <= leaf_size) | np.all(counts == 1, axis=1)
         if leaf.any():
-            batch = _enumerate_boxes(b_lo[leaf], b_hi[leaf])
-            found, n = problem.score(batch)
+            batch = space.candidates(_enumerate_boxes(*space.places(b_lo[leaf], b_hi[leaf])))
+            found, n = problem.score(batch, worst=float(ranked.objective[-1])
+                                     if len(ranked.objective) >= top else math.inf)
             evaluated += n
             ranked = ranked.merged(found, top, supply_first)
             settled += int(volume[leaf].sum())
@@ -240,12 +253,11 @@ def search(
             right_lo[rows, axis] = middle + 1
             c_lo = np.concatenate([s_lo, right_lo])
             c_hi = np.concatenate([left_hi, s_hi])
-            c_bound, c_feasible = problem.box_bounds(c_lo, c_hi)
+            c_bound, c_feasible = bounds.box_bounds(c_lo, c_hi)
             evaluated += len(c_lo) * 2 ** k
             dropped = ~c_feasible
             if dropped.any():
-                settled += int(np.prod((c_hi[dropped] - c_lo[dropped] + 1).astype(float),
-                                       axis=1).sum())
+                settled += int(space.volume(c_lo[dropped], c_hi[dropped]).sum())
             open_lo = np.concatenate([open_lo, c_lo[c_feasible]])
             open_hi = np.concatenate([open_hi, c_hi[c_feasible]])
             open_bound = np.concatenate([open_bound, c_bound[c_feasible]])

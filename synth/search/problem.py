@@ -14,7 +14,7 @@ from synth.circuit.measure import Evaluation, Evaluator
 from synth.design.model import Design
 from synth.rating import exceeds, falls_short
 from synth.search.choices import Choices
-from synth.search.ranking import RankedCandidates
+from synth.search.ranking import TIE_TOLERANCE, RankedCandidates
 
 TargetRanges = Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]]
 """Given positions ``(M, resistors)`` and parts ``(M, parts)`` ohm, the ``(low, high)`` of every
@@ -49,6 +49,7 @@ class SearchProblem:
         self.design, self.ev, self.choices, self.relaxed = design, evaluator, choices, relaxed
         self.target_ranges = target_ranges
         self.robust = robust
+        self.part_limits = part_limits
         self.free = np.array([evaluator.resistor_index[c.ref] for c in choices], dtype=int)
         self.base = np.array([r.value if r.value is not None else 1.0 for r in design.resistors])
         self.base_parts = evaluator.part_values(self.base[None, :])[0]
@@ -145,8 +146,14 @@ class SearchProblem:
             self.has_goal]
         return np.where(np.all(np.isfinite(err), axis=1), err.max(axis=1), np.inf)
 
-    def score(self, indices: np.ndarray) -> tuple[RankedCandidates, int]:
-        """Exact objective of each candidate; infeasible ones dropped unless relaxed."""
+    def score(self, indices: np.ndarray, worst: float = np.inf
+              ) -> tuple[RankedCandidates, int]:
+        """Exact objective of each candidate; infeasible ones dropped unless relaxed.
+
+        ``worst`` is the objective of the last of the best candidates kept so
+        far: candidates in a later tie class (:data:`TIE_TOLERANCE`) cannot
+        enter them and are dropped before the tie-break keys are computed.
+        """
         r = self.resistances(indices)
         parts = self.part_values(indices)
         ev = self.evaluate(r, parts)
@@ -171,13 +178,16 @@ class SearchProblem:
                                     np.abs(low[:, self.has_goal] - g)) / self.scale[self.has_goal]
                 objective[keep] = np.where(np.all(np.isfinite(spread), axis=1),
                                            spread.max(axis=1), np.inf)
+        if np.isfinite(worst):
+            keep &= np.floor(objective / TIE_TOLERANCE) <= np.floor(worst / TIE_TOLERANCE)
+        kept = indices[keep]
+        parts = parts[keep]
         free_parts = (np.concatenate([parts[:, cols] for cols in self.free_columns], axis=1)
-                      if self.free_columns else np.zeros((len(indices), 0)))
-        ranks = np.zeros(len(indices), dtype=np.int64)
+                      if self.free_columns else np.zeros((len(kept), 0)))
+        ranks = np.zeros(len(kept), dtype=np.int64)
         for p, c in enumerate(self.choices):
-            ranks += c.rank[indices[:, p]]
-        ranked = RankedCandidates(indices[keep], objective[keep],
-                                  distinct_values(free_parts[keep]), ranks[keep],
+            ranks += c.rank[kept[:, p]]
+        ranked = RankedCandidates(kept, objective[keep], distinct_values(free_parts), ranks,
                                   ev.supply_current[keep])
         return ranked, len(indices)
 
