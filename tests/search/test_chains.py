@@ -162,3 +162,17 @@ def test_a_regulator_sense_node_is_named():
         "target": [{"voltage": "out", "equals": "5 V"}],
     })
     assert not _space(design).reduced
+
+
+def test_a_supply_budget_is_kept_with_chains():
+    # 12 V over at least 12.5 kohm of chain: at most 0.96 mA [HB-ohm]
+    design = DESIGNS["one tap of five"]
+    ev = Evaluator(design)
+    choices = [choices_for(r) for r in design.free_resistors]
+    with_chains = search(design, ev, choices, top=5, max_supply_a=0.96e-3)
+    without = search(design, ev, choices, top=5, max_supply_a=0.96e-3, chains=False)
+    assert with_chains.proven and without.proven
+    np.testing.assert_array_equal(with_chains.ranked.indices, without.ranked.indices)
+    total = [sum(c.values[i] for c, i in zip(choices, row, strict=True))
+             for row in with_chains.ranked.indices]
+    assert min(total) >= 12 / 0.96e-3
