@@ -242,7 +242,9 @@ def synthesize(
     evaluator = Evaluator(design)
     worst = (WorstCase(design, evaluator)
              if rank_by == "worst-case" or require == "worst-case" else None)
-    evaluator.check_ratios(_probes(design, choices))
+    probes = _probes(design, choices)
+    evaluator.check_regulators(probes)  # the solver's rules, as check applies them
+    evaluator.check_ratios(probes)
     ideal = ideal_values(design, evaluator)
     seeds = _seeds(choices, ideal)
     by_yield = rank_by == "yield" or require == "yield"

@@ -392,14 +392,18 @@ def format_rkm(ohms: float, digits: int = 3) -> str:
 
     Examples
     --------
-    >>> format_rkm(4700), format_rkm(0.47), format_rkm(1e6)
-    ('4K7', 'R47', '1M0')
+    >>> format_rkm(4700), format_rkm(0.47), format_rkm(1e6), format_rkm(1e308)
+    ('4K7', 'R47', '1M0', '1.00e308')
     """
     if ohms < 0 or not math.isfinite(ohms):
         raise DesignError(f"{ohms!r} ohm has no letter-and-digit code; give a value >= 0")
     if ohms == 0:
         return "0R"
     rounded = float(f"{ohms:.{digits}g}")
+    if rounded >= 1e15:
+        # beyond the code's largest letter (T, 10^12) the digits would run to hundreds:
+        # the value is written in scientific notation instead
+        return f"{rounded:.{digits - 1}e}".replace("e+", "e")
     for letter, factor in (("T", 1e12), ("G", 1e9), ("M", 1e6), ("K", 1e3), ("R", 1.0)):
         if rounded >= factor or (letter == "R" and rounded >= 1e-2):
             break

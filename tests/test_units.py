@@ -150,6 +150,15 @@ def test_engineering_notation_written(value, unit, text):
     assert format_eng(value, unit) == text
 
 
+@pytest.mark.parametrize(("ohms", "code"), [(1e308, "1.00e308"), (4.7e15, "4.70e15"),
+                                           (999e12, "999T")])
+def test_values_beyond_the_largest_letter_are_written_in_scientific_notation(ohms, code):
+    # the code's largest letter is T, 10^12 [IEC60062] [MEM-rkm-T]: 1e308 ohm written with
+    # it took 297 digits; the short form still reads back as the same value
+    assert format_rkm(ohms) == code
+    assert parse_resistance(code) == pytest.approx(ohms, rel=5e-3)
+
+
 def test_negative_resistance_has_no_code():
     with pytest.raises(DesignError, match="no letter-and-digit code"):
         format_rkm(-1)

@@ -49,6 +49,9 @@ class ControlledSolver:
         self.gains = np.array([c.gain for c in network.controlled])
         self.n_v, self.n_i = len(network.vsource_refs), len(network.isource_refs)
         self.n_g = len(network.regulator_refs)
+        self.last_loop_matrix = np.zeros((0, len(self.gains), len(self.gains)))
+        """``(N, controlled, controlled)`` the system I - G·C of the last solve (its rows are
+        the controlled sources' equations; singular where their loop gain is one)."""
 
     @property
     def loop_count(self) -> int:
@@ -102,6 +105,7 @@ class ControlledSolver:
         g = broadcast_rows(self.gains if gains is None else gains, len(self.gains), n)
         control = np.stack([self._control(u) for u in units], axis=2)  # (N, k, j)
         matrix = np.eye(len(units))[None, :, :] - g[:, :, None] * control
+        self.last_loop_matrix = matrix
         rhs = g * self._control(base)
         with np.errstate(all="ignore"):
             # singular (no unique solution) when the determinant is negligible beside the

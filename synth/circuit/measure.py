@@ -21,7 +21,7 @@ from synth.circuit.network import Network, build_network
 from synth.circuit.solution import MeshSolution
 from synth.design.model import Design
 from synth.design.target import Target
-from synth.errors import DesignError
+from synth.errors import DesignError, name_list
 from synth.rating import NOISE_FRACTION
 
 
@@ -391,42 +391,70 @@ class Evaluator:
                     "or measure against another pair")
 
     def check_regulators(self, resistances: np.ndarray) -> None:
-        """Refuse a design whose regulating element cannot move its sense node.
+        """Refuse a network the solver finds singular for every value set given.
+
+        A regulating element whose output cannot move its sense node, several
+        whose setpoints depend on each other, or controlled sources whose loop
+        gain is exactly one leave the network's equations singular: no unique
+        solution.  The refusal names the parts involved (those with a share in
+        the singular system's null vector).
 
         Raises
         ------
         DesignError
-            When the output voltage of a regulating element comes out
-            undefined (its sense node does not depend on its output).
+            Naming the regulators or controlled sources involved.
         """
         if not self.network.regulator_refs and not self.network.controlled:
             return
         src = self.nominal_sources
-        sol = self._solve(self.solver, np.atleast_2d(resistances), src.voltages, src.currents,
-                          src.setpoints, src.gains)
-        if self.network.controlled and not np.all(np.isfinite(sol.node_voltages)):
-            raise DesignError(
-                f"{self.design.origin}: the controlled sources leave the circuit without a "
-                "unique solution (their loop gain is exactly one); check their gains and "
-                "control connections"
-            )
+        r = np.atleast_2d(resistances)
+        sol = self._solve(self.solver, r, src.voltages, src.currents, src.setpoints, src.gains)
+        origin = self.design.origin
         # an output far beyond what the sources could drive through the network's resistors
         # (1e12 times it) is the pole of a sense node the output cannot move
-        r = np.atleast_2d(resistances)
         with np.errstate(over="ignore", invalid="ignore"):
             drive = max(np.max(np.abs(src.voltages), initial=0.0),
                         np.max(np.abs(src.setpoints), initial=0.0),
                         np.max(np.abs(src.currents), initial=0.0)
                         * float(np.max(np.abs(r), initial=0.0)), 1.0)
-        for k, ref in enumerate(self.network.regulator_refs):
-            out = sol.regulator_outputs[:, k]
-            if (not np.all(np.isfinite(out)) and np.isfinite(drive)) or np.any(
-                    np.abs(out) > 1e12 * drive):
+            outputs = sol.regulator_outputs
+            undefined = (~np.isfinite(outputs) & np.isfinite(drive)) | (
+                np.abs(outputs) > 1e12 * drive)
+        mesh = self.solver.inner if isinstance(self.solver, ControlledSolver) else self.solver
+        refs = self.network.regulator_refs
+        if len(refs) and np.all(undefined.any(axis=1)):
+            involved = _dependent(mesh.last_regulator_system, refs)
+            if len(involved) > 1:
                 raise DesignError(
-                    f"{self.design.origin}, regulator {ref}: its output cannot move its sense "
-                    "node, so nothing sets its voltage; connect the sense node to the output "
-                    "through the feedback network"
-                )
+                    f"{origin}: regulators {name_list(involved)} set sense voltages that "
+                    "depend on each other, so the network's equations are singular (no "
+                    "output voltages meet every setpoint, or any do); give each its own "
+                    "sense node pair, or remove one")
+            ref = involved[0] if involved else refs[int(np.argmax(undefined[0]))]
+            raise DesignError(
+                f"{origin}, regulator {ref}: its output cannot move its sense node, so nothing "
+                "sets its voltage; connect the sense node to the output through the feedback "
+                "network")
+        if self.network.controlled and np.all(~np.isfinite(sol.node_voltages).all(axis=1)):
+            assert isinstance(self.solver, ControlledSolver)
+            sources = tuple(c.ref for c in self.network.controlled)
+            involved = _dependent(self.solver.last_loop_matrix, sources) or sources
+            raise DesignError(
+                f"{origin}: the controlled sources {name_list(involved)} leave the circuit "
+                "without a unique solution (their loop gain is exactly one, so the network's "
+                "equations are singular); check their gains and control connections")
+
+
+def _dependent(systems: np.ndarray, refs: tuple[str, ...]) -> tuple[str, ...]:
+    """The parts whose equations (rows of the first of ``systems``) are linearly dependent:
+    those with a share in the left null vector of its smallest singular value."""
+    if not len(systems) or not np.all(np.isfinite(systems[0])):
+        return ()
+    left, values, _ = np.linalg.svd(systems[0])
+    if values[-1] > 1e-9 * max(float(values[0]), 1e-300):
+        return ()
+    share = np.abs(left[:, -1])
+    return tuple(ref for ref, part in zip(refs, share, strict=True) if part > 1e-6)
 
 
 def _typical(resistor: object) -> float:

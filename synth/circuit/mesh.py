@@ -179,6 +179,9 @@ class MeshSolver:
         self._map_k_t = SparseMap(self._b_k.T)
         self._work: dict[str, np.ndarray] = {}
         self._work_size = -1
+        self.last_regulator_system = np.zeros((0, self.n_g, self.n_g))
+        """``(M, regulators, regulators)`` the regulators' Schur system of the last block
+        solved (its rows are the regulators' constraints; singular where they depend)."""
         self.tree_branches = tuple(network.branch_refs[b] for b in np.flatnonzero(in_tree))
 
     @property
@@ -424,6 +427,8 @@ class MeshSolver:
         q = (self._q_matrix @ r).reshape(self.n_g, self.n_u, m)
         # (Q X1 - D_G) E_G = S - Q X0 - D_R (R c) + D_V E
         lhs = np.einsum("gum,uhm->ghm", q, parts[:, 1:]) - self._d_g[:, :, None]
+        # kept so that a singular system can be explained (which regulators depend)
+        self.last_regulator_system = lhs.transpose(2, 0, 1)
         rhs = s - np.einsum("gum,um->gm", q, parts[:, 0]) - self._d_r @ r_known
         if self.n_v:
             rhs = rhs + self._d_v @ e

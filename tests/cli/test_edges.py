@@ -214,3 +214,94 @@ def test_a_network_key_that_is_not_tables_is_named(tmp_path):
     board = tmp_path / "board.toml"
     board.write_text("network = 3\n", encoding="utf-8")
     assert "network must be [[network]] tables, not int" in refusal("bom", board)
+
+
+# -- singular networks: check and design apply the same rules and name the parts ---------
+
+TWO_REGULATORS_ON_ONE_SENSE = """
+[[regulator]]
+ref = "U1"
+output = "o1"
+sense = "s"
+reference = "gnd"
+setpoint = "1 V"
+[[regulator]]
+ref = "U2"
+output = "o2"
+sense = "s"
+reference = "gnd"
+setpoint = "1 V"
+[[resistor]]
+ref = "R1"
+nodes = ["o1", "s"]
+value = "1k"
+[[resistor]]
+ref = "R2"
+nodes = ["o2", "s"]
+value = "1k"
+[[resistor]]
+ref = "R3"
+nodes = ["s", "gnd"]
+value = "1k"
+choose = "E24"
+range = ["100", "10k"]
+[[target]]
+voltage = "s"
+equals = "1 V"
+within = "1%"
+"""
+
+LOOP_GAIN_ONE = """
+[[source]]
+ref = "V1"
+kind = "voltage"
+plus = "in"
+minus = "gnd"
+value = "1 V"
+[[resistor]]
+ref = "R1"
+nodes = ["in", "x"]
+value = "1k"
+[[resistor]]
+ref = "R2"
+nodes = ["y", "gnd"]
+value = "1k"
+choose = "E24"
+range = ["100", "10k"]
+[[controlled]]
+ref = "E1"
+kind = "vcvs"
+plus = "y"
+minus = "gnd"
+control = ["x", "gnd"]
+gain = 1
+[[controlled]]
+ref = "E2"
+kind = "vcvs"
+plus = "x"
+minus = "gnd"
+control = ["y", "gnd"]
+gain = 1
+[[target]]
+voltage = "y"
+equals = "1 V"
+within = "1%"
+"""
+
+
+@pytest.mark.parametrize(("text", "fragment"), [
+    # two regulators hold the same node to 1 V: one equation twice, the outputs undefined
+    # (the loop solve's regulator system is singular) [HB-mna]
+    (TWO_REGULATORS_ON_ONE_SENSE, "regulators U1, U2 set sense voltages that depend on each "
+                                  "other, so the network's equations are singular"),
+    # x = y and y = x: 1 - 1·1 = 0, no unique solution [HB-controlled-sources]
+    (LOOP_GAIN_ONE, "the controlled sources E1, E2 leave the circuit without a unique "
+                    "solution"),
+])
+@pytest.mark.parametrize("command", ["check", "design"])
+def test_a_singular_network_is_refused_by_check_and_design_naming_its_parts(
+        tmp_path, command, text, fragment):
+    # before: check refused it, design answered "no candidate could be evaluated" (exit 1)
+    path = tmp_path / "design.toml"
+    path.write_text(text, encoding="utf-8")
+    assert fragment in refusal(command, path, "--samples", "0")
