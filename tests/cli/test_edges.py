@@ -102,6 +102,14 @@ def test_design_files_at_the_edge_are_refused_in_one_line(tmp_path, command, key
     assert fragment in refusal(command, path, "--samples", "0")
 
 
+def test_a_400_digit_toml_integer_is_refused_as_not_finite(tmp_path):
+    path = divider_file(tmp_path)
+    path.write_text(path.read_text(encoding="utf-8").replace('value = "10k"', "value = "
+                                                             + "9" * 400, 1), encoding="utf-8")
+    assert "resistor R1: value: 999" in (line := refusal("check", path))
+    assert "is not a finite resistance" in line and len(line) < 300
+
+
 def test_a_ratio_over_zero_volts_is_refused_by_design_as_by_check(tmp_path):
     # before: check ended in "All-NaN slice encountered", design in "no candidate could be
     # evaluated" with exit 1
