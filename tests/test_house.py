@@ -29,7 +29,7 @@ LAYERS = (
     ("design",),
     ("rating",),
     ("catalog",),
-    ("units", "inputs"),
+    ("units", "inputs", "digest"),
     ("errors", "schemas"),
 )
 """Each module's layer is named by its first dotted part below ``synth``."""

@@ -11,13 +11,13 @@ free number with the same letters, in board order.
 
 from __future__ import annotations
 
-__all__ = ["bom_parts", "build_bom", "renumber"]
+__all__ = ["bom_of_values", "bom_parts", "build_bom", "renumber"]
 
 from collections import defaultdict
-from collections.abc import Callable, Mapping
+from collections.abc import Callable, Mapping, Sequence
 from typing import cast
 
-from synth.bom.consolidate import Pool, consolidate
+from synth.bom.consolidate import Consolidation, Pool, consolidate
 from synth.bom.lines import (
     BomLine,
     BomResult,
@@ -32,7 +32,8 @@ from synth.catalog.stock import StockItem, load_stock, stock_fits
 from synth.checking import check
 from synth.design.board import Board
 from synth.design.model import Design, Resistor
-from synth.errors import InfeasibleError
+from synth.errors import DesignError, InfeasibleError
+from synth.results import Candidate, CheckResult
 from synth.synthesis import synthesize
 
 
@@ -183,11 +184,7 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
             if not checked.ok:
                 raise InfeasibleError(f"{design.origin}: network {net.name!r} fails: "
                                       + "; ".join(map(str, checked.problems)))
-            objective = max((float(target.objective(report.value))
-                             for target, report in zip(design.targets, checked.targets,
-                                                       strict=True)
-                             if target.equals is not None), default=0.0)
-            candidates = [(1, dict(checked.values), objective)]
+            candidates = [(1, dict(checked.values), _objective(checked))]
         if stock_only and stock:
             def from_stock(values: dict[str, float], d: Design = design) -> bool:
                 return all(_stock_match(key, stock, d.packages) for ref, key in
@@ -201,17 +198,81 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
         pools.append(Pool(lines=[frozenset(k for _, k in bom_parts(design, c[1]))
                                  for c in candidates],
                           errors=[c[2] for c in candidates]))
-    # each line is matched against the package table of a network that uses it
+    table_of = _tables(board, pools)
+    in_stock = (frozenset(k for k, table in table_of.items() if _stock_match(k, stock, table))
+                if stock else None)
+    outcome = consolidate(pools, in_stock=in_stock, time_limit_s=time_limit_s)
+    before = len(set().union(*(p.lines[0] for p in pools)))
+    return _listing(board, options, outcome, before, table_of, stock, notes,
+                    stock_only=stock_only, renumber_all=renumber_all)
+
+
+def bom_of_values(board: Board, picks: Sequence[CheckResult | Candidate],
+                  *, renumber_all: bool = False) -> BomResult:
+    """The bill of materials of given values, one set per network: no search, no consolidation.
+
+    Parameters
+    ----------
+    board : Board
+        Its networks, in order, and its stock list (matched as by :func:`build_bom`).
+    picks : sequence of CheckResult or Candidate
+        Per network: a checked design, or the synthesis candidate it keeps (its
+        physical parts' values, with its objective).
+    renumber_all : bool
+        As for :func:`build_bom`.
+
+    Returns
+    -------
+    BomResult
+        Its consolidation record says ``"values given"``: each network keeps its values.
+
+    Raises
+    ------
+    DesignError
+        When ``picks`` does not give one value set per network, or on a malformed stock list.
+    """
+    if len(picks) != len(board.networks):
+        raise DesignError(f"{len(picks)} value sets for {len(board.networks)} networks; give "
+                          "one per network")
+    stock = load_stock(board.stock_path) if board.stock_path else []
+    options = [[(1, dict(p.values), _objective(p)) if isinstance(p, CheckResult)
+                else (p.rank, dict(p.check.values), p.objective)] for p in picks]
+    pools = [Pool(lines=[frozenset(k for _, k in bom_parts(net.design, values))],
+                  errors=[objective])
+             for net, ((_, values, objective),) in zip(board.networks, options, strict=True)]
+    table_of = _tables(board, pools)
+    lines = set(table_of)
+    to_buy = sum(1 for k in lines if not _stock_match(k, stock, table_of[k])) if stock else 0
+    given = Consolidation(choice=(0,) * len(pools), lines=len(lines), to_buy=to_buy,
+                          total_error=sum(c[0][2] for c in options), optimal=True,
+                          status="values given", elapsed_s=0.0)
+    return _listing(board, options, given, len(lines), table_of, stock, [],
+                    stock_only=False, renumber_all=renumber_all)
+
+
+def _objective(checked: CheckResult) -> float:
+    """A checked design's largest goal error, as the search measures a candidate's."""
+    design = checked.design
+    return max((float(target.objective(report.value))
+                for target, report in zip(design.targets, checked.targets, strict=True)
+                if target.equals is not None), default=0.0)
+
+
+def _tables(board: Board, pools: Sequence[Pool]) -> dict[LineKey, Mapping[str, PackageRating]]:
+    """The package table each line is matched against: that of a network that uses it."""
     table_of: dict[LineKey, Mapping[str, PackageRating]] = {}
     for net, pool in zip(board.networks, pools, strict=True):
         for line_set in pool.lines:
             for key in line_set:
                 table_of.setdefault(cast(LineKey, key), net.design.packages)
-    in_stock = (frozenset(k for k, table in table_of.items() if _stock_match(k, stock, table))
-                if stock else None)
-    outcome = consolidate(pools, in_stock=in_stock, time_limit_s=time_limit_s)
-    before = len(set().union(*(p.lines[0] for p in pools)))
+    return table_of
 
+
+def _listing(board: Board, options: list[list[tuple[int, dict[str, float], float]]],
+             outcome: Consolidation, before: int,
+             table_of: dict[LineKey, Mapping[str, PackageRating]], stock: list[StockItem],
+             notes: list[str], *, stock_only: bool, renumber_all: bool) -> BomResult:
+    """The BOM lines, designators and placements of the chosen candidate of each network."""
     picked = [candidates[pick] for pick, candidates in zip(outcome.choice, options, strict=True)]
     instances = [[ref for ref, _ in bom_parts(net.design, values)]
                  for net, (_, values, _) in zip(board.networks, picked, strict=True)

@@ -10,8 +10,8 @@ __all__ = [
     "Measured", "OneLineGroup", "Progress", "QuickOptions", "Range", "SearchOptions",
     "SpreadOptions", "Window",
     "check_time_limit", "emit_json", "friendly", "option_group", "option_name",
-    "quick_options", "ranking_choices", "search_options", "series_name_choices",
-    "spread_options", "write_plots",
+    "page_search_options", "quick_options", "ranking_choices", "search_options",
+    "series_name_choices", "spread_options", "write_plots",
 ]
 
 import functools
@@ -122,19 +122,22 @@ def friendly(command: F) -> F:
 # -- shared option groups ----------------------------------------------------------------
 
 
-def option_group(record: type, options: Sequence[Callable[[F], F]]) -> Callable[[F], F]:
+def option_group(record: type, options: Sequence[Callable[[F], F]],
+                 fixed: dict[str, Any] | None = None) -> Callable[[F], F]:
     """Add ``options`` to a command and hand their values to it as one ``record``.
 
     The command receives a keyword argument named after the record's class
-    (``SpreadOptions`` -> ``spread``) instead of one argument per option.
+    (``SpreadOptions`` -> ``spread``) instead of one argument per option.  ``fixed``
+    gives the record's fields that this command does not offer as options.
     """
     keyword = record.__name__.removesuffix("Options").lower()
-    names = [f.name for f in fields(record)]
+    given = dict(fixed or {})
+    names = [f.name for f in fields(record) if f.name not in given]
 
     def decorate(command: F) -> F:
         @functools.wraps(command)
         def run(*args: Any, **kwargs: Any) -> Any:
-            values = {name: kwargs.pop(name) for name in names}
+            values = {**given, **{name: kwargs.pop(name) for name in names}}
             return command(*args, **{keyword: record(**values)}, **kwargs)
 
         for option in reversed(options):
@@ -213,7 +216,7 @@ class SearchOptions:
         return self.cost if self.cost is not None else self.plot_x
 
 
-_search_group = option_group(SearchOptions, [
+_SEARCH_CHOICES = [
     click.option("--top", default=10, show_default=True, help="Candidates to show."),
     click.option("--rank-by", type=CatalogueChoice(ranking_choices), default="nominal",
                  show_default=True,
@@ -226,7 +229,6 @@ _search_group = option_group(SearchOptions, [
     click.option("--time-limit", type=float, default=None, metavar="SECONDS",
                  help="Stop searching after this long and show the best so far, "
                       "marked unproven."),
-    click.option("--json", "as_json", is_flag=True, help="Print the results as JSON."),
     click.option("--quiet", is_flag=True, help="No progress bar."),
     click.option("--require", type=click.Choice(["nominal", "worst-case", "yield"]),
                  default=None,
@@ -234,12 +236,20 @@ _search_group = option_group(SearchOptions, [
                       "require, else nominal]."),
     click.option("--min-yield", type=PERCENT, default=None,
                  help='Least Monte Carlo yield with --require yield, e.g. "99%".'),
-])
+]
+_JSON = click.option("--json", "as_json", is_flag=True, help="Print the results as JSON.")
+_search_group = option_group(SearchOptions, [*_SEARCH_CHOICES[:5], _JSON, *_SEARCH_CHOICES[5:]])
+_page_search_group = option_group(SearchOptions, _SEARCH_CHOICES, fixed={"as_json": False})
 
 
 def search_options(command: F) -> F:
     # applied inside out: help lists the spread options, then the search options
     return spread_options(_search_group(command))
+
+
+def page_search_options(command: F) -> F:
+    """The search and spread options of ``design``, for a command that writes a page (no --json)."""
+    return spread_options(_page_search_group(command))
 
 
 @dataclass(frozen=True)

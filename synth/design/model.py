@@ -244,6 +244,9 @@ class Design:
         The least yield (fraction) with ``require = "yield"``.
     deprecations : tuple of str
         One note per old key name the file used (still read for one version).
+    packages_path : Path or None
+        The design's own package table (``[design] packages``); None for the
+        bundled ``catalogs/packages.csv``.
     """
 
     origin: str
@@ -263,6 +266,7 @@ class Design:
     require: str = "nominal"
     min_yield: float | None = None
     deprecations: tuple[str, ...] = ()
+    packages_path: Path | None = None
 
     @property
     def free_resistors(self) -> tuple[Resistor, ...]:

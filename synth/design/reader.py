@@ -229,6 +229,7 @@ def _design(data: Mapping[str, Any], origin: str) -> Design:
             raise DesignError(f"{origin}: unknown table {key!r}{nearest_name(key, _TOP_KEYS)} "
                               f"(allowed: {', '.join(_TOP_KEYS)})")
     settings = _read_design_table(origin, data.get("design"))
+    packages_path = None
     if settings["packages_path"]:
         base = Path(origin).parent if not origin.startswith("<") else Path.cwd()
         path = base / settings["packages_path"]
@@ -236,6 +237,7 @@ def _design(data: Mapping[str, Any], origin: str) -> Design:
             raise DesignError(f"{origin}, [design]: package table {settings['packages_path']!r} "
                               "was not found; check the path")
         packages = load_package_table(path)
+        packages_path = path
     else:
         packages = load_package_table()
     if settings["default_package"] and settings["default_package"] not in packages:
@@ -263,7 +265,7 @@ def _design(data: Mapping[str, Any], origin: str) -> Design:
         sources=sources, resistors=resistors, regulators=regulators, targets=targets,
         controlled=active.controlled, transistors=active.transistors,
         require=settings["require"], min_yield=settings["min_yield"],
-        deprecations=settings["deprecations"],
+        deprecations=settings["deprecations"], packages_path=packages_path,
     )
     check_references(design)
     return design

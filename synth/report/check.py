@@ -17,7 +17,7 @@ from tabulate import tabulate
 
 from synth.report.numbers import NOISE_FRACTION, json_number
 from synth.report.spread import spread_json, spread_text
-from synth.report.verdict import error_text
+from synth.report.verdict import check_verdict_text, error_text
 from synth.results import CheckResult, PartReport, Problem, TargetReport
 from synth.units import format_eng, format_rkm, format_window
 
@@ -91,18 +91,7 @@ def check_text(result: CheckResult) -> str:
              f"ambient {design.ambient_c:g} °C; a part may use up to "
              f"{design.margin_frac * 100:g} % of its derated power and "
              f"{design.voltage_margin_frac * 100:g} % of its limiting element voltage", ""]
-    basis = {"worst-case": "over the whole tolerance box (worst case)",
-             "yield": "with the required Monte Carlo yield"}.get(design.require,
-                                                                  "at nominal values")
-    verdict = ("all targets met, all parts within their allowance " + basis if result.ok
-               else "FAILS: " + "; ".join(map(str, result.problems)))
-    spread = result.spread
-    if spread is not None and spread.yield_fraction is not None:
-        verdict += f"; Monte Carlo yield {spread.yield_fraction * 100:.4g} %"
-        if spread.yield_interval is not None:
-            verdict += (f" (95 % interval {spread.yield_interval[0] * 100:.4g} .. "
-                        f"{spread.yield_interval[1] * 100:.4g} %)")
-    lines.append("result: " + verdict)
+    lines.append("result: " + check_verdict_text(result))
     lines.extend(result.cautions)
     for ref, value in result.filled.items():
         lines.append(f"note: {ref} has no value; checked at its ideal value "

@@ -9,12 +9,14 @@ was traded away for a limit: each target carries a status
 
 from __future__ import annotations
 
-__all__ = ["basis_text", "error_text", "status_text", "verdict_text"]
+__all__ = [
+    "basis_text", "check_verdict_text", "error_text", "status_text", "verdict_text",
+]
 
 from dataclasses import replace
 
 from synth.report.numbers import NOISE_FRACTION
-from synth.results import Candidate, SynthesisResult, TargetReport
+from synth.results import Candidate, CheckResult, SynthesisResult, TargetReport
 from synth.units import format_eng
 
 
@@ -39,7 +41,7 @@ def basis_text(result: SynthesisResult) -> str:
     return "at nominal values"
 
 
-def _yield_text(candidate: Candidate) -> str:
+def _yield_text(candidate: Candidate | CheckResult) -> str:
     spread = candidate.spread
     if spread is None or spread.yield_fraction is None:
         return ""
@@ -94,3 +96,17 @@ def verdict_text(result: SynthesisResult) -> list[str]:
     lines.append("targets of the best design:")
     lines.extend(f"  {t.label}: {status_text(t)}" for t in best.targets)
     return lines
+
+
+def check_verdict_text(result: CheckResult) -> str:
+    """The verdict of a checked design (without the ``result:`` prefix), on the design's basis.
+
+    Every problem is named when it fails; the Monte Carlo yield is shown when it was
+    estimated.
+    """
+    basis = {"worst-case": "over the whole tolerance box (worst case)",
+             "yield": "with the required Monte Carlo yield"}.get(result.design.require,
+                                                                  "at nominal values")
+    verdict = ("all targets met, all parts within their allowance " + basis if result.ok
+               else "FAILS: " + "; ".join(map(str, result.problems)))
+    return verdict + _yield_text(result)
