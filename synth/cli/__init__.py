@@ -12,7 +12,9 @@ from __future__ import annotations
 
 __all__ = ["cli", "main"]
 
-import synth.cli.quick  # noqa: F401  (imported for its effect: it registers the quick commands)
+# imported for their effect: they register the quick commands and report
+import synth.cli.quick
+import synth.cli.report  # noqa: F401
 from synth.cli.commands import cli
 
 

@@ -1,0 +1,162 @@
+"""The ``report`` command: a design-review page (HTML) for one or several designs.
+"""
+
+from __future__ import annotations
+
+__all__ = ["report_command"]
+
+import sys
+from dataclasses import replace
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+import click
+
+from synth.cli.commands import cli
+from synth.cli.options import (
+    Progress,
+    SearchOptions,
+    SpreadOptions,
+    check_time_limit,
+    friendly,
+    page_search_options,
+    write_plots,
+)
+from synth.errors import DesignError
+
+if TYPE_CHECKING:
+    from synth.design.board import Board
+    from synth.design.model import Design
+    from synth.results import CheckResult, SynthesisResult
+
+
+def _refuse_output(output: str, force: bool) -> None:
+    """Refuse an output that cannot be written before anything is computed."""
+    path = Path(output)
+    if path.exists() and not path.is_file():
+        raise DesignError(f"{output}: is not a regular file; write to a file name instead")
+    if path.exists() and not force:
+        raise DesignError(f"{output}: already exists; pass --force to replace it")
+
+
+def _input_files(files: tuple[str, ...], board: Board) -> list[str | Path]:
+    """Every file the page depends on: those named, the designs a board names, their tables."""
+    paths: list[str | Path] = list(files)
+    for net in board.networks:
+        design = net.design
+        if Path(design.origin).is_file():
+            paths.append(design.origin)
+        if design.packages_path is not None:
+            paths.append(design.packages_path)
+        paths.extend(r.stock_path for r in design.resistors if r.stock_path is not None)
+    if board.stock_path is not None:
+        paths.append(board.stock_path)
+    return paths
+
+
+def _analyse(design: Design, search: SearchOptions, spread: SpreadOptions
+             ) -> CheckResult | SynthesisResult:
+    from synth.checking import check
+    from synth.synthesis import synthesize
+
+    # the page draws every target's distribution: keep the Monte Carlo samples
+    settings = replace(spread.settings(), keep_samples=True)
+    if not design.free_resistors:
+        return check(design, spread=settings)
+    progress = Progress(enabled=not search.quiet and sys.stderr.isatty())
+    try:
+        return synthesize(design, top=search.top, time_limit_s=search.time_limit,
+                          progress=progress, spread=settings, rank_by=search.rank_by,
+                          require=search.require,
+                          min_yield=None if search.min_yield is None else search.min_yield.value)
+    finally:
+        progress.close()
+
+
+@cli.command("report")
+@click.argument("files", nargs=-1, required=True, type=click.Path(dir_okay=False))
+@click.option("--output", required=True, type=click.Path(dir_okay=False),
+              help="The HTML page to write, e.g. review.html.")
+@click.option("--force", is_flag=True, help="Replace an existing output file.")
+@page_search_options
+@friendly
+def report_command(files: tuple[str, ...], output: str, force: bool, search: SearchOptions,
+                   spread: SpreadOptions) -> None:
+    """Write a design-review page: one self-contained HTML file for one or more designs.
+
+    FILES are design files (or board files).  A design with free parts is
+    synthesised with the options below and its best candidate shown; a fully
+    specified design is checked.  The page gives the inputs and assumptions,
+    catalogues and package ratings, the values, every target's status, nominal,
+    worst case and yield, each part's stress against its derated rating,
+    cautions, figures, the BOM, the rnsynth version and a fingerprint of the
+    inputs.  Exits 1 when a design fails (the page is written and says so).
+    """
+    from synth import __version__
+    from synth.bom.build import bom_of_values
+    from synth.design.board import load_board
+    from synth.digest import input_digest
+    from synth.files import write_atomic
+    from synth.report.review import ReviewedDesign, review_html
+    from synth.report.review.section import passes, verdict_lines
+    from synth.results import CheckResult
+
+    check_time_limit(search.time_limit)
+    if search.top < 1:
+        raise DesignError(f"--top {search.top} must be at least 1")
+    if search.min_yield is not None and search.require not in (None, "yield"):
+        raise DesignError("--min-yield goes with --require yield; add it or drop --min-yield")
+    _refuse_output(output, force)
+    spread.settings()  # refuses bad --samples / --seed before any work
+    board = load_board(list(files))
+    for net in board.networks:
+        for note in net.design.deprecations:
+            click.echo(f"rnsynth: note: {note}", err=True)
+    results = [_analyse(net.design, search, spread) for net in board.networks]
+    options: dict[str, object] = {
+        "samples": spread.samples, "distribution": spread.distribution, "seed": spread.seed,
+        "top": search.top, "rank_by": search.rank_by, "require": search.require or "design",
+        "min_yield": "-" if search.min_yield is None else search.min_yield.value,
+        "time_limit": "-" if search.time_limit is None else search.time_limit,
+        "plot_x": search.plot_axis,
+    }
+    digest = input_digest(_input_files(files, board), options)
+    picks = [r if isinstance(r, CheckResult) else r.candidates[0] if r.candidates else None
+             for r in results]
+    bom = (bom_of_values(board, [p for p in picks if p is not None])
+           if all(p is not None for p in picks) else None)
+    several = len(board.networks) > 1 or any(n.count != 1 for n in board.networks)
+    designs = [ReviewedDesign(result=r, name=n.name if several else None, count=n.count)
+               for r, n in zip(results, board.networks, strict=True)]
+    title = board.title if len(files) == 1 and len(designs) > 1 else None
+    page = review_html(designs, bom=bom, digest=digest, version=__version__, title=title,
+                       plot_x=search.plot_axis)
+    write_atomic(output, page, force=force)
+    if spread.plots:
+        _write_plots(results, spread.plots, search.plot_axis)
+    for result in results:
+        word = "passes" if passes(result) else "FAILS"
+        click.echo(f"{result.design.origin}: {word}: {verdict_lines(result)[0]}")
+    click.echo(f"review page written: {output}")
+    if not all(passes(r) for r in results):
+        sys.exit(1)
+
+
+def _write_plots(results: list[CheckResult | SynthesisResult], folder: str, plot_x: str) -> None:
+    """The page's figures also as PNG and SVG files (``--plots``), one stem per design."""
+    from synth.report.plots import candidate_scatter, target_histograms
+    from synth.results import CheckResult
+
+    paths = []
+    for number, result in enumerate(results, 1):
+        stem = "" if len(results) == 1 else f"design{number}-"
+        if isinstance(result, CheckResult):
+            spread = result.spread
+        elif result.candidates:
+            paths += candidate_scatter(result, folder, cost=plot_x, stem=f"{stem}candidates")
+            spread = result.candidates[0].spread
+        else:
+            spread = None
+        if spread is not None:
+            paths += target_histograms(result.design, spread, folder, stem=f"{stem}spread")
+    write_plots(paths, as_json=False)
