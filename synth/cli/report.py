@@ -8,7 +8,7 @@ __all__ = ["report_command"]
 import sys
 from dataclasses import replace
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 import click
 
@@ -73,6 +73,26 @@ def _analyse(design: Design, search: SearchOptions, spread: SpreadOptions
         progress.close()
 
 
+_FRONT_SECONDS = 30.0  # the most the error-supply front may take (its plot says if cut short)
+
+
+def _pictures(result: CheckResult | SynthesisResult, search: SearchOptions
+              ) -> list[tuple[str, Any]]:
+    """Every picture of a design's section (those ``--plots`` writes), by file stem."""
+    from synth.front import error_front
+    from synth.report.plots import check_pictures, design_pictures
+    from synth.results import CheckResult
+
+    if isinstance(result, CheckResult):
+        return check_pictures(result)
+    if not result.candidates:
+        return []
+    limit = (_FRONT_SECONDS if search.time_limit is None
+             else min(search.time_limit, _FRONT_SECONDS))
+    front = error_front(result.design, time_limit_s=limit, require=result.require)
+    return design_pictures(result, cost=search.plot_axis, front=front)
+
+
 @cli.command("report")
 @click.argument("files", nargs=-1, required=True, type=click.Path(dir_okay=False))
 @click.option("--output", required=True, type=click.Path(dir_okay=False),
@@ -113,6 +133,7 @@ def report_command(files: tuple[str, ...], output: str, force: bool, search: Sea
         for note in net.design.deprecations:
             click.echo(f"rnsynth: note: {note}", err=True)
     results = [_analyse(net.design, search, spread) for net in board.networks]
+    pictures = [_pictures(result, search) for result in results]
     options: dict[str, object] = {
         "samples": spread.samples, "distribution": spread.distribution, "seed": spread.seed,
         "top": search.top, "rank_by": search.rank_by, "require": search.require or "design",
@@ -126,14 +147,17 @@ def report_command(files: tuple[str, ...], output: str, force: bool, search: Sea
     bom = (bom_of_values(board, [p for p in picks if p is not None])
            if all(p is not None for p in picks) else None)
     several = len(board.networks) > 1 or any(n.count != 1 for n in board.networks)
-    designs = [ReviewedDesign(result=r, name=n.name if several else None, count=n.count)
-               for r, n in zip(results, board.networks, strict=True)]
+    designs = [ReviewedDesign(result=r, name=n.name if several else None, count=n.count,
+                              pictures=tuple(p))
+               for r, n, p in zip(results, board.networks, pictures, strict=True)]
     title = board.title if len(files) == 1 and len(designs) > 1 else None
-    page = review_html(designs, bom=bom, digest=digest, version=__version__, title=title,
-                       plot_x=search.plot_axis)
+    page = review_html(designs, bom=bom, digest=digest, version=__version__, title=title)
     write_atomic(output, page, force=force)
     if spread.plots:
-        _write_plots(results, spread.plots, search.plot_axis)
+        several_files = len(results) > 1
+        write_plots(spread.plots, [(f"design{k}-{stem}" if several_files else stem, figure)
+                                   for k, drawn in enumerate(pictures, 1)
+                                   for stem, figure in drawn], as_json=False)
     for result in results:
         word = "passes" if passes(result) else "FAILS"
         click.echo(f"{result.design.origin}: {word}: {verdict_lines(result)[0]}")
@@ -141,22 +165,3 @@ def report_command(files: tuple[str, ...], output: str, force: bool, search: Sea
     if not all(passes(r) for r in results):
         sys.exit(1)
 
-
-def _write_plots(results: list[CheckResult | SynthesisResult], folder: str, plot_x: str) -> None:
-    """The page's figures also as PNG and SVG files (``--plots``), one stem per design."""
-    from synth.report.plots import candidate_scatter, target_histograms
-    from synth.results import CheckResult
-
-    paths = []
-    for number, result in enumerate(results, 1):
-        stem = "" if len(results) == 1 else f"design{number}-"
-        if isinstance(result, CheckResult):
-            spread = result.spread
-        elif result.candidates:
-            paths += candidate_scatter(result, folder, cost=plot_x, stem=f"{stem}candidates")
-            spread = result.candidates[0].spread
-        else:
-            spread = None
-        if spread is not None:
-            paths += target_histograms(result.design, spread, folder, stem=f"{stem}spread")
-    write_plots(paths, as_json=False)

@@ -111,7 +111,8 @@ def test_plots_are_also_written_as_files(tmp_path, designs):
     assert result.exit_code == 1
     names = sorted(p.name for p in folder.iterdir())
     assert "design1-candidates.svg" in names and "design1-candidates.png" in names
-    assert "design2-spread-1-tap.svg" in names
+    assert "design1-front.svg" in names and "design1-network.svg" in names
+    assert "design2-spread-1-tap.svg" in names and "design2-derating-0603.png" in names
     assert "plot written:" in result.output
 
 

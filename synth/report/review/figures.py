@@ -1,24 +1,21 @@
 """The figures of a review page, as inline SVG (no computation: the plots draw results).
 
-Every figure is drawn by :mod:`synth.report.plots` and embedded as an ``<svg>``
-element: glyphs as paths (``svg.fonttype = "path"``, so no font is fetched or
-needed), no XML prolog, no metadata (the file's date would change the page), and
+Every figure is drawn by :mod:`synth.report.plots` (a matplotlib Figure) and
+embedded as an ``<svg>`` element: glyphs as paths (``svg.fonttype = "path"``, so no
+font is fetched or needed), no XML prolog, no metadata (the file's date would change the page), and
 every ``id`` prefixed per figure so that several figures on one page never share
 one.
 """
 
 from __future__ import annotations
 
-__all__ = ["ReviewFigure", "figure_svg", "inline_svg", "review_figures"]
+__all__ = ["ReviewFigure", "caption", "figure_svg", "inline_svg", "review_figures"]
 
 import io
 import re
-import tempfile
+from collections.abc import Sequence
 from dataclasses import dataclass
-from pathlib import Path
 from typing import Any
-
-from synth.results import CheckResult, SynthesisResult
 
 
 def _svg_settings() -> Any:
@@ -81,50 +78,37 @@ def figure_svg(figure: Any, prefix: str) -> str:
     return inline_svg(buffer.getvalue(), prefix)
 
 
-def _drawn(draw: Any, *args: Any, **kwargs: Any) -> list[str]:
-    """The SVG files a plot function of :mod:`synth.report.plots` writes, read back."""
-    with tempfile.TemporaryDirectory(prefix="rnsynth-review-") as folder, _svg_settings():
-        paths = draw(*args, folder=folder, **kwargs)
-        return [Path(p).read_text(encoding="utf-8") for p in paths if Path(p).suffix == ".svg"]
+def caption(stem: str) -> str:
+    """What the picture under file stem ``stem`` shows (see :mod:`synth.report.plots`)."""
+    kind, _, rest = stem.partition("-")
+    label = rest.partition("-")[2] if rest[:1].isdigit() else rest
+    words = {
+        "network": "The network with its values.",
+        "candidates": "Ranked candidates: largest relative error against the chosen axis; "
+                      "the best is the star.",
+        "front": "Largest goal error against supply current over the feasible designs (the "
+                 "front; its title says when it was cut short).",
+        "derating": f"Derating of package {rest}: allowed power against ambient, the "
+                    "design's ambient and the parts' dissipation marked.",
+        "contributions": f"Target {label}: each varying quantity's contribution to its "
+                         "spread.",
+        "spread": f"Target {label}: Monte Carlo distribution, its window, worst case and "
+                  "nominal value.",
+    }
+    return words.get(kind, stem)
 
 
-def review_figures(result: CheckResult | SynthesisResult, plot_x: str = "supply",
-                   prefix: str = "f") -> list[ReviewFigure]:
-    """The figures of one design's section: the ranked candidates, then each target's spread.
+def review_figures(pictures: Sequence[tuple[str, Any]], prefix: str = "f"
+                   ) -> list[ReviewFigure]:
+    """The pictures of one design's section as inline SVG figures with captions.
 
     Parameters
     ----------
-    result : CheckResult or SynthesisResult
-        A checked design, or a synthesis (its best candidate's spread is shown).
-    plot_x : {"supply", "hottest", "distinct"}
-        The candidate scatter's horizontal axis.
+    pictures : sequence of (str, Figure)
+        File stem and figure, as :func:`synth.report.plots.check_pictures` and
+        :func:`synth.report.plots.design_pictures` give them.
     prefix : str
         Prefix of the figures' ids (unique per section of a page).
-
-    Returns
-    -------
-    list of ReviewFigure
-        Empty when there is nothing to draw (no candidate, no Monte Carlo samples).
     """
-    from synth.report.plots import candidate_scatter, target_histograms
-
-    figures: list[ReviewFigure] = []
-    spread = result.spread if isinstance(result, CheckResult) else (
-        result.candidates[0].spread if result.candidates else None)
-    if isinstance(result, SynthesisResult) and result.candidates:
-        axis = {"supply": "supply current", "hottest": "the hottest part's use of its "
-                "allowance", "distinct": "the number of distinct values"}[plot_x]
-        for svg in _drawn(candidate_scatter, result, cost=plot_x):
-            figures.append(ReviewFigure(
-                caption=f"Ranked candidates: largest relative error against {axis}; the best "
-                        "is the star.", svg=svg))
-    if spread is not None:
-        sampled = [t for t in spread.targets if t.mc_values is not None]
-        for target, svg in zip(sampled, _drawn(target_histograms, result.design, spread),
-                               strict=True):
-            figures.append(ReviewFigure(
-                caption=f"{target.label}: Monte Carlo distribution ({spread.settings.samples:,} "
-                        f"{spread.settings.distribution} samples), its window (solid lines), "
-                        "worst case (dashed) and nominal value (dotted).", svg=svg))
-    return [ReviewFigure(caption=f.caption, svg=inline_svg(f.svg, f"{prefix}{k}-"))
-            for k, f in enumerate(figures, 1)]
+    return [ReviewFigure(caption=caption(stem), svg=figure_svg(figure, f"{prefix}{k}-"))
+            for k, (stem, figure) in enumerate(pictures, 1)]

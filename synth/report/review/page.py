@@ -10,11 +10,12 @@ __all__ = ["ReviewedDesign", "review_html"]
 
 from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import Any
 
 from synth.bom.lines import BomResult
 from synth.digest import InputDigest
 from synth.report.bom import bom_rows
-from synth.report.review.figures import ReviewFigure, review_figures
+from synth.report.review.figures import review_figures
 from synth.report.review.markup import Markup, element, escape, table
 from synth.report.review.section import design_section, passes, verdict_lines
 from synth.report.review.style import STYLE
@@ -37,11 +38,15 @@ class ReviewedDesign:
         The network's name when the design comes from a board file.
     count : int
         Copies of the network on the board.
+    pictures : tuple of (str, Figure)
+        The figures to embed, with their file stems (see
+        :func:`synth.report.plots.design_pictures` and ``check_pictures``).
     """
 
     result: CheckResult | SynthesisResult
     name: str | None = None
     count: int = 1
+    pictures: tuple[tuple[str, Any], ...] = ()
 
 
 def _provenance(digest: InputDigest, version: str) -> Markup:
@@ -115,8 +120,7 @@ def _bom(bom: BomResult) -> Markup:
 
 
 def review_html(designs: Sequence[ReviewedDesign], *, bom: BomResult | None,
-                digest: InputDigest, version: str, title: str | None = None,
-                plot_x: str = "supply", figures: bool = True) -> str:
+                digest: InputDigest, version: str, title: str | None = None) -> str:
     """The review page of one or several designs, as one HTML document.
 
     Parameters
@@ -131,10 +135,6 @@ def review_html(designs: Sequence[ReviewedDesign], *, bom: BomResult | None,
         The rnsynth version that made the page.
     title : str, optional
         The page's title (a board's); by default the only design's title.
-    plot_x : {"supply", "hottest", "distinct"}
-        The candidate scatter's horizontal axis.
-    figures : bool
-        Embed the figures (SVG); without them the page is quicker to make.
 
     Returns
     -------
@@ -146,9 +146,7 @@ def review_html(designs: Sequence[ReviewedDesign], *, bom: BomResult | None,
                  if len(designs) == 1 else f"{len(designs)} designs")
     sections = []
     for number, item in enumerate(designs, 1):
-        drawn: list[ReviewFigure] = (review_figures(item.result, plot_x=plot_x,
-                                                    prefix=f"d{number}f")
-                                     if figures else [])
+        drawn = review_figures(item.pictures, prefix=f"d{number}f")
         sections.append(design_section(item.result, number, drawn, name=item.name,
                                        count=item.count))
     body = [element("header", element("h1", f"Design review: {title}"), _summary(designs),

@@ -14,6 +14,7 @@ from synth.bom.build import bom_of_values
 from synth.checking import check
 from synth.design.board import load_board
 from synth.digest import input_digest
+from synth.report.plots import check_pictures, design_pictures
 from synth.report.review import ReviewedDesign, review_html
 from synth.spread.records import SpreadSettings
 from synth.synthesis import synthesize
@@ -82,6 +83,9 @@ def review(tmp_path_factory):
                check(hot, spread=SETTINGS)]
     digest = input_digest(paths, {"samples": 2000})
     bom = bom_of_values(board, [results[0].candidates[0], results[1], results[2]])
-    page = review_html([ReviewedDesign(result=r) for r in results], bom=bom, digest=digest,
-                       version="9.9.9-test")
+    pictures = [design_pictures(results[0]), check_pictures(results[1]),
+                check_pictures(results[2])]
+    page = review_html([ReviewedDesign(result=r, pictures=tuple(p))
+                        for r, p in zip(results, pictures, strict=True)],
+                       bom=bom, digest=digest, version="9.9.9-test")
     return page, board, results, digest

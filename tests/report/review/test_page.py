@@ -133,8 +133,9 @@ def test_figures_are_inline_svg_with_glyphs_as_paths(review):
     page = review[0]
     parsed = _parse(page)
     svgs = [attrs for tag, attrs in parsed.tags if tag == "svg"]
-    # the candidate scatter of the free design, one histogram per design's target
-    assert len(svgs) == 1 + 3
+    # free: candidates, network, one derating curve (0603), contributions and histogram
+    # of its one target; each check: the same without the candidates
+    assert len(svgs) == 5 + 4 + 4
     assert "<text" not in page and "font-family:" not in page.split("</style>", 1)[1]
     assert "<figcaption>" in page
 
@@ -142,7 +143,7 @@ def test_figures_are_inline_svg_with_glyphs_as_paths(review):
 def test_without_figures_and_titles(review):
     _, board, results, digest = review
     page = review_html([ReviewedDesign(result=results[1], name="lamp", count=2)], bom=None,
-                       digest=digest, version="1", figures=False)
+                       digest=digest, version="1")
     words = _parse(page).words
     assert "<svg" not in page and "Bill of materials" not in words
     assert "Design review: fixed divider" in words
