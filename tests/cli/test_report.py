@@ -7,11 +7,11 @@ import hashlib
 
 import pytest
 from click.testing import CliRunner
+from report.review.conftest import write_designs
 
 from synth.cli import cli
 
 from conftest import ROOT
-from report.review.conftest import write_designs
 
 FAST = ["--samples", "2000"]
 

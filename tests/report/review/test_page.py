@@ -141,7 +141,7 @@ def test_figures_are_inline_svg_with_glyphs_as_paths(review):
 
 
 def test_without_figures_and_titles(review):
-    _, board, results, digest = review
+    _, _, results, digest = review
     page = review_html([ReviewedDesign(result=results[1], name="lamp", count=2)], bom=None,
                        digest=digest, version="1")
     words = _parse(page).words
