@@ -27,6 +27,7 @@ from synth.circuit.kernels import broadcast_rows
 from synth.circuit.mesh import MeshSolver
 from synth.circuit.network import Network
 from synth.circuit.solution import MeshSolution
+from synth.circuit.sparse import SparseSolver
 
 _SINGULAR = 1e-12
 """Relative size of a determinant below which the controlled sources' system is singular."""
@@ -41,11 +42,16 @@ class ControlledSolver:
         A network whose :attr:`Network.controlled` lists its controlled sources.
     resistor_weights : array_like, optional
         As for :class:`synth.mesh.MeshSolver`.
+    sparse : bool
+        Solve the network around the controlled sources with
+        :class:`synth.circuit.sparse.SparseSolver` instead of the dense loop solve.
     """
 
-    def __init__(self, network: Network, resistor_weights: ArrayLike | None = None):
+    def __init__(self, network: Network, resistor_weights: ArrayLike | None = None,
+                 sparse: bool = False):
         self.network = network
-        self.inner = MeshSolver(network, resistor_weights)
+        self.inner: MeshSolver | SparseSolver = (
+            SparseSolver(network) if sparse else MeshSolver(network, resistor_weights))
         self.gains = np.array([c.gain for c in network.controlled])
         self.n_v, self.n_i = len(network.vsource_refs), len(network.isource_refs)
         self.n_g = len(network.regulator_refs)

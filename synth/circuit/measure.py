@@ -8,7 +8,7 @@ candidates.  Both ``check`` (one candidate) and the search use it.
 
 from __future__ import annotations
 
-__all__ = ["Evaluation", "Evaluator", "SourceValues"]
+__all__ = ["Evaluation", "Evaluator", "SourceValues", "network_solver"]
 
 from dataclasses import dataclass, replace
 
@@ -19,10 +19,14 @@ from synth.circuit.controlled import ControlledSolver
 from synth.circuit.mesh import MeshSolver
 from synth.circuit.network import Network, build_network
 from synth.circuit.solution import MeshSolution
+from synth.circuit.sparse import SPARSE_ABOVE, SparseSolver
 from synth.design.model import Design
 from synth.design.target import Target
 from synth.errors import DesignError, name_list
 from synth.rating import NOISE_FRACTION
+
+Solver = MeshSolver | SparseSolver | ControlledSolver
+"""Any of the solvers :func:`network_solver` chooses (one interface)."""
 
 
 @dataclass(frozen=True)
@@ -107,10 +111,8 @@ class Evaluator:
         if typical_resistances is None:
             typical_resistances = [_typical(r) for r in design.resistors]
         self.weights = np.asarray(typical_resistances, dtype=float)
-        self.solver: MeshSolver | ControlledSolver = (
-            ControlledSolver(self.network, self.weights) if self.network.controlled
-            else MeshSolver(self.network, self.weights))
-        self._seen: dict[tuple[str, str], MeshSolver | ControlledSolver] = {}
+        self.solver: Solver = network_solver(self.network, self.weights)
+        self._seen: dict[tuple[str, str], Solver] = {}
         self._without: dict[tuple[str, ...], tuple[Evaluator, np.ndarray]] = {}
         index = {n: i for i, n in enumerate(self.network.nodes)}
         self.node_index = index
@@ -147,15 +149,14 @@ class Evaluator:
         )
         """Branch columns whose delivered current counts in the supply current."""
 
-    def _seen_solver(self, plus: str, minus: str) -> MeshSolver | ControlledSolver:
+    def _seen_solver(self, plus: str, minus: str) -> Solver:
         key = (plus, minus)
         if key not in self._seen:
-            network = self.network.with_test_source(plus, minus)
-            self._seen[key] = (ControlledSolver(network, self.weights) if network.controlled
-                               else MeshSolver(network, self.weights))
+            self._seen[key] = network_solver(self.network.with_test_source(plus, minus),
+                                             self.weights)
         return self._seen[key]
 
-    def _solve(self, solver: MeshSolver | ControlledSolver, r: np.ndarray,
+    def _solve(self, solver: Solver, r: np.ndarray,
                voltages: np.ndarray, currents: np.ndarray, setpoints: np.ndarray,
                gains: np.ndarray | None) -> MeshSolution:
         return solver.solve(r, voltages, currents, setpoints, gains=gains)
@@ -455,6 +456,31 @@ def _dependent(systems: np.ndarray, refs: tuple[str, ...]) -> tuple[str, ...]:
         return ()
     share = np.abs(left[:, -1])
     return tuple(ref for ref, part in zip(refs, share, strict=True) if part > 1e-6)
+
+
+def network_solver(network: Network, resistor_weights: ArrayLike | None = None,
+                   sparse: bool | None = None) -> Solver:
+    """The solver for a network: dense loop solve, or sparse nodal solve when it is large.
+
+    Parameters
+    ----------
+    network : Network
+    resistor_weights : array_like, optional
+        Typical resistances, ohm (see :class:`synth.circuit.mesh.MeshSolver`).
+    sparse : bool, optional
+        Force the choice; by default the sparse solve is used for networks of
+        more than :data:`synth.circuit.sparse.SPARSE_ABOVE` resistors.
+
+    Returns
+    -------
+    MeshSolver, SparseSolver or ControlledSolver
+        Controlled sources are solved around either (superposition).
+    """
+    if sparse is None:
+        sparse = len(network.resistor_refs) > SPARSE_ABOVE
+    if network.controlled:
+        return ControlledSolver(network, resistor_weights, sparse=sparse)
+    return SparseSolver(network) if sparse else MeshSolver(network, resistor_weights)
 
 
 def _typical(resistor: object) -> float:

@@ -134,7 +134,8 @@ def nodal_solve(
     m = n_nodes - 1
     size = m + n_v + n_g
     matrix = np.zeros((n, size, size))
-    matrix[:, :m, :m] = np.einsum("ar,nr,br->nab", inc_r, 1.0 / r, inc_r)
+    # (inc_r / R) @ inc_rᵀ per candidate: a matrix product (BLAS), not a triple sum
+    matrix[:, :m, :m] = np.matmul(inc_r[None, :, :] / r[:, None, :], inc_r.T)
     matrix[:, :m, m:m + n_v] = inc_v
     matrix[:, :m, m + n_v:] = inc_g
     matrix[:, m:m + n_v, :m] = -inc_v.T
