@@ -28,13 +28,20 @@ def spread_text(spread: SpreadResult, units: list[str]) -> str:
     """Spread section of a report: per-target spread, sensitivities, worst-case stress."""
     low_c, high_c = spread.temperature_c
     s = spread.settings
+    run = s.samples if spread.samples_run is None else spread.samples_run
     lines = [f"spread over tolerance, TCR ({low_c:g} to {high_c:g} °C, reference 25 °C) and "
              f"supply: {len(spread.variables)} quantities vary"
-             + (f"; Monte Carlo {s.samples:,} {s.distribution} samples, seed {s.seed}"
+             + (f"; Monte Carlo {run:,} {s.distribution} samples, seed {s.seed}"
                 if s.samples else "")]
+    if s.samples and run < s.samples:
+        lines.append(f"note: Monte Carlo cut from {s.samples:,} to {run:,} samples to bound its "
+                     f"time (a large network runs at most {s.sample_budget:,} samples × "
+                     "resistors); the yield interval is that of the samples run")
     if spread.targets and not spread.targets[0].exact:
-        lines.append("note: too many quantities vary to solve every corner; worst cases use "
-                     "the corners the sensitivity signs give (not exhaustive)")
+        lines.append("note: too many quantities vary to solve every corner; worst cases are "
+                     "those of the two corners the nominal sensitivity signs point to: values "
+                     "reached inside the box, so the true range is at least this wide, but "
+                     "neither exact nor a bound (and no dissipation bound is given)")
     rows = []
     for t, unit in zip(spread.targets, units, strict=True):
         rows.append([
@@ -80,6 +87,7 @@ def spread_json(spread: SpreadResult) -> dict[str, Any]:
         "variables": list(spread.variables),
         "temperature": list(spread.temperature_c),
         "samples": s.samples, "distribution": s.distribution, "seed": s.seed,
+        "samples_run": spread.samples_run,
         "yield": json_number(spread.yield_fraction),
         "yield_interval": (None if spread.yield_interval is None
                            else [json_number(v) for v in spread.yield_interval]),
@@ -89,6 +97,7 @@ def spread_json(spread: SpreadResult) -> dict[str, Any]:
             "label": t.label, "goal": json_number(t.goal), "nominal": json_number(t.nominal),
             "worst_low": json_number(t.worst_low), "worst_high": json_number(t.worst_high),
             "low_corner": t.low_corner, "high_corner": t.high_corner, "exact": t.exact,
+            "worst_case_method": t.method,
             "rss": json_number(t.rss), "rss_abs": json_number(t.rss_abs),
             "sensitivities": {k: json_number(v) for k, v in t.sensitivities.items()},
             "mc_mean": json_number(t.mc_mean), "mc_std": json_number(t.mc_std),

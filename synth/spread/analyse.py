@@ -6,7 +6,12 @@ Three methods, all through the batched mesh solve:
   is linear-fractional, hence monotone, in each resistance and source, so its
   extremes over the tolerance box lie at the box's vertices; all vertices are
   solved (up to :data:`EXACT_VARIABLES` varying quantities) and the corner
-  giving each extreme is reported.  Dissipation is not monotone (it peaks
+  giving each extreme is reported.  With more quantities only the two
+  corners the signs of the nominal sensitivities point to are solved
+  (``method = "sensitivity corners"``): those values are attained in the box,
+  so the true range is at least that wide, but they are exact only if every
+  sensitivity keeps its sign over the whole box, which is not checked, so
+  they are reported as neither exact nor a bound.  Dissipation is not monotone (it peaks
   where a resistor equals the Thevenin resistance it sees), so each vertex
   pair along a resistor's own range is also checked for that interior peak;
   a sound upper bound is given beside the attained maximum.
@@ -39,7 +44,7 @@ import numpy as np
 
 from synth.circuit.measure import Evaluator
 from synth.design.model import Design
-from synth.spread.monte_carlo import monte_carlo, yield_interval
+from synth.spread.monte_carlo import monte_carlo, sample_count, yield_interval
 from synth.spread.records import PartSpread, SpreadResult, SpreadSettings, TargetSpread
 from synth.spread.variables import SpreadVariables, box_corners
 from synth.spread.worst_case import EXACT_VARIABLES, part_spread
@@ -148,6 +153,7 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
             worst_low=float(min(column[lo_at], nominal_targets[j])),
             worst_high=float(max(column[hi_at], nominal_targets[j])),
             low_corner=corner(lo_at), high_corner=corner(hi_at), exact=exact, rss=rss,
+            method="vertices" if exact else "sensitivity corners",
             sensitivities={name: float(sens[i, j]) for i, name in enumerate(var.names)},
             mc_mean=None, mc_std=None, mc_values=None, inside=None, rss_abs=rss_abs,
             rss_terms=terms,
@@ -159,12 +165,16 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
     targets = _with_power_peaks(design, ev, targets, parts)
     yield_fraction = None
     interval = None
+    run = None
     if settings.samples > 0:
-        targets, yield_fraction = monte_carlo(design, ev, var, parts0, src, settings, targets)
-        interval = yield_interval(round(yield_fraction * settings.samples), settings.samples)
+        run = sample_count(ev, settings)
+        targets, yield_fraction = monte_carlo(design, ev, var, parts0, src,
+                                              replace(settings, samples=run), targets)
+        interval = yield_interval(round(yield_fraction * run), run)
     return SpreadResult(variables=var.names, targets=tuple(targets), parts=tuple(parts),
                         yield_fraction=yield_fraction, settings=settings,
-                        temperature_c=design.temperature_c, yield_interval=interval)
+                        temperature_c=design.temperature_c, yield_interval=interval,
+                        samples_run=run)
 
 
 def _with_power_peaks(design: Design, ev: Evaluator, targets: list[TargetSpread],

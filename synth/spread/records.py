@@ -26,12 +26,19 @@ class SpreadSettings:
         Keep every target's samples (``TargetSpread.mc_values``, for plots and
         notebooks); without them memory stays bounded at any sample count, as
         the statistics and the yield are accumulated block by block.
+    sample_budget : int
+        On a network of more than :data:`synth.circuit.sparse.SPARSE_ABOVE`
+        resistors (each sample a sparse solve of the whole network), the most
+        samples times resistors the Monte Carlo runs: a larger ``samples`` is
+        cut to ``sample_budget // resistors`` (at least 1,000), and
+        :attr:`SpreadResult.samples_run` and the reports say so.
     """
 
     samples: int = 100_000
     distribution: str = "uniform"
     seed: int = 1
     keep_samples: bool = True
+    sample_budget: int = 10_000_000
 
 
 @dataclass(frozen=True)
@@ -51,6 +58,13 @@ class TargetSpread:
     exact : bool
         True when every vertex was solved (else the corners come from the
         sensitivity signs).
+    method : str
+        How the worst case was found: ``"vertices"`` (every vertex of the box
+        solved: the exact extremes of a target monotone in each quantity) or
+        ``"sensitivity corners"`` (too many quantities: only the two corners
+        the signs of the nominal sensitivities point to are solved; the values
+        are attained inside the box, so the true range is at least this wide,
+        but it is neither exact nor a bound).
     rss : float
         Root-sum-square deviation, as a fraction of the nominal value (each
         tolerance and each part's TCR drift over the temperature range is one
@@ -98,6 +112,7 @@ class TargetSpread:
     mc_max: float | None = None
     rss_terms: dict[str, tuple[float, float]] = field(default_factory=dict)
     noise: float = 0.0
+    method: str = "vertices"
 
     def variance_shares(self) -> dict[str, float]:
         """Each varying quantity's share of the root-sum-square variance (they add up to 1).
@@ -180,6 +195,10 @@ class SpreadResult:
     yield_interval : tuple of float or None
         The 95 % Clopper–Pearson confidence interval of the yield (exact
         binomial), or None without Monte Carlo.
+    samples_run : int or None
+        Monte Carlo samples actually run: ``settings.samples``, or fewer when
+        a large network cut them (see :attr:`SpreadSettings.sample_budget`);
+        None without Monte Carlo.
     """
 
     variables: tuple[str, ...]
@@ -189,6 +208,7 @@ class SpreadResult:
     settings: SpreadSettings
     temperature_c: tuple[float, float]
     yield_interval: tuple[float, float] | None = None
+    samples_run: int | None = None
 
     @property
     def worst_error(self) -> float:
