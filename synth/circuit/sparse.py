@@ -20,8 +20,8 @@ symmetric positive definite matrix).
 
 Candidates are solved in blocks.  A block shares one factorisation, that of
 the geometric mean of its candidates' conductances (the reference), and
-every candidate is solved by conjugate gradients preconditioned with it.  Candidates of a spread analysis
-differ from the nominal by their tolerances only, so the preconditioned
+every candidate is solved by conjugate gradients preconditioned with it.
+Candidates of a spread analysis differ from the nominal by their tolerances only, so the preconditioned
 matrix has its eigenvalues within the range of the conductance ratios
 g / g_ref (for 1 % parts within 0.98 to 1.02) and a few iterations reach
 rounding level.  A candidate whose conductances differ from the reference's
@@ -86,7 +86,7 @@ blocks of 4096)."""
 
 
 def _scipy() -> tuple[Any, Any]:
-    """``scipy.sparse`` and ``scipy.sparse.linalg``, imported on first use (start-up stays light)."""
+    """``scipy.sparse`` and ``scipy.sparse.linalg``, imported on first use (light start-up)."""
     import scipy.sparse as sp
     import scipy.sparse.linalg as spla
 

@@ -44,7 +44,7 @@ import numpy as np
 
 from synth.circuit.measure import Evaluator
 from synth.design.model import Design
-from synth.spread.monte_carlo import monte_carlo, sample_count, yield_interval
+from synth.spread.monte_carlo import block_size, monte_carlo, sample_count, yield_interval
 from synth.spread.records import PartSpread, SpreadResult, SpreadSettings, TargetSpread
 from synth.spread.variables import SpreadVariables, box_corners
 from synth.spread.worst_case import EXACT_VARIABLES, part_spread
@@ -96,15 +96,20 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
     nominal = ev.evaluate(r0[None, :], part_values=parts0[None, :])
     nominal_targets = nominal.targets[0]
 
-    # sensitivities by central differences, one batch
+    # sensitivities by central differences, in blocks whose memory stays bounded
     step = 1e-6
-    factors = np.ones((2 * n, n))
-    for i in range(n):
-        factors[2 * i, i] += step
-        factors[2 * i + 1, i] -= step
     if n:
-        r_s, p_s, s_s = var.apply(factors, parts0, src)
-        probe = ev.evaluate(r_s, s_s, part_values=p_s).targets
+        probe = np.empty((2 * n, len(design.targets)))
+        pairs = max(1, block_size(ev) // 2)
+        for first in range(0, n, pairs):
+            count = min(pairs, n - first)
+            factors = np.ones((2 * count, n))
+            rows = np.arange(count)
+            factors[2 * rows, first + rows] += step
+            factors[2 * rows + 1, first + rows] -= step
+            r_s, p_s, s_s = var.apply(factors, parts0, src)
+            probe[2 * first:2 * (first + count)] = ev.evaluate(r_s, s_s, part_values=p_s,
+                                                                parts=False).targets
         with np.errstate(all="ignore"):
             slope = (probe[0::2] - probe[1::2]) / (2 * step)  # d y / (d x / x)
             sens = slope / nominal_targets[None, :]

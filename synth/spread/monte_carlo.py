@@ -3,7 +3,10 @@
 
 from __future__ import annotations
 
-__all__ = ["LEAST_SAMPLES", "YIELD_CONFIDENCE", "monte_carlo", "sample_count", "yield_interval"]
+__all__ = [
+    "LEAST_SAMPLES", "YIELD_CONFIDENCE", "block_size", "monte_carlo", "sample_count",
+    "yield_interval",
+]
 
 import math
 
