@@ -21,8 +21,8 @@ symmetric positive definite matrix).
 Candidates are solved in blocks.  A block shares one factorisation, that of
 the geometric mean of its candidates' conductances (the reference), and
 every candidate is solved by conjugate gradients preconditioned with it.
-Candidates of a spread analysis differ from the nominal by their tolerances only, so the preconditioned
-matrix has its eigenvalues within the range of the conductance ratios
+Candidates of a spread analysis differ from the nominal by their tolerances
+only, so the preconditioned matrix has its eigenvalues within the range of the conductance ratios
 g / g_ref (for 1 % parts within 0.98 to 1.02) and a few iterations reach
 rounding level.  A candidate whose conductances differ from the reference's
 by more than :data:`_ITERATE_RATIO`, or that has not converged after
