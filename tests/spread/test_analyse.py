@@ -270,3 +270,82 @@ def test_negative_samples_refused():
     from conftest import EXAMPLES
     result = runner.invoke(cli, ["check", str(EXAMPLES[0]), "--samples", "-1"])
     assert result.exit_code == 2 and "--samples -1 must be 0" in result.stderr
+
+
+def _grid(resistors):
+    import sys
+    from pathlib import Path
+
+    sys.path.insert(0, str(Path(__file__).resolve().parents[2] / "benchmarks"))
+    from large_network import grid_tables
+
+    return design_from_dict(grid_tables(resistors))
+
+
+def test_large_network_cuts_monte_carlo_and_says_so():
+    # a grid above the sparse threshold: 5,000 samples asked, a budget of 1,500 per
+    # resistor runs 1,500; the yield interval is the exact binomial one of the samples run
+    # [HB-clopper-pearson] [LIB-scipy-binomtest]
+    from scipy.stats import binomtest
+
+    from synth.report.spread import spread_json, spread_text
+
+    design = _grid(80)
+    n_r = len(design.resistors)
+    settings = SpreadSettings(samples=5000, sample_budget=1500 * n_r, keep_samples=False)
+    spread = analyse_spread(design, settings=settings)
+    assert spread.samples_run == 1500
+    passed = round(spread.yield_fraction * 1500)
+    exact = binomtest(passed, 1500).proportion_ci(confidence_level=0.95, method="exact")
+    assert spread.yield_interval == pytest.approx((exact.low, exact.high), abs=1e-9)
+    text = spread_text(spread, [t.unit for t in design.targets])
+    assert "Monte Carlo 1,500 uniform samples" in text
+    assert "cut from 5,000 to 1,500 samples" in text
+    record = spread_json(spread)
+    assert record["samples"] == 5000 and record["samples_run"] == 1500
+    # asked within the budget: nothing is cut, nothing said
+    small = analyse_spread(design, settings=SpreadSettings(samples=1200, keep_samples=False))
+    assert small.samples_run == 1200
+    assert "cut from" not in spread_text(small, [t.unit for t in design.targets])
+
+
+def test_worst_case_names_its_method():
+    # every vertex solved for few quantities [HB-bilinear]; with many, the sensitivity
+    # corners are reported as neither exact nor a bound [HB-wca]
+    from synth.report.spread import spread_json, spread_text
+
+    few = analyse_spread(divider(), settings=SpreadSettings(samples=0))
+    assert few.targets[0].method == "vertices" and few.targets[0].exact
+    assert spread_json(few)["targets"][0]["worst_case_method"] == "vertices"
+    design = _grid(80)
+    many = analyse_spread(design, settings=SpreadSettings(samples=0))
+    assert all(t.method == "sensitivity corners" and not t.exact for t in many.targets)
+    assert spread_json(many)["targets"][0]["worst_case_method"] == "sensitivity corners"
+    text = spread_text(many, [t.unit for t in design.targets])
+    assert "neither exact nor a bound" in text
+    # no sound dissipation bound is claimed
+    assert all(p.worst_power_bound == math.inf for p in many.parts)
+
+
+def test_sensitivity_corner_values_are_attained_in_the_box():
+    # the reported worst value is the solve at the reported corner, a point of the box
+    # [HB-bilinear]: re-solve that corner by the dense loop solve and compare
+    from synth.circuit.measure import Evaluator
+    from synth.spread.variables import SpreadVariables
+
+    design = _grid(80)
+    spread = analyse_spread(design, settings=SpreadSettings(samples=0))
+    ev = Evaluator(design)
+    var = SpreadVariables(design, ev)
+    target = spread.targets[0]
+    factors = np.array([[var.high[i] if target.low_corner[name] == "+" else var.low[i]
+                         for i, name in enumerate(var.names)]])
+    parts0 = np.array([r.value for r in design.resistors])
+    r, p, s = var.apply(factors, parts0, ev.nominal_sources)
+    dense = Evaluator(design)
+    from synth.circuit.mesh import MeshSolver
+
+    dense.solver = MeshSolver(dense.network, parts0)
+    value = dense.evaluate(r, s, part_values=p).targets[0, 0]
+    assert value == pytest.approx(target.worst_low, rel=1e-9)
+    assert target.worst_low <= target.nominal <= target.worst_high
