@@ -206,6 +206,9 @@ class SparseSolver:
         self._t_t = self._t.T.tocsr()
         sense = network.regulator_sense.astype(int)
         self._sense = sense.reshape(-1, 2)
+        self.last_regulator_system = np.zeros((0, self.n_g, self.n_g))
+        """``(M, regulators, regulators)`` the regulators' system of the last block solved
+        (each sense voltage's dependence on each output), for naming dependent regulators."""
         self.factorizations = 0
         """Sparse factorisations done so far (one per block, plus candidates factored alone)."""
         self.iterations = 0
@@ -292,6 +295,7 @@ class SparseSolver:
             sense = v[self._sense[:, 0]] - v[self._sense[:, 1]]  # (G, columns, M)
             base, unit = sense[:, 0], sense[:, 1:]  # (G, M), (G, G, M): [sense, output, M]
             lhs = unit.transpose(2, 0, 1)
+            self.last_regulator_system = lhs
             determinant = lhs[:, 0, 0].copy() if self.n_g == 1 else np.linalg.det(lhs)
             scale = np.abs(lhs).max(axis=(1, 2))
             regular = np.abs(determinant) > 1e-13 * np.maximum(scale, 1e-300) ** self.n_g

@@ -270,3 +270,27 @@ def test_network_of_voltage_sources_only_between_its_nodes():
         [float(voltages[n]) for n in ("gnd", "a", "b")])
     assert sol.branch_currents[0].tolist() == pytest.approx(
         [float(currents[0]), *(float(d) for d in delivered)])
+
+
+def test_dependent_regulators_are_named_on_a_large_network():
+    # two regulators holding the same sense node: the network's equations are singular
+    # (no unique outputs) [HB-mna], and both are named
+    from synth.errors import DesignError
+
+    chain = [{"ref": f"RL{k}", "nodes": [f"l{k}", f"l{k + 1}" if k < 69 else "gnd"],
+              "value": 100.0} for k in range(70)]
+    chain[0]["nodes"][0] = "fb"
+    data = {
+        "regulator": [{"ref": "U1", "output": "o1", "sense": "fb", "reference": "gnd",
+                       "setpoint": "1.25 V"},
+                      {"ref": "U2", "output": "o2", "sense": "fb", "reference": "gnd",
+                       "setpoint": "1.25 V"}],
+        "resistor": [{"ref": "RA", "nodes": ["o1", "fb"], "value": 1e3},
+                     {"ref": "RB", "nodes": ["o2", "fb"], "value": 1e3}, *chain],
+    }
+    design = design_from_dict(data)
+    ev = Evaluator(design)
+    assert isinstance(ev.solver, SparseSolver)
+    with pytest.raises(DesignError, match="regulators U1, U2 set sense voltages that depend on each other"):
+        ev.check_regulators(np.array([r.value for r in design.resistors]))
+    assert ev.solver.last_regulator_system.shape == (1, 2, 2)
