@@ -291,6 +291,7 @@ def test_dependent_regulators_are_named_on_a_large_network():
     design = design_from_dict(data)
     ev = Evaluator(design)
     assert isinstance(ev.solver, SparseSolver)
-    with pytest.raises(DesignError, match="regulators U1, U2 set sense voltages that depend on each other"):
+    with pytest.raises(DesignError,
+                       match="regulators U1, U2 set sense voltages that depend on each other"):
         ev.check_regulators(np.array([r.value for r in design.resistors]))
     assert ev.solver.last_regulator_system.shape == (1, 2, 2)
