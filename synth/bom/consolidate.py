@@ -1,4 +1,4 @@
-"""Value consolidation across a board's networks, solved exactly by CP-SAT.
+"""Value consolidation across a board's networks: fewest lines by CP-SAT, least error exactly.
 
 Each network offers a pool of feasible candidates; each candidate needs a set
 of BOM lines (distinct orderable parts).  Choose one candidate per network so
@@ -9,18 +9,31 @@ that, in order of priority,
    bought is smallest;
 3. then the total of the networks' errors is smallest.
 
-The model: a Boolean per (network, candidate) with exactly one per network,
-a Boolean per BOM line, and for each network and line ``Σ candidates needing
-the line ≤ line`` (the aggregated form of ``candidate ⇒ line``, whose linear
-relaxation is much tighter).  The priorities are solved one after another, each later stage
-keeping the earlier optimum as a constraint, so the result is exactly
-lexicographic when every stage is proven optimal.
+Stages 1 and 2 are solved by CP-SAT, started from a greedy cover
+(:func:`synth.bom.cover.greedy_cover`).  The model: a Boolean per (network,
+candidate) with exactly one per network, a Boolean per BOM line, and for each
+network and line ``Σ candidates needing the line ≤ line`` (the aggregated form
+of ``candidate ⇒ line``, whose linear relaxation is much tighter).  A stage is
+proven when CP-SAT proves it or its lower bound reaches the best assignment
+known.  Stage 3 first takes, with the lines of stages 1 and 2 fixed, each
+network's least-error candidate (:func:`synth.bom.cover.best_within`): exact
+for those lines, as the networks no longer interact.  CP-SAT then looks, within
+what is left of the work limit, for another choice with as few lines (and as
+few to buy) and a smaller total error; when it proves there is none, the result
+is exactly lexicographic.
+
+Every limit is deterministic unless the wall clock binds: CP-SAT runs one
+worker with a fixed seed and a limit in its *deterministic time* (work units,
+about a second each on a desktop machine), so the same board gives the same
+choice on every run.  The wall-clock limit only guards against a slow machine;
+when it cuts a stage short the result is marked so.
 """
 
 from __future__ import annotations
 
-__all__ = ["Consolidation", "Pool", "consolidate"]
+__all__ = ["DEFAULT_WORK_LIMIT", "Consolidation", "Pool", "Stage", "consolidate"]
 
+import math
 import time
 from collections.abc import Hashable, Sequence
 from dataclasses import dataclass
@@ -28,7 +41,12 @@ from typing import Any
 
 from ortools.sat.python import cp_model
 
+from synth.bom.cover import best_within, greedy_cover, smallest_need
+
 _ERROR_UNIT = 1e-9  # errors enter the model as integers of this size (fractions)
+DEFAULT_WORK_LIMIT = 20.0
+"""CP-SAT deterministic time allowed to the consolidation by default, work units."""
+_LINES_SHARE = 0.6  # of the work limit, at most, for the fewest lines (the rest follows)
 
 
 @dataclass(frozen=True)
@@ -48,6 +66,42 @@ class Pool:
 
 
 @dataclass(frozen=True)
+class Stage:
+    """One priority of the consolidation and what is known of it.
+
+    Attributes
+    ----------
+    name : str
+        ``"lines"``, ``"to buy"`` or ``"error"``.
+    value : float
+        The chosen assignment's count of lines or lines to buy, or its total error
+        (fraction).
+    proven : bool
+        ``value`` is proven least, given the earlier stages (for ``"error"``: given
+        the chosen lines at least, see ``scope``).
+    bound : float
+        A proven lower bound on ``value`` given the earlier stages (``value`` itself
+        when proven).
+    scope : str
+        For ``"error"``: ``"every choice"`` when no choice with as few lines (and as
+        few to buy) has a smaller total error, ``"chosen lines"`` when the total is
+        proven least only for the chosen lines; ``""`` for the other stages.
+    work : float
+        CP-SAT deterministic time spent, work units (repeats run after run).
+    elapsed_s : float
+        Wall-clock time spent, s.
+    """
+
+    name: str
+    value: float
+    proven: bool
+    bound: float
+    scope: str = ""
+    work: float = 0.0
+    elapsed_s: float = 0.0
+
+
+@dataclass(frozen=True)
 class Consolidation:
     """Result of :func:`consolidate`.
 
@@ -62,13 +116,24 @@ class Consolidation:
     total_error : float
         Sum of the chosen candidates' errors.
     optimal : bool
-        Every stage was proven optimal (else the best found within the limit).
+        Every stage was proven optimal, the error over every choice with as few lines
+        (and as few to buy): the exact lexicographic optimum.
     status : str
-        CP-SAT's status of each stage, e.g. ``"lines: OPTIMAL; error: FEASIBLE"``.
+        Each stage's state, e.g. ``"lines: OPTIMAL; error: OPTIMAL"``; ``FEASIBLE``
+        for a stage not proven, ``OPTIMAL FOR THE CHOSEN LINES`` for an error proven
+        least for the chosen lines only, ``NOT SOLVED`` after a fallback.
     elapsed_s : float
         Solve time, s.
     lines_optimal : bool
         The number of lines (the first priority) was proven minimal.
+    stages : tuple of Stage
+        Each priority in order, with its value, proof and bound.
+    fallback : bool
+        No cover was found within the limits: every network keeps its own best
+        candidate (no consolidation).
+    cut : str
+        ``""``, or the limit that cut a stage short: ``"work limit"`` (the result
+        repeats) or ``"time limit"`` (the wall clock: a rerun may differ).
     """
 
     choice: tuple[int, ...]
@@ -79,10 +144,100 @@ class Consolidation:
     status: str
     elapsed_s: float
     lines_optimal: bool = True
+    stages: tuple[Stage, ...] = ()
+    fallback: bool = False
+    cut: str = ""
+
+    @property
+    def lines_bound(self) -> int:
+        """A proven lower bound on the board's lines."""
+        return int(self.stages[0].bound) if self.stages else self.lines
+
+
+def _line_set(lines: Sequence[Sequence[frozenset[int]]], choice: Sequence[int]) -> frozenset[int]:
+    return frozenset().union(*(lines[i][c] for i, c in enumerate(choice)))
+
+
+def _total(errors: Sequence[Sequence[float]], choice: Sequence[int]) -> float:
+    return float(sum(errors[i][c] for i, c in enumerate(choice)))
+
+
+class _Model:
+    """The CP-SAT model of the choice, its objectives and one deterministic solver."""
+
+    def __init__(self, lines: Sequence[Sequence[frozenset[int]]],
+                 errors: Sequence[Sequence[float]], line_count: int,
+                 buy: frozenset[int], seed: int) -> None:
+        self.lines = lines
+        self.model = cp_model.CpModel()
+        self.picks = [[self.model.new_bool_var(f"n{i}c{c}") for c in range(len(pool))]
+                      for i, pool in enumerate(lines)]
+        self.used = [self.model.new_bool_var(f"line{k}") for k in range(line_count)]
+        for row, pool in zip(self.picks, lines, strict=True):
+            self.model.add_exactly_one(row)
+            # a line is needed when the network's chosen candidate needs it; with exactly
+            # one candidate per network, summing the candidates that need a line gives the
+            # same integer solutions as one implication per candidate and a far tighter
+            # LP bound
+            needing: dict[int, list[cp_model.IntVar]] = {}
+            for var, needed in zip(row, pool, strict=True):
+                for key in sorted(needed):
+                    needing.setdefault(key, []).append(var)
+            for key, variables in needing.items():
+                self.model.add(sum(variables) <= self.used[key])
+        self.objectives: dict[str, Any] = {
+            "lines": sum(self.used),
+            "to buy": sum(self.used[k] for k in sorted(buy)),
+            "error": sum(round(err / _ERROR_UNIT) * var
+                         for row, pool_errors in zip(self.picks, errors, strict=True)
+                         for var, err in zip(row, pool_errors, strict=True)),
+        }
+        self.solver = cp_model.CpSolver()
+        self.solver.parameters.num_workers = 1  # one worker: the result repeats run after run
+        self.solver.parameters.random_seed = seed
+
+    def solve(self, name: str, hint: Sequence[int], work: float, seconds: float
+              ) -> tuple[tuple[int, ...] | None, float, float, bool]:
+        """Minimise one objective from a hinted assignment.
+
+        Returns the assignment found (None when none), the proven lower bound (in the
+        objective's units), the deterministic time spent and whether CP-SAT proved it.
+        """
+        self.model.clear_hints()  # type: ignore[no-untyped-call]  # ortools leaves it unannotated
+        needed: set[int] = set()
+        for row, pool, pick in zip(self.picks, self.lines, hint, strict=True):
+            for c, var in enumerate(row):
+                self.model.add_hint(var, c == pick)
+            needed |= pool[pick]
+        for k, var in enumerate(self.used):
+            self.model.add_hint(var, k in needed)
+        self.model.minimize(self.objectives[name])
+        params = self.solver.parameters
+        params.max_deterministic_time = max(work, 0.0)
+        params.max_time_in_seconds = max(seconds, 0.001)
+        # core-based search proves lower bounds on sums of Booleans (line counts: a
+        # MaxSAT view) far faster than the default single-worker search; the weighted
+        # error does better with the default search started from the hint
+        params.optimize_with_core = name != "error"
+        status = self.solver.solve(self.model)
+        found = None
+        if status in (cp_model.OPTIMAL, cp_model.FEASIBLE):
+            found = tuple(next(c for c, var in enumerate(row) if self.solver.boolean_value(var))
+                          for row in self.picks)
+        bound = float(self.solver.best_objective_bound)
+        if status == cp_model.OPTIMAL:
+            bound = float(self.solver.objective_value)
+        return (found, bound, float(self.solver.deterministic_time),
+                status == cp_model.OPTIMAL)
+
+    def keep(self, name: str, value: int) -> None:
+        """Hold an objective at most at ``value`` for the later stages."""
+        self.model.add(self.objectives[name] <= value)
 
 
 def consolidate(pools: Sequence[Pool], in_stock: frozenset[Hashable] | None = None,
-                time_limit_s: float = 30.0, seed: int = 0) -> Consolidation:
+                time_limit_s: float = 30.0, seed: int = 0,
+                work_limit: float = DEFAULT_WORK_LIMIT) -> Consolidation:
     """Choose one candidate per network with the fewest distinct BOM lines.
 
     Parameters
@@ -92,9 +247,13 @@ def consolidate(pools: Sequence[Pool], in_stock: frozenset[Hashable] | None = No
     in_stock : frozenset, optional
         Line keys on the shelf; with it, fewer lines to buy is the second priority.
     time_limit_s : float
-        Limit for the whole solve, s (shared by the stages).
+        Wall-clock limit for the whole solve, s (a guard: the result then may differ
+        from run to run, and says so in ``cut``).
     seed : int
         CP-SAT's random seed (one worker, so the result repeats).
+    work_limit : float
+        CP-SAT deterministic time for the whole solve, work units (the fewest lines
+        take at most 60 % of it; what a stage leaves passes on).
 
     Returns
     -------
@@ -109,75 +268,82 @@ def consolidate(pools: Sequence[Pool], in_stock: frozenset[Hashable] | None = No
     ((0, 0), 2, True)
     """
     start = time.perf_counter()
-    model = cp_model.CpModel()
-    picks = [[model.new_bool_var(f"n{i}c{c}") for c in range(len(p.lines))]
-             for i, p in enumerate(pools)]
+    deadline = start + time_limit_s
     keys = sorted({key for p in pools for s in p.lines for key in s}, key=repr)
-    used = {key: model.new_bool_var(f"line{k}") for k, key in enumerate(keys)}
-    for i, pool in enumerate(pools):
-        model.add_exactly_one(picks[i])
-        # a line is needed when the network's chosen candidate needs it; with exactly one
-        # candidate per network, summing the candidates that need a line gives the same
-        # integer solutions as one implication per candidate and a far tighter LP bound
-        needing: dict[Hashable, list[cp_model.IntVar]] = {}
-        for c, needed in enumerate(pool.lines):
-            for key in needed:
-                needing.setdefault(key, []).append(picks[i][c])
-        for key, variables in needing.items():
-            model.add(sum(variables) <= used[key])
-    line_count = sum(used.values())
-    buy_count = sum(v for key, v in used.items() if in_stock is None or key not in in_stock)
-    error_sum = sum(round(err / _ERROR_UNIT) * picks[i][c]
-                    for i, pool in enumerate(pools) for c, err in enumerate(pool.errors))
-    # hint: each network at its own best candidate
-    for i, pool in enumerate(pools):
-        best = int(min(range(len(pool.errors)), key=pool.errors.__getitem__))
-        for c, var in enumerate(picks[i]):
-            model.add_hint(var, c == best)
-    stages: list[tuple[str, Any]] = [("lines", line_count)]
-    if in_stock is not None:
-        stages.append(("to buy", buy_count))
-    stages.append(("error", error_sum))
-    solver = cp_model.CpSolver()
-    solver.parameters.num_workers = 1  # one worker: the result repeats run after run
-    solver.parameters.random_seed = seed
-    values: list[list[bool]] = []
-    flags: dict[Hashable, bool] = {}
-    statuses: list[str] = []
-    for stage, (name, objective) in enumerate(stages):
-        remaining = max(time_limit_s - (time.perf_counter() - start), 0.05)
-        solver.parameters.max_time_in_seconds = remaining
-        # core-based search proves lower bounds on sums of Booleans (line counts: a
-        # MaxSAT view) far faster than the default single-worker search; the weighted
-        # error stage does better with the default search started from the hint
-        solver.parameters.optimize_with_core = name != "error"
-        model.minimize(objective)
-        status = solver.solve(model)
-        statuses.append(f"{name}: {solver.status_name(status)}")
-        if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):
-            if not values:
-                raise RuntimeError(f"CP-SAT found no assignment ({solver.status_name(status)})")
-            break  # keep the previous stage's assignment: still valid for every stage so far
-        values = [[solver.boolean_value(v) for v in row] for row in picks]
-        flags = {key: solver.boolean_value(v) for key, v in used.items()}
-        reached = round(solver.objective_value)
-        if stage < len(stages) - 1:
-            model.add(objective <= reached)
-            # the previous assignment is a solution of the next stage: hand all of it over
-            model.clear_hints()  # type: ignore[no-untyped-call]  # ortools leaves it unannotated
-            for row, chosen in zip(picks, values, strict=True):
-                for var, on in zip(row, chosen, strict=True):
-                    model.add_hint(var, on)
-            for key, var in used.items():
-                model.add_hint(var, flags[key])
-    optimal = len(statuses) == len(stages) and all(s.endswith("OPTIMAL") for s in statuses)
-    choice = tuple(row.index(True) for row in values)
-    chosen_lines = set().union(*(pools[i].lines[c] for i, c in enumerate(choice)))
-    return Consolidation(
-        choice=choice, lines=len(chosen_lines),
-        to_buy=sum(1 for key in chosen_lines if in_stock is None or key not in in_stock)
-        if in_stock is not None else 0,
-        total_error=float(sum(pools[i].errors[c] for i, c in enumerate(choice))),
-        optimal=optimal, status="; ".join(statuses), elapsed_s=time.perf_counter() - start,
-        lines_optimal=statuses[0].endswith("OPTIMAL"),
-    )
+    number = {key: k for k, key in enumerate(keys)}
+    lines = [[frozenset(number[key] for key in s) for s in p.lines] for p in pools]
+    errors = [[float(e) for e in p.errors] for p in pools]
+    buy = frozenset(k for k, key in enumerate(keys) if in_stock is None or key not in in_stock)
+    names = ["lines", "to buy", "error"] if in_stock is not None else ["lines", "error"]
+    own_best = tuple(min(range(len(e)), key=lambda c, e=e: (e[c], c)) for e in errors)
+
+    def count(name: str, choice: Sequence[int]) -> int:
+        used = _line_set(lines, choice)
+        return len(used) if name == "lines" else len(used & buy)
+
+    def result(choice: tuple[int, ...], stages: list[Stage], fallback: bool = False,
+               cut: str = "") -> Consolidation:
+        words = []
+        for stage in stages:
+            if fallback:
+                word = "NOT SOLVED"
+            elif stage.proven and stage.scope == "chosen lines":
+                word = "OPTIMAL FOR THE CHOSEN LINES"
+            else:
+                word = "OPTIMAL" if stage.proven else "FEASIBLE"
+            words.append(f"{stage.name}: {word}")
+        return Consolidation(
+            choice=choice, lines=count("lines", choice),
+            to_buy=count("to buy", choice) if in_stock is not None else 0,
+            total_error=_total(errors, choice),
+            optimal=not fallback and all(s.proven and s.scope != "chosen lines"
+                                         for s in stages),
+            status="; ".join(words), elapsed_s=time.perf_counter() - start,
+            lines_optimal=stages[0].proven, stages=tuple(stages), fallback=fallback,
+            cut=cut)
+
+    cover = greedy_cover(lines, deadline)
+    if cover is None:
+        stages = [Stage(name, count(name, own_best), False, smallest_need(lines) if
+                        name == "lines" else 0.0) for name in names[:-1]]
+        stages.append(Stage("error", _total(errors, own_best), False, 0.0))
+        return result(own_best, stages, fallback=True, cut="time limit")
+    choice = best_within(lines, errors, cover)
+    if count("lines", own_best) <= count("lines", choice):
+        choice = own_best
+    model = _Model(lines, errors, len(keys), buy, seed)
+    stages = []
+    cut = ""
+    spent = 0.0
+    for name in names[:-1]:
+        began = time.perf_counter()
+        budget = work_limit - spent
+        budget = min(budget, _LINES_SHARE * work_limit) if name == "lines" else budget / 2
+        found, bound, work, _ = model.solve(name, choice, budget, deadline - began)
+        spent += work
+        if found is not None and count(name, found) <= count(name, choice):
+            choice = found
+        value = count(name, choice)
+        floor = smallest_need(lines) if name == "lines" else 0
+        bound = max(floor, math.ceil(bound - 1e-6))
+        proven = bound >= value
+        if not proven and not cut:
+            cut = "time limit" if time.perf_counter() >= deadline else "work limit"
+        stages.append(Stage(name, value, proven, value if proven else bound, work=work,
+                            elapsed_s=time.perf_counter() - began))
+        model.keep(name, value)
+    began = time.perf_counter()
+    choice = best_within(lines, errors, _line_set(lines, choice))
+    scope, work = "chosen lines", 0.0
+    if work_limit - spent > 0 and time.perf_counter() < deadline:
+        found, _, work, solved = model.solve("error", choice, work_limit - spent, deadline - began)
+        if found is not None:
+            better = best_within(lines, errors, _line_set(lines, found))
+            if _total(errors, better) < _total(errors, choice):
+                choice = better
+            if solved:
+                scope = "every choice"
+    error = _total(errors, choice)
+    stages.append(Stage("error", error, True, error, scope=scope, work=work,
+                        elapsed_s=time.perf_counter() - began))
+    return result(choice, stages, cut=cut)
