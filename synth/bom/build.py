@@ -17,7 +17,7 @@ from collections import defaultdict
 from collections.abc import Callable, Mapping, Sequence
 from typing import cast
 
-from synth.bom.consolidate import Consolidation, Pool, consolidate
+from synth.bom.consolidate import DEFAULT_WORK_LIMIT, Consolidation, Pool, consolidate
 from synth.bom.lines import (
     BomLine,
     BomResult,
@@ -136,7 +136,8 @@ def renumber(instances: list[list[str]], every: bool = False) -> list[dict[str, 
 
 def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0,
               progress: Callable[[str], None] | None = None,
-              renumber_all: bool = False) -> BomResult:
+              renumber_all: bool = False,
+              work_limit: float = DEFAULT_WORK_LIMIT) -> BomResult:
     """Design every network of a board, consolidate values and list the parts.
 
     Parameters
@@ -145,7 +146,11 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
     stock_only : bool
         Keep only candidates whose chosen parts are all in the stock list.
     time_limit_s : float
-        Time limit of the consolidation, s.
+        Wall-clock limit of the consolidation, s (a guard; when it binds, a rerun may
+        choose differently).
+    work_limit : float
+        Work limit of the consolidation in CP-SAT deterministic time units (about a
+        second each); the same board with the same limit gives the same BOM.
     progress : callable, optional
         Called with each network's name as it is designed.
     renumber_all : bool
@@ -201,7 +206,15 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
     table_of = _tables(board, pools)
     in_stock = (frozenset(k for k, table in table_of.items() if _stock_match(k, stock, table))
                 if stock else None)
-    outcome = consolidate(pools, in_stock=in_stock, time_limit_s=time_limit_s)
+    outcome = consolidate(pools, in_stock=in_stock, time_limit_s=time_limit_s,
+                          work_limit=work_limit)
+    if outcome.fallback:
+        notes.append("consolidation: no cover found within the time limit; every network "
+                     "keeps its own best candidate (not consolidated)")
+    elif outcome.cut:
+        notes.append(f"consolidation: the {outcome.cut} cut the search short "
+                     f"({outcome.status}); best assignment known kept"
+                     + ("; a rerun may differ" if outcome.cut == "time limit" else ""))
     before = len(set().union(*(p.lines[0] for p in pools)))
     return _listing(board, options, outcome, before, table_of, stock, notes,
                     stock_only=stock_only, renumber_all=renumber_all)

@@ -275,7 +275,7 @@ def consolidate(pools: Sequence[Pool], in_stock: frozenset[Hashable] | None = No
     errors = [[float(e) for e in p.errors] for p in pools]
     buy = frozenset(k for k, key in enumerate(keys) if in_stock is None or key not in in_stock)
     names = ["lines", "to buy", "error"] if in_stock is not None else ["lines", "error"]
-    own_best = tuple(min(range(len(e)), key=lambda c, e=e: (e[c], c)) for e in errors)
+    own_best = tuple(min(range(len(e)), key=lambda c: (e[c], c)) for e in errors)
 
     def count(name: str, choice: Sequence[int]) -> int:
         used = _line_set(lines, choice)

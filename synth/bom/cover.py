@@ -145,5 +145,5 @@ def best_within(lines: Sequence[Sequence[frozenset[int]]], errors: Sequence[Sequ
         fits = [c for c, needed in enumerate(pool) if needed <= allowed]
         if not fits:
             raise ValueError(f"network {number} has no candidate within the allowed lines")
-        choice.append(min(fits, key=lambda c, e=pool_errors: (e[c], c)))
+        choice.append(min(fits, key=lambda c: (pool_errors[c], c)))  # used at once
     return tuple(choice)

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 __all__ = ["bom_command", "check_command", "cli", "design_command", "series_command"]
 
+import math
 import sys
 from pathlib import Path
 from typing import TYPE_CHECKING
@@ -34,6 +35,8 @@ from synth.cli.options import (
     write_plots,
 )
 from synth.cli.run import run_design
+
+BOM_WORK_LIMIT = 20.0  # synth.bom.consolidate.DEFAULT_WORK_LIMIT, without loading ortools
 
 # -- commands ----------------------------------------------------------------------------
 
@@ -158,13 +161,19 @@ def design_command(design_file: str, search: SearchOptions, spread: SpreadOption
               help="Write the BOM to this file instead of standard output.")
 @click.option("--force", is_flag=True, help="Replace an existing output file.")
 @click.option("--time-limit", type=float, default=30.0, show_default=True,
-              metavar="SECONDS", help="Time limit of the consolidation.")
+              metavar="SECONDS",
+              help="Wall-clock limit of the consolidation (a guard: when it binds, a rerun "
+                   "may choose differently).")
+@click.option("--work-limit", type=float, default=BOM_WORK_LIMIT, show_default=True,
+              metavar="UNITS",
+              help="Work limit of the consolidation in solver work units (about a second "
+                   "each); the same board and limit give the same BOM.")
 @click.option("--quiet", is_flag=True, help="No summary and no progress lines.")
 @friendly
 def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, pool: int | None,
                 form: str, encoding: str | None, renumber: bool, ranges: bool,
                 output: str | None,
-                force: bool, time_limit: float, quiet: bool) -> None:
+                force: bool, time_limit: float, work_limit: float, quiet: bool) -> None:
     """Bill of materials for a board: design files and/or board files.
 
     Designs every network, then chooses one design per network so that the
@@ -177,6 +186,9 @@ def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, poo
     from synth.report.bom import bom_summary, render_bom, resolve_encoding
 
     check_time_limit(time_limit)
+    if not (math.isfinite(work_limit) and work_limit > 0):
+        raise DesignError(f"--work-limit {work_limit} must be a positive number of work "
+                          "units (a finite one)")
     if output is not None and Path(output).exists() and not Path(output).is_file():
         raise DesignError(f"{output}: is not a regular file; write to a file name instead")
     if output is not None and Path(output).exists() and not force:
@@ -191,7 +203,7 @@ def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, poo
             click.echo(f"designing {name} ...", err=True)
 
     result = build_bom(board, stock_only=stock_only, time_limit_s=time_limit, progress=note,
-                       renumber_all=renumber)
+                       renumber_all=renumber, work_limit=work_limit)
     text = render_bom(result, form, ranges=ranges, encoding=encoding)
     if output is None:
         stream = click.get_binary_stream("stdout")

@@ -192,7 +192,12 @@ def bom_document(result: BomResult, ranges: bool = False) -> dict[str, Any]:
                           "to_buy": c.to_buy, "total_error": c.total_error,
                           "optimal": c.optimal, "lines_optimal": c.lines_optimal,
                           "status": c.status,
-                          "elapsed_s": c.elapsed_s},
+                          "elapsed_s": c.elapsed_s,
+                          "lines_bound": c.lines_bound, "fallback": c.fallback,
+                          "cut": c.cut or None,
+                          "stages": [{"name": s.name, "value": s.value, "proven": s.proven,
+                                      "bound": s.bound, "scope": s.scope or None,
+                                      "work": round(s.work, 6)} for s in c.stages]},
         "parts": result.parts,
         "notes": list(result.notes),
     }
@@ -280,12 +285,18 @@ def bom_summary(result: BomResult) -> str:
     """A few lines for the terminal: lines, parts, networks, what consolidation saved."""
     c = result.consolidation
     saved = result.lines_before - c.lines
-    if c.optimal:
+    if c.fallback:
+        state = "not consolidated: no cover found within the time limit"
+    elif c.optimal:
         state = "optimal"
+    elif c.lines_optimal and c.stages and all(s.proven for s in c.stages):
+        state = ("fewest lines proven; least total error proven for the chosen lines, not "
+                 f"over every choice with as few ({c.status})")
     elif c.lines_optimal:
         state = f"fewest lines proven; later priorities best found within the limit ({c.status})"
     else:
-        state = f"best found within the time limit ({c.status})"
+        state = (f"best found within the {c.cut or 'time limit'}, at least {c.lines_bound} "
+                 f"lines ({c.status})")
     lines = [f"{len(result.lines)} BOM lines, {result.parts} parts, "
              f"{len(result.networks)} networks; consolidation: {result.lines_before} lines "
              f"with each network at its own best, {c.lines} after ({saved} saved, {state})"]

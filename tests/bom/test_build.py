@@ -236,3 +236,50 @@ def test_rating_columns_come_from_each_networks_own_package_table(tmp_path):
         assert big and all(line["rated_power_w"] == 1.5 for line in big)
         small = [line for line in lines if line["package"] == "0603"]
         assert small and all(line["rated_power_w"] == 0.1 for line in small)
+
+
+@pytest.mark.parametrize("work", ["20", "0.01"])
+def test_three_runs_of_one_board_write_the_same_bytes(board, work):
+    # the wall clock no longer decides: CSV repeats whole, JSON all but its measured time
+    # (common practice: a build is reproducible when the same inputs give the same bytes)
+    csvs = {run("bom", board / "board.toml", "--quiet", "--work-limit", work).stdout_bytes
+            for _ in range(3)}
+    assert len(csvs) == 1
+    docs = []
+    for _ in range(3):
+        doc = json.loads(run("bom", board / "board.toml", "--quiet", "--format", "json",
+                             "--work-limit", work).stdout)
+        assert doc["consolidation"].pop("elapsed_s") >= 0
+        docs.append(json.dumps(doc, sort_keys=True))
+    assert len(set(docs)) == 1
+    stages = json.loads(docs[0])["consolidation"]["stages"]
+    assert [s["name"] for s in stages] == ["lines", "error"]
+    assert all(s["work"] <= float(work) + 0.1 for s in stages)
+
+
+def test_a_time_limit_too_short_for_any_cover_keeps_each_networks_best(board):
+    result = run("bom", board / "board.toml", "--format", "json", "--time-limit", "1e-9")
+    assert result.exit_code == 0, result.output
+    doc = json.loads(result.stdout)
+    c = doc["consolidation"]
+    assert c["fallback"] and c["cut"] == "time limit" and not c["optimal"]
+    assert not any(s["proven"] for s in c["stages"])
+    assert c["lines_after"] == c["lines_before"]
+    assert ("consolidation: no cover found within the time limit; every network keeps its "
+            "own best candidate (not consolidated)") in doc["notes"]
+    assert "not consolidated: no cover found within the time limit" in result.stderr
+    assert "Traceback" not in result.output
+
+
+@pytest.mark.parametrize("value", ["0", "-1", "inf", "nan"])
+def test_a_work_limit_must_be_positive_and_finite(board, value):
+    result = run("bom", board / "board.toml", "--work-limit", value)
+    assert result.exit_code == 2
+    assert f"--work-limit {float(value)} must be a positive number of work units" in result.output
+
+
+def test_the_command_default_work_limit_is_the_librarys():
+    from synth.bom.consolidate import DEFAULT_WORK_LIMIT
+    from synth.cli.commands import BOM_WORK_LIMIT
+
+    assert BOM_WORK_LIMIT == DEFAULT_WORK_LIMIT

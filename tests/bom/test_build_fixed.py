@@ -149,10 +149,20 @@ def test_summary_says_what_the_consolidation_proved(tmp_path):
     assert "stock: 1 lines in stock, 1 to buy or top up" in text
     assert "fixed: candidate 1 of 1 (largest error 0.99%)" in text
     assert "free: candidate 1 of" in text and "(exact)" in text
-    partly = replace(result, consolidation=replace(result.consolidation, optimal=False,
-                                                   status="lines: OPTIMAL; error: FEASIBLE"))
+    c = result.consolidation
+    assert c.optimal and c.stages[-1].scope == "every choice"
+    for_lines = replace(result, consolidation=replace(
+        c, optimal=False, status="lines: OPTIMAL; error: OPTIMAL FOR THE CHOSEN LINES",
+        stages=(*c.stages[:-1], replace(c.stages[-1], scope="chosen lines"))))
+    assert ("fewest lines proven; least total error proven for the chosen lines, not over "
+            "every choice with as few") in bom_summary(for_lines)
+    partly = replace(result, consolidation=replace(
+        c, optimal=False, status="lines: OPTIMAL; to buy: FEASIBLE; error: FEASIBLE",
+        stages=(c.stages[0], replace(c.stages[1], proven=False), c.stages[2])))
     assert ("fewest lines proven; later priorities best found within the limit "
-            "(lines: OPTIMAL; error: FEASIBLE)") in bom_summary(partly)
+            "(lines: OPTIMAL; to buy: FEASIBLE; error: FEASIBLE)") in bom_summary(partly)
     neither = replace(partly, consolidation=replace(partly.consolidation, lines_optimal=False,
                                                     status="lines: FEASIBLE"))
-    assert "best found within the time limit (lines: FEASIBLE)" in bom_summary(neither)
+    bound = result.consolidation.lines_bound
+    assert (f"best found within the time limit, at least {bound} lines (lines: FEASIBLE)"
+            in bom_summary(neither))

@@ -10,6 +10,7 @@ import itertools
 import numpy as np
 import pytest
 
+from bom.exhaustive import least_error_within, lexicographic_best
 from synth.bom.consolidate import Pool, consolidate
 
 
@@ -63,3 +64,55 @@ def test_stock_preference_against_brute_force(seed):
 def test_repeatable():
     pools = random_pools(np.random.default_rng(5), networks=6, most=8)
     assert consolidate(pools).choice == consolidate(pools).choice
+
+
+# -- stages, proofs and limits, against the exhaustive search of tests/bom/exhaustive.py --
+
+
+@pytest.mark.parametrize("seed", range(12))
+def test_every_proven_stage_matches_the_exhaustive_search(seed):
+    rng = np.random.default_rng(300 + seed)
+    pools = random_pools(rng, networks=int(rng.integers(2, 6)), most=6)
+    in_stock = (frozenset(int(v) for v in rng.choice(12, size=4, replace=False))
+                if seed % 2 else None)
+    result = consolidate(pools, in_stock=in_stock)
+    lines, buy, error = lexicographic_best(pools, in_stock)
+    stages = {s.name: s for s in result.stages}
+    assert [s.name for s in result.stages] == (["lines", "to buy", "error"] if in_stock
+                                               else ["lines", "error"])
+    assert stages["lines"].proven and stages["lines"].value == lines == result.lines_bound
+    if in_stock:
+        assert stages["to buy"].proven and stages["to buy"].value == buy == result.to_buy
+    assert stages["error"].proven
+    chosen = set().union(*(pools[i].lines[c] for i, c in enumerate(result.choice)))
+    # proven for the chosen lines in every case; over every choice when the scope says so
+    assert result.total_error == pytest.approx(least_error_within(pools, chosen), abs=1e-12)
+    if stages["error"].scope == "every choice":
+        assert result.optimal and result.total_error == pytest.approx(error, abs=1e-8)
+
+
+def test_a_tiny_work_limit_keeps_the_best_known_with_an_honest_bound():
+    pools = random_pools(np.random.default_rng(7), networks=7, most=5, values=20)
+    result = consolidate(pools, work_limit=1e-6)
+    lines, _, _ = lexicographic_best(pools)
+    first = result.stages[0]
+    assert not result.optimal and result.cut == "work limit"
+    assert not first.proven and result.status.startswith("lines: FEASIBLE")
+    assert first.bound <= lines <= first.value == result.lines
+    assert result.stages[-1].scope == "chosen lines" and result.stages[-1].work == 0.0
+
+
+def test_a_tiny_time_limit_falls_back_to_each_networks_own_best():
+    pools = random_pools(np.random.default_rng(8), networks=5, most=5)
+    result = consolidate(pools, time_limit_s=1e-9)
+    own = tuple(min(range(len(p.errors)), key=lambda c, p=p: (p.errors[c], c)) for p in pools)
+    assert result.fallback and result.choice == own and not result.optimal
+    assert result.cut == "time limit" and not any(s.proven for s in result.stages)
+    assert result.status == "lines: NOT SOLVED; error: NOT SOLVED"
+
+
+def test_three_runs_give_the_same_choice_and_work():
+    pools = random_pools(np.random.default_rng(9), networks=30, most=40, values=60)
+    runs = [consolidate(pools, work_limit=0.5) for _ in range(3)]
+    assert len({(r.choice, r.status, tuple((s.value, s.bound, s.work) for s in r.stages))
+                for r in runs}) == 1
