@@ -38,9 +38,13 @@ def test_a_fifo_is_refused_before_it_is_opened(tmp_path):
 
 
 @pytest.mark.skipif(not os.path.exists("/dev/zero"), reason="needs /dev/zero")
-def test_a_device_is_refused_not_read_without_bound():
+def test_a_device_is_refused_not_read_without_bound(tmp_path):
+    link = tmp_path / "design.toml"
+    link.symlink_to("/dev/zero")  # a name with the right suffix: the device is still refused
+    for args in (("check", str(link)), ("bom", str(link))):
+        assert "design.toml: is not a regular file" in one_line_refusal(*args)
     for args in (("check", "/dev/zero"), ("bom", "/dev/zero")):
-        assert "/dev/zero: is not a regular file" in one_line_refusal(*args)
+        assert "/dev/zero: a design" in one_line_refusal(*args)
 
 
 def test_a_file_over_the_size_cap_is_refused(tmp_path, monkeypatch):
@@ -102,10 +106,10 @@ def test_a_name_too_long_for_the_file_system_is_not_found(tmp_path):
     shutil.copy(PROBE, tmp_path / "probe.toml")
     board = tmp_path / "board.toml"
     long = "9" * 5000
-    board.write_text(f'[board]\nstock = "{long}"\n[[network]]\nfile = "probe.toml"\n',
+    board.write_text(f'[board]\nstock = "{long}.csv"\n[[network]]\nfile = "probe.toml"\n',
                      encoding="utf-8")
     assert "was not found" in one_line_refusal("bom", str(board))
-    board.write_text(f'[[network]]\nfile = "{long}"\n', encoding="utf-8")
+    board.write_text(f'[[network]]\nfile = "{long}.toml"\n', encoding="utf-8")
     assert "was not found" in one_line_refusal("bom", str(board))
     board.write_text('[[network]]\nfile = "probe.toml"\n', encoding="utf-8")
-    assert "not found" in one_line_refusal("bom", str(board), "--stock", long)
+    assert "not found" in one_line_refusal("bom", str(board), "--stock", long + ".csv")

@@ -15,7 +15,7 @@ from pathlib import Path
 
 from synth.catalog.series import catalog_dir
 from synth.errors import DesignError
-from synth.inputs import read_input_text
+from synth.inputs import read_input_text, require_suffix
 
 
 @dataclass(frozen=True)
@@ -164,8 +164,8 @@ def load_package_table(path: str | Path | None = None) -> dict[str, PackageRatin
     Parameters
     ----------
     path : str or Path, optional
-        A CSV with the columns of ``catalogs/packages.csv``; the bundled table
-        when omitted.
+        A CSV file (its name ending in ``.csv``) with the columns of
+        ``catalogs/packages.csv``; the bundled table when omitted.
 
     Returns
     -------
@@ -177,6 +177,8 @@ def load_package_table(path: str | Path | None = None) -> dict[str, PackageRatin
     >>> load_package_table()["0603"].rated_power_w
     0.1
     """
+    if path is not None:
+        require_suffix(path, "package table")
     source = Path(path) if path is not None else catalog_dir() / "packages.csv"
     resolved = source.resolve()
     try:

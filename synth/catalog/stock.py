@@ -17,6 +17,7 @@ from pathlib import Path
 
 from synth.catalog.packages import read_csv_rows
 from synth.errors import DesignError
+from synth.inputs import require_suffix
 from synth.units import parse_fraction, parse_resistance, parse_tcr
 
 _STOCK_COLUMNS = ("value", "package", "tolerance", "tcr", "quantity")
@@ -94,9 +95,10 @@ def load_stock(path: Path) -> list[StockItem]:
     Raises
     ------
     DesignError
-        Naming the file and line of a malformed row, or a column that looks like a misspelt
-        known one.
+        When the name does not end in ``.csv``; naming the file and line of a malformed
+        row, or a column that looks like a misspelt known one.
     """
+    require_suffix(path, "stock list")
     items = []
     for number, raw in read_csv_rows(path, delimiters=",;"):
         row = {_header(k): v for k, v in raw.items()}

@@ -12,7 +12,10 @@ A board file is TOML with a ``[board]`` table and ``[[network]]`` tables::
     name = "probe"             # optional; default: the file's stem
     count = 2                  # optional; copies of this network on the board
 
-Design files can also be given directly; each is then one network.
+Design files can also be given directly; each is then one network.  Board and design
+files end in ``.toml`` and a stock list in ``.csv``; a name with another suffix is
+refused before it is looked for.  A board or design read from standard input is named
+``<stdin>`` and the files it names are read relative to the current folder.
 """
 
 from __future__ import annotations
@@ -22,12 +25,21 @@ __all__ = ["DEFAULT_POOL", "Board", "BoardNetwork", "load_board"]
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
+from typing import IO, Any
 
 from synth.design.load import load_design
 from synth.design.model import Design
+from synth.design.reader import design_from_dict
 from synth.errors import DesignError, nearest_name
-from synth.inputs import present, read_toml
+from synth.inputs import (
+    STDIN,
+    decode_input,
+    parse_toml,
+    present,
+    read_stream,
+    read_toml,
+    require_suffix,
+)
 
 _BOARD_KEYS = ("title", "stock", "pool", "notes")
 
@@ -76,8 +88,12 @@ class Board:
     pool: int
 
 
+_WHAT = "design or board file"
+
+
 def _read_toml(path: Path) -> dict[str, Any]:
-    return read_toml(path, "design or board file")
+    require_suffix(path, _WHAT)
+    return read_toml(path, _WHAT)
 
 
 def _board_file(path: Path, data: dict[str, Any]) -> tuple[str, list[BoardNetwork],
@@ -104,6 +120,7 @@ def _board_file(path: Path, data: dict[str, Any]) -> tuple[str, list[BoardNetwor
         if not isinstance(board["stock"], str) or not board["stock"].strip():
             raise DesignError(f"{path}, [board]: stock must be the name of a CSV file, not "
                               f"{type(board['stock']).__name__} {str(board['stock'])[:40]!r}")
+        require_suffix(board["stock"], "stock list", f"{path}, [board]")
         stock = path.parent / board["stock"]
         if not present(stock):
             raise DesignError(f"{path}, [board]: stock file {board['stock']!r} was not found; "
@@ -127,6 +144,7 @@ def _board_file(path: Path, data: dict[str, Any]) -> tuple[str, list[BoardNetwor
                                   f" (allowed: {', '.join(_NETWORK_KEYS)})")
         if not isinstance(entry.get("file"), str):
             raise DesignError(f"{item}: file is missing; add file = \"design.toml\"")
+        require_suffix(entry["file"], "design file", item)
         design_path = path.parent / entry["file"]
         if not present(design_path):
             raise DesignError(f"{item}: design file {entry['file']!r} was not found; check the "
@@ -144,7 +162,7 @@ def _board_file(path: Path, data: dict[str, Any]) -> tuple[str, list[BoardNetwor
 
 
 def load_board(paths: Sequence[str | Path], stock: str | Path | None = None,
-               pool: int | None = None) -> Board:
+               pool: int | None = None, *, stdin: IO[bytes] | None = None) -> Board:
     """Read a board from board files and design files.
 
     Parameters
@@ -155,26 +173,42 @@ def load_board(paths: Sequence[str | Path], stock: str | Path | None = None,
         A house stock list; overrides a board file's ``stock``.
     pool : int, optional
         Candidates kept per network; overrides a board file's ``pool``.
+    stdin : binary stream, optional
+        What a path of ``-`` reads (the command line hands it standard input): a board
+        or design file named ``<stdin>``, whose files are read relative to the current
+        folder, and whose network is named ``stdin``.  Without it ``-`` is refused.
 
     Raises
     ------
     DesignError
-        On a missing or malformed file, or two networks with the same name.
+        On a missing or malformed file, a name without its suffix (``.toml``, a stock
+        list ``.csv``), ``-`` given twice or without ``stdin``, or two networks with the
+        same name.
     """
     if not paths:
         raise DesignError("no design or board file given; name at least one")
     title, networks, stock_path, board_pool = "", [], None, DEFAULT_POOL
+    if sum(str(raw) == "-" for raw in paths) > 1:
+        raise DesignError("-: standard input is named twice; it can be read once")
     for raw in paths:
-        path = Path(raw)
-        data = _read_toml(path)
+        if str(raw) == "-":
+            if stdin is None:
+                raise DesignError("-: no standard input to read here; name a file")
+            path = Path(STDIN)
+            data = parse_toml(decode_input(read_stream(stdin, _WHAT), STDIN), STDIN, _WHAT)
+        else:
+            path = Path(raw)
+            data = _read_toml(path)
         if "board" in data or "network" in data:
             t, nets, s, p = _board_file(path, data)
             title = title or t
             networks += nets
             stock_path = stock_path or s
             board_pool = p
-        else:
-            networks.append(BoardNetwork(name=path.stem, design=load_design(path), count=1))
+        else:  # a design file, read once
+            name = "stdin" if str(raw) == "-" else path.stem
+            networks.append(BoardNetwork(name=name, design=design_from_dict(data, str(path)),
+                                         count=1))
     seen: dict[str, int] = {}
     for net in networks:
         if net.name in seen:
@@ -182,6 +216,7 @@ def load_board(paths: Sequence[str | Path], stock: str | Path | None = None,
                               "the board; give each network its own name")
         seen[net.name] = 1
     if stock is not None:
+        require_suffix(stock, "stock list")
         stock_path = Path(stock)
         if not present(stock_path):
             raise DesignError(f"{stock_path}: stock file not found; check the path")

@@ -34,7 +34,7 @@ from synth.design.model import REQUIREMENTS, Design, Regulator, Source
 from synth.design.read_resistor import read_resistor
 from synth.design.read_target import read_target
 from synth.errors import DesignError, name_list, nearest_name
-from synth.inputs import present
+from synth.inputs import present, require_suffix
 from synth.units import (
     parse_quantity,
     parse_tcr,
@@ -231,6 +231,8 @@ def _design(data: Mapping[str, Any], origin: str) -> Design:
     settings = _read_design_table(origin, data.get("design"))
     packages_path = None
     if settings["packages_path"]:
+        # checked before the name is looked for: no other kind of file is read
+        require_suffix(settings["packages_path"], "package table", f"{origin}, [design]")
         base = Path(origin).parent if not origin.startswith("<") else Path.cwd()
         path = base / settings["packages_path"]
         if not present(path):

@@ -65,8 +65,9 @@ def test_real_inventory_exports(tmp_path):
 
 
 def test_unreadable_stock_list_is_refused(tmp_path):
+    (tmp_path / "shelf.csv").mkdir()
     with pytest.raises(DesignError, match="is a folder; name a CSV file"):
-        load_stock(tmp_path)  # a directory
+        load_stock(tmp_path / "shelf.csv")  # a directory
 
 
 DESIGN = """
