@@ -21,7 +21,7 @@ folder, flushed to disk, and only then given its final name.
 
 from __future__ import annotations
 
-__all__ = ["write_all", "write_atomic"]
+__all__ = ["check_destination", "write_all", "write_atomic"]
 
 import errno
 import os
@@ -39,8 +39,21 @@ _NO_LINKS = {errno.EPERM, errno.EOPNOTSUPP, errno.ENOTSUP, errno.EXDEV, errno.EN
              errno.EMLINK}
 
 
-def _check_destination(target: Path, force: bool) -> Path:
-    """The destination's folder, after refusing what may not be written at ``target``."""
+def check_destination(path: str | Path, *, force: bool = False) -> Path:
+    """Refuse a destination :func:`write_atomic` would refuse, before any work is done.
+
+    Returns
+    -------
+    Path
+        The destination's folder.
+
+    Raises
+    ------
+    DesignError
+        When ``path`` is a device, a pipe, a socket or a folder, exists and ``force`` is
+        not set, or its folder is missing.
+    """
+    target = Path(path)
     try:
         info = os.stat(target)  # follows a symbolic link: a link to a device is a device
     except FileNotFoundError:
@@ -174,7 +187,7 @@ def write_atomic(path: str | Path, data: str | bytes, *, force: bool = False) ->
     open(2) with O_CREAT.
     """
     target = Path(path)
-    folder = _check_destination(target, force)
+    folder = check_destination(target, force=force)
     payload = data.encode("utf-8") if isinstance(data, str) else bytes(data)
     handle, temp = _create_temporary(target, folder)
     try:
@@ -233,7 +246,7 @@ def write_all(outputs: Sequence[tuple[str | Path, str | bytes]], *,
             raise DesignError(f"{target}: is named twice among the outputs; give each its "
                               "own name")
         seen.add(target)
-        _check_destination(target, force)
+        check_destination(target, force=force)
     created: list[Path] = []
     try:
         for target, (_, data) in zip(targets, outputs, strict=True):

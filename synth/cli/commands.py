@@ -7,7 +7,6 @@ __all__ = ["bom_command", "check_command", "cli", "design_command", "series_comm
 
 import math
 import sys
-from pathlib import Path
 from typing import TYPE_CHECKING
 
 import click
@@ -32,9 +31,20 @@ from synth.cli.options import (
     search_options,
     series_name_choices,
     spread_options,
-    write_plots,
 )
 from synth.cli.run import run_design
+from synth.cli.streams import (
+    STREAM,
+    check_output,
+    check_plot_folder,
+    plot_files,
+    read_design,
+    write_files,
+    write_output,
+)
+
+_DESIGN_FILE = click.Path(dir_okay=False, allow_dash=True)
+_FORCE_PLOTS = click.option("--force", is_flag=True, help="Let --plots replace existing files.")
 
 BOM_WORK_LIMIT = 20.0  # synth.bom.consolidate.DEFAULT_WORK_LIMIT, without loading ortools
 
@@ -86,59 +96,68 @@ def series_command(name: str, span: Range, nearest: Given | None, as_json: bool)
 
 
 @cli.command("check")
-@click.argument("design_file", type=click.Path(dir_okay=False))
+@click.argument("design_file", type=_DESIGN_FILE)
 @click.option("--json", "as_json", is_flag=True, help="Print the results as JSON.")
 @click.option("--verify", is_flag=True,
               help="Also solve by nodal analysis and report the largest difference.")
 @spread_options
+@_FORCE_PLOTS
 @friendly
-def check_command(design_file: str, as_json: bool, verify: bool, spread: SpreadOptions) -> None:
+def check_command(design_file: str, as_json: bool, verify: bool, spread: SpreadOptions,
+                  force: bool) -> None:
     """Analyse a design whose values are all given.
 
     Prints node voltages, each part's current, dissipation and use of its
     derated rating, and whether each target is met.  Exits 1 when a target
-    is missed or a part is over its allowance.
+    is missed or a part is over its allowance.  A DESIGN_FILE of - reads the
+    design from standard input.
     """
     from synth.checking import check
-    from synth.design.load import load_design
     from synth.report.check import check_json, check_text
 
-    design = load_design(design_file)
-    result = check(design, verify=verify, spread=spread.settings())
+    check_plot_folder(spread.plots)
+    settings = spread.settings()
+    design = read_design(design_file)
+    result = check(design, verify=verify, spread=settings)
+    written = []
+    if spread.plots:
+        from synth.report.plots import check_pictures
+
+        plots = plot_files(check_pictures(result), spread.plots)
+        written = write_files(plots, force=force, folder=spread.plots if plots else None)
     if as_json:
         emit_json(check_json(result))
     else:
         click.echo(check_text(result))
-    if spread.plots:
-        from synth.report.plots import check_pictures
-
-        write_plots(spread.plots, check_pictures(result), as_json)
+        for path in written:
+            click.echo(f"plot written: {path}")
     if not result.ok:
         sys.exit(1)
 
 
 @cli.command("design")
-@click.argument("design_file", type=click.Path(dir_okay=False))
+@click.argument("design_file", type=_DESIGN_FILE)
 @search_options
+@_FORCE_PLOTS
 @friendly
-def design_command(design_file: str, search: SearchOptions, spread: SpreadOptions) -> None:
+def design_command(design_file: str, search: SearchOptions, spread: SpreadOptions,
+                   force: bool) -> None:
     """Choose standard values for the free parts of a design.
 
     Shows the ideal continuous values, then the best candidates, each
     re-checked by a full mesh solve: values, each target's value and error,
     the hottest part and supply current.  Exits 1 when no standard values
     meet every window and limit (the nearest designs are shown and the binding
-    target or limit named).
+    target or limit named).  A DESIGN_FILE of - reads the design from standard
+    input.
     """
-    from synth.design.load import load_design
-
-    run_design(load_design(design_file), search, spread)
+    run_design(read_design(design_file), search, spread, force=force)
 
 
 
 
 @cli.command("bom")
-@click.argument("files", nargs=-1, required=True, type=click.Path(dir_okay=False))
+@click.argument("files", nargs=-1, required=True, type=_DESIGN_FILE)
 @click.option("--stock", type=click.Path(dir_okay=False), default=None,
               help="House stock list (CSV: value, package, tolerance, tcr, quantity, ...).")
 @click.option("--stock-only", is_flag=True,
@@ -157,8 +176,9 @@ def design_command(design_file: str, search: SearchOptions, spread: SpreadOption
                    "design files' designators are kept and only repeats renumbered.")
 @click.option("--ranges", is_flag=True,
               help="Collapse runs of designators (R1–R4) instead of listing each.")
-@click.option("--output", type=click.Path(dir_okay=False), default=None,
-              help="Write the BOM to this file instead of standard output.")
+@click.option("--output", type=click.Path(dir_okay=False, allow_dash=True), default=None,
+              help="Write the BOM to this file instead of standard output (-: standard "
+                   "output).")
 @click.option("--force", is_flag=True, help="Replace an existing output file.")
 @click.option("--time-limit", type=float, default=30.0, show_default=True,
               metavar="SECONDS",
@@ -178,23 +198,22 @@ def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, poo
 
     Designs every network, then chooses one design per network so that the
     board has the fewest distinct BOM lines (CP-SAT, exact within the time
-    limit), and writes one line per distinct orderable part.
+    limit), and writes one line per distinct orderable part.  A FILE of - reads a
+    board or design file from standard input.
     """
     from synth.bom.build import build_bom
     from synth.design.board import load_board
-    from synth.files import write_atomic
     from synth.report.bom import bom_summary, render_bom, resolve_encoding
 
     check_time_limit(time_limit)
     if not (math.isfinite(work_limit) and work_limit > 0):
         raise DesignError(f"--work-limit {work_limit} must be a positive number of work "
                           "units (a finite one)")
-    if output is not None and Path(output).exists() and not Path(output).is_file():
-        raise DesignError(f"{output}: is not a regular file; write to a file name instead")
-    if output is not None and Path(output).exists() and not force:
-        raise DesignError(f"{output}: already exists; pass --force to replace it")
+    # refused before the work, and at the end when another run took the name meanwhile
+    check_output(output, force=force)
     resolve_encoding(form, encoding)
-    board = load_board(list(files), stock=stock, pool=pool)
+    board = load_board(list(files), stock=stock, pool=pool,
+                       stdin=click.get_binary_stream("stdin"))
     if stock_only and board.stock_path is None:
         raise DesignError("--stock-only needs a stock list; give --stock FILE")
 
@@ -205,13 +224,8 @@ def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, poo
     result = build_bom(board, stock_only=stock_only, time_limit_s=time_limit, progress=note,
                        renumber_all=renumber, work_limit=work_limit)
     text = render_bom(result, form, ranges=ranges, encoding=encoding)
-    if output is None:
-        stream = click.get_binary_stream("stdout")
-        stream.write(text.encode("utf-8"))
-        stream.flush()
-    else:
-        write_atomic(output, text, force=force)
+    to_file = write_output(STREAM if output is None else output, text, force=force)
     if not quiet:
-        click.echo(bom_summary(result), err=output is None)
-        if output is not None:
+        click.echo(bom_summary(result), err=not to_file)
+        if to_file:
             click.echo(f"BOM written: {output}")

@@ -11,7 +11,7 @@ __all__ = [
     "SpreadOptions", "Window",
     "check_time_limit", "emit_json", "friendly", "option_group", "option_name",
     "page_search_options", "quick_options", "ranking_choices", "search_options",
-    "series_name_choices", "spread_options", "write_plots",
+    "series_name_choices", "spread_options",
 ]
 
 import functools
@@ -184,7 +184,9 @@ spread_options = option_group(SpreadOptions, [
                  help="Shape of each tolerance; normal reads tolerance as 3 sigma."),
     click.option("--seed", default=1, show_default=True, help="Monte Carlo seed."),
     click.option("--plots", type=click.Path(file_okay=False), default=None,
-                 metavar="FOLDER", help="Write PNG and SVG plots into this folder."),
+                 metavar="FOLDER",
+                 help="Write PNG and SVG plots into this folder (existing files are kept "
+                      "unless --force)."),
 ])
 
 PLOT_AXES = ("supply", "hottest", "distinct")
@@ -300,9 +302,11 @@ def quick_options(main_unit: str, package: str = "0603") -> Callable[[F], F]:
                      help="Ambient temperature for derating."),
         click.option("--margin", type=PERCENT, default="50%", show_default=True,
                      help="Share of the derated power a part may use."),
-        click.option("--save", type=click.Path(dir_okay=False), default=None,
-                     help="Also write the equivalent design file here."),
-        click.option("--force", is_flag=True, help="Let --save replace an existing file."),
+        click.option("--save", type=click.Path(dir_okay=False, allow_dash=True), default=None,
+                     help="Also write the equivalent design file here (-: standard "
+                          "output, the report then on stderr)."),
+        click.option("--force", is_flag=True,
+                     help="Let --save and --plots replace existing files."),
     ])
 
     def decorate(command: F) -> F:
@@ -329,28 +333,6 @@ def _strict(value: Any) -> Any:
 def emit_json(document: Any) -> None:
     """Print a JSON document; a NaN or infinity (which JSON has not) is written as null."""
     click.echo(json.dumps(_strict(document), indent=2, ensure_ascii=False, allow_nan=False))
-
-
-def write_plots(folder: str, pictures: Sequence[tuple[str, Any]], as_json: bool) -> None:
-    """Write each (stem, Figure) as ``stem.png`` and ``stem.svg`` into ``folder``, atomically.
-
-    Plots replace the files of an earlier run; the folder is created when missing.
-    """
-    from pathlib import Path
-
-    from synth.files import write_atomic
-    from synth.report.pictures.axes import FORMATS, figure_bytes
-
-    target = Path(folder)
-    try:
-        target.mkdir(parents=True, exist_ok=True)
-    except OSError as exc:
-        raise DesignError(f"{target}: cannot create the plot folder ({exc.strerror})") from None
-    for stem, figure in pictures:
-        for fmt in FORMATS:
-            path = write_atomic(target / f"{stem}.{fmt}", figure_bytes(figure, fmt), force=True)
-            if not as_json:
-                click.echo(f"plot written: {path}")
 
 
 class Progress:

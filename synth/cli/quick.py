@@ -116,7 +116,7 @@ def led_command(supply: Given, forward: Given, count: int, current: Given, quick
     tables, chosen = led_tables(supply=supply.text, forward=forward.text, count=count,
                                 current=current.text, settings=settings)
     if not search.as_json and quick.package.lower() != "auto":
-        click.echo(f"package: {chosen}")
+        click.echo(f"package: {chosen}", err=quick.save == "-")
     quick_run(tables, "rnsynth led options", quick, search, spread)
 
 

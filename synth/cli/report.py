@@ -20,7 +20,14 @@ from synth.cli.options import (
     check_time_limit,
     friendly,
     page_search_options,
-    write_plots,
+)
+from synth.cli.streams import (
+    STREAM,
+    check_output,
+    check_plot_folder,
+    plot_files,
+    write_files,
+    write_output,
 )
 from synth.errors import DesignError
 
@@ -28,15 +35,6 @@ if TYPE_CHECKING:
     from synth.design.board import Board
     from synth.design.model import Design
     from synth.results import CheckResult, SynthesisResult
-
-
-def _refuse_output(output: str, force: bool) -> None:
-    """Refuse an output that cannot be written before anything is computed."""
-    path = Path(output)
-    if path.exists() and not path.is_file():
-        raise DesignError(f"{output}: is not a regular file; write to a file name instead")
-    if path.exists() and not force:
-        raise DesignError(f"{output}: already exists; pass --force to replace it")
 
 
 def _input_files(files: tuple[str, ...], board: Board) -> list[str | Path]:
@@ -94,10 +92,11 @@ def _pictures(result: CheckResult | SynthesisResult, search: SearchOptions
 
 
 @cli.command("report")
-@click.argument("files", nargs=-1, required=True, type=click.Path(dir_okay=False))
-@click.option("--output", required=True, type=click.Path(dir_okay=False),
-              help="The HTML page to write, e.g. review.html.")
-@click.option("--force", is_flag=True, help="Replace an existing output file.")
+@click.argument("files", nargs=-1, required=True,
+                type=click.Path(dir_okay=False, allow_dash=True))
+@click.option("--output", required=True, type=click.Path(dir_okay=False, allow_dash=True),
+              help="The HTML page to write, e.g. review.html (-: standard output).")
+@click.option("--force", is_flag=True, help="Replace an existing output file and plots.")
 @page_search_options
 @friendly
 def report_command(files: tuple[str, ...], output: str, force: bool, search: SearchOptions,
@@ -116,7 +115,6 @@ def report_command(files: tuple[str, ...], output: str, force: bool, search: Sea
     from synth.bom.build import bom_of_values
     from synth.design.board import load_board
     from synth.digest import input_digest
-    from synth.files import write_atomic
     from synth.report.review import ReviewedDesign, review_html
     from synth.report.review.section import passes, verdict_lines
     from synth.results import CheckResult
@@ -126,9 +124,11 @@ def report_command(files: tuple[str, ...], output: str, force: bool, search: Sea
         raise DesignError(f"--top {search.top} must be at least 1")
     if search.min_yield is not None and search.require not in (None, "yield"):
         raise DesignError("--min-yield goes with --require yield; add it or drop --min-yield")
-    _refuse_output(output, force)
+    # refused before the work, and at the end when another run took the name meanwhile
+    check_output(output, force=force)
+    check_plot_folder(spread.plots)
     spread.settings()  # refuses bad --samples / --seed before any work
-    board = load_board(list(files))
+    board = load_board(list(files), stdin=click.get_binary_stream("stdin"))
     for net in board.networks:
         for note in net.design.deprecations:
             click.echo(f"rnsynth: note: {note}", err=True)
@@ -152,16 +152,26 @@ def report_command(files: tuple[str, ...], output: str, force: bool, search: Sea
                for r, n, p in zip(results, board.networks, pictures, strict=True)]
     title = board.title if len(files) == 1 and len(designs) > 1 else None
     page = review_html(designs, bom=bom, digest=digest, version=__version__, title=title)
-    write_atomic(output, page, force=force)
+    plots = []
     if spread.plots:
         several_files = len(results) > 1
-        write_plots(spread.plots, [(f"design{k}-{stem}" if several_files else stem, figure)
-                                   for k, drawn in enumerate(pictures, 1)
-                                   for stem, figure in drawn], as_json=False)
+        plots = plot_files([(f"design{k}-{stem}" if several_files else stem, figure)
+                            for k, drawn in enumerate(pictures, 1)
+                            for stem, figure in drawn], spread.plots)
+    # the page and the plots are one output: all of it, or none
+    to_stdout = output == STREAM
+    page_file: list[tuple[str | Path, str | bytes]] = [] if to_stdout else [(output, page)]
+    written = write_files([*page_file, *plots], force=force,
+                          folder=spread.plots if plots else None)
+    if to_stdout:
+        write_output(STREAM, page, force=force)
     for result in results:
         word = "passes" if passes(result) else "FAILS"
-        click.echo(f"{result.design.origin}: {word}: {verdict_lines(result)[0]}")
-    click.echo(f"review page written: {output}")
+        click.echo(f"{result.design.origin}: {word}: {verdict_lines(result)[0]}", err=to_stdout)
+    for path in written[len(page_file):]:
+        click.echo(f"plot written: {path}", err=to_stdout)
+    if not to_stdout:
+        click.echo(f"review page written: {output}")
     if not all(passes(r) for r in results):
         sys.exit(1)
 

@@ -7,6 +7,7 @@ __all__ = ["Rules", "quick_run", "run_design"]
 
 import sys
 from collections.abc import Callable
+from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 import click
@@ -16,6 +17,7 @@ from synth.errors import DesignError
 if TYPE_CHECKING:
     from synth.design.model import Design
     from synth.results import Candidate, SynthesisResult
+    from synth.spread.records import SpreadSettings
 
 from synth.cli.options import (
     Progress,
@@ -24,7 +26,14 @@ from synth.cli.options import (
     SpreadOptions,
     check_time_limit,
     emit_json,
-    write_plots,
+)
+from synth.cli.streams import (
+    STREAM,
+    check_output,
+    check_plot_folder,
+    plot_files,
+    write_files,
+    write_output,
 )
 
 Rules = Callable[["Candidate"], list[str]]
@@ -32,20 +41,50 @@ Rules = Callable[["Candidate"], list[str]]
 _FRONT_SECONDS = 30.0  # the most the front of the plots may take (its plot says if cut short)
 
 
-def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
-                rules: Rules | None = None, prepared: SynthesisResult | None = None) -> None:
-    from synth.report.synthesis import design_json, design_text
-    from synth.synthesis import synthesize
-
-    if not design.free_resistors:
-        raise DesignError(f"{design.origin}: no resistor has choose = ...; mark the parts "
-                          "rnsynth should pick, or use rnsynth check")
+def _checked_settings(search: SearchOptions, spread: SpreadOptions) -> SpreadSettings:
+    """The spread settings, after refusing the search and spread options that are wrong."""
     if search.top < 1:
         raise DesignError(f"--top {search.top} must be at least 1")
     settings = spread.settings()
     check_time_limit(search.time_limit)
     if search.min_yield is not None and search.require not in (None, "yield"):
         raise DesignError("--min-yield goes with --require yield; add it or drop --min-yield")
+    check_plot_folder(spread.plots)
+    return settings
+
+
+def _plots(design: Design, result: SynthesisResult, search: SearchOptions,
+           spread: SpreadOptions) -> list[tuple[Path, bytes]]:
+    """The plot files of a search (see ``synth.report.plots.design_pictures``)."""
+    if not spread.plots or not result.candidates:
+        return []
+    from synth.front import error_front
+    from synth.report.plots import design_pictures
+
+    front = error_front(design, time_limit_s=_FRONT_SECONDS if search.time_limit is None
+                        else min(search.time_limit, _FRONT_SECONDS),
+                        require=result.require)
+    return plot_files(design_pictures(result, cost=search.plot_axis, front=front),
+                      spread.plots)
+
+
+def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
+               rules: Rules | None = None, prepared: SynthesisResult | None = None, *,
+               force: bool = False, save: tuple[str, str] | None = None) -> None:
+    """Search ``design``, write its output files, print its report, exit 1 when it fails.
+
+    ``save`` is a design file to write with the plots (its name and TOML text; ``-``
+    puts it on standard output and the report on stderr); ``force`` lets them replace
+    existing files.  Nothing is written when an option or a write is refused.
+    """
+    from synth.report.synthesis import design_json, design_text
+    from synth.synthesis import synthesize
+
+    if not design.free_resistors:
+        raise DesignError(f"{design.origin}: no resistor has choose = ...; mark the parts "
+                          "rnsynth should pick, or use rnsynth check")
+    settings = _checked_settings(search, spread)
+    to_stdout = save is not None and save[0] == STREAM
     for note in design.deprecations:
         click.echo(f"rnsynth: note: {note}", err=True)
     progress = Progress(enabled=not search.quiet and sys.stderr.isatty())
@@ -56,38 +95,47 @@ def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
             min_yield=None if search.min_yield is None else search.min_yield.value))
     finally:
         progress.close()
+    # the files first, all of them or none; then what is printed
+    plots = _plots(design, result, search, spread)
+    saved: list[tuple[str | Path, str | bytes]] = (
+        [save] if save is not None and not to_stdout else [])
+    written = write_files([*saved, *plots], force=force,
+                          folder=spread.plots if plots else None)
+    if save is not None:
+        if to_stdout:
+            write_output(STREAM, save[1], force=force)
+        elif not search.as_json:
+            click.echo(f"design file written: {save[0]}")
     if search.as_json:
         document = design_json(result)
         if rules is not None and result.candidates:
             document["rules"] = rules(result.candidates[0])
         emit_json(document)
     else:
-        click.echo(design_text(result))
+        click.echo(design_text(result), err=to_stdout)
         if rules is not None and result.candidates:
-            click.echo("rules of thumb for the best design:")
+            click.echo("rules of thumb for the best design:", err=to_stdout)
             for line in rules(result.candidates[0]):
-                click.echo(f"  {line}")
-    if spread.plots and result.candidates:
-        from synth.front import error_front
-        from synth.report.plots import design_pictures
-
-        front = error_front(design, time_limit_s=_FRONT_SECONDS if search.time_limit is None
-                            else min(search.time_limit, _FRONT_SECONDS),
-                            require=result.require)
-        write_plots(spread.plots, design_pictures(result, cost=search.plot_axis, front=front),
-                    search.as_json)
+                click.echo(f"  {line}", err=to_stdout)
+    if not search.as_json:
+        for path in written[len(saved):]:
+            click.echo(f"plot written: {path}", err=to_stdout)
     if not result.feasible:
         sys.exit(1)
 
 
 def quick_run(tables: dict[str, Any], origin: str, quick: QuickOptions, search: SearchOptions,
-               spread: SpreadOptions, rules: Rules | None = None) -> None:
+              spread: SpreadOptions, rules: Rules | None = None) -> None:
     from synth.design.reader import design_from_dict
-    from synth.files import write_atomic
     from synth.templates.passive import option_names
 
     names = option_names(tables)
-
+    # refused before the search, and at the end when another run took the name meanwhile
+    check_output(quick.save, force=quick.force)
+    if quick.save == STREAM and search.as_json:
+        raise DesignError("--save - and --json would both write to standard output; name a "
+                          "file for --save")
+    _checked_settings(search, spread)
     prepared = None
     if quick.package.lower() == "auto":
         from synth.synthesis import synthesize
@@ -102,13 +150,13 @@ def quick_run(tables: dict[str, Any], origin: str, quick: QuickOptions, search: 
 
         tables, design, prepared, chosen = synthesize_auto(tables, origin, run, options=names)
         if not search.as_json:
-            click.echo("packages chosen: " + ", ".join(map(str, chosen)))
+            click.echo("packages chosen: " + ", ".join(map(str, chosen)),
+                       err=quick.save == STREAM)
     else:
         design = design_from_dict(tables, origin=origin, options=names)
+    save = None
     if quick.save is not None:
         import tomli_w
 
-        write_atomic(quick.save, tomli_w.dumps(tables), force=quick.force)
-        if not search.as_json:
-            click.echo(f"design file written: {quick.save}")
-    run_design(design, search, spread, rules, prepared)
+        save = (quick.save, tomli_w.dumps(tables))
+    run_design(design, search, spread, rules, prepared, force=quick.force, save=save)
