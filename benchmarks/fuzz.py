@@ -2,12 +2,14 @@
 
 Run: python benchmarks/fuzz.py [--cases N] [--seed S]
 
-Draws N cases (default 10,000: design files, board files with stock lists, options)
-from the generators of ``tests/fuzzing.py`` (the suite
-runs a bounded number of the same kind), runs each in process, and prints the count of
-each outcome: ok (exit 0), fails (exit 1, a verdict), refused (exit 2, one line), and
-the problems (a traceback, another exit code, a refusal of more than one line), with an
-example of each problem.  The exit code is 1 when any problem was found.
+Draws N cases (default 10,000: design files, designs on standard input, board files
+with stock lists, options; some writing a BOM, a design file or plots) from the
+generators of ``tests/fuzzing.py`` (the suite runs a bounded number of the same kind),
+runs each in process, and prints the count of each outcome: ok (exit 0), fails (exit 1,
+a verdict), refused (exit 2, one line), and the problems (a traceback, another exit
+code, a refusal of more than one line, a temporary file left beside an output, an
+output written by a run that was refused), with an example of each problem.  The exit
+code is 1 when any problem was found.
 """
 
 from __future__ import annotations
@@ -22,7 +24,7 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "tests"))
 
-from fuzzing import board_case, design_case, option_args, outcome
+from fuzzing import board_case, design_case, option_args, outcome, stdin_case
 
 
 def main() -> int:
@@ -37,12 +39,16 @@ def main() -> int:
     with tempfile.TemporaryDirectory() as folder:
         for _ in range(args.cases):
             draw = rng.random()
-            source = "design file" if draw < 0.55 else "board file" if draw < 0.65 \
-                else "options"
-            command = (design_case(rng, Path(folder)) if source == "design file"
-                       else board_case(rng, Path(folder)) if source == "board file"
-                       else option_args(rng))
-            result = outcome(command)
+            source = "design file" if draw < 0.50 else "stdin" if draw < 0.55 \
+                else "board file" if draw < 0.65 else "options"
+            stdin = None
+            if source == "stdin":
+                command, stdin = stdin_case(rng)
+            else:
+                command = (design_case(rng, Path(folder)) if source == "design file"
+                           else board_case(rng, Path(folder)) if source == "board file"
+                           else option_args(rng, Path(folder)))
+            result = outcome(command, stdin)
             counts[(source, result.kind)] += 1
             if result.kind not in ("ok", "fails", "refused"):
                 examples.setdefault(result.kind, (command, result.detail))

@@ -2,13 +2,18 @@
 
 Each case is drawn from a ``random.Random``, so the property test (hypothesis hands it
 one) and ``benchmarks/fuzz.py`` (a seeded generator, many more cases) share it.  A case
-runs the command line in process and is classified by :func:`outcome`.
+runs the command line in process and is classified by :func:`outcome`, which also
+looks at the output files the case asks for (``--output``, ``--save``, ``--plots``):
+none may exist after a refusal (exit 2), and no temporary file ``.NAME.XXXXXXXX`` may
+be left beside them whatever the outcome.
 """
 
 from __future__ import annotations
 
 import copy
+import itertools
 import random
+import shutil
 import tomllib
 from dataclasses import dataclass
 from pathlib import Path
@@ -93,26 +98,70 @@ OPTION_CASES: list[tuple[list[str], list[str]]] = [
 ]
 
 
-def option_args(rng: random.Random) -> list[str]:
-    """A quick command or ``series`` with one or two option values at an edge."""
+OUTPUT_OPTIONS = ("--save", "--plots")  # and bom's --output (the quick commands' is a voltage)
+
+
+def _fresh(*paths: Path) -> None:
+    """Remove the outputs of an earlier case, so each case starts without them."""
+    for path in paths:
+        if path.is_dir():
+            shutil.rmtree(path)
+        else:
+            path.unlink(missing_ok=True)
+
+
+def option_args(rng: random.Random, folder: Path | None = None) -> list[str]:
+    """A quick command or ``series`` with one or two option values at an edge.
+
+    With a ``folder``, a quick command sometimes also saves its design and plots there.
+    """
     base, options = rng.choice(OPTION_CASES)
     args = list(base)
     for _ in range(rng.randint(1, 2)):
         value = wild(rng)
         args += [rng.choice(options), value if isinstance(value, str) else repr(value)]
+    if folder is not None and base[0] != "series" and rng.random() < 0.3:
+        _fresh(folder / "saved.toml", folder / "plots")
+        args += ["--save", str(folder / "saved.toml")]
+        if rng.random() < 0.2:
+            args += ["--plots", str(folder / "plots")]
     return args
 
 
 @dataclass(frozen=True)
 class Outcome:
-    kind: str  # "ok", "fails", "refused", or a problem: "traceback", "exit N", "lines"
+    kind: str  # "ok", "fails", "refused", or a problem: "traceback", "exit N", "lines",
+    #            "temporary left" (a .NAME.XXXXXXXX file), "written on refusal"
     detail: str
 
 
-def outcome(args: list[str]) -> Outcome:
-    """Run ``rnsynth ARGS`` in process and classify what happened."""
-    result = CliRunner().invoke(cli, args)
+def _outputs(args: list[str]) -> list[Path]:
+    """The output files and folders ``args`` name (standard output, ``-``, aside)."""
+    options = (*OUTPUT_OPTIONS, "--output") if args[:1] == ["bom"] else OUTPUT_OPTIONS
+    return [Path(value) for option, value in itertools.pairwise(args)
+            if option in options and value != "-"]
+
+
+def _left_behind(outputs: list[Path]) -> list[str]:
+    """Temporary files ``.NAME.XXXXXXXX`` beside an output, or any in a plot folder."""
+    found = [item for p in outputs if p.parent.is_dir() for item in p.parent.iterdir()
+             if item.name.startswith(f".{p.name}.")]
+    found += [item for p in outputs if p.is_dir() for item in p.iterdir()
+              if item.name.startswith(".")]
+    return sorted(map(str, found))
+
+
+def outcome(args: list[str], stdin: bytes | None = None) -> Outcome:
+    """Run ``rnsynth ARGS`` in process (``stdin`` on its standard input) and classify it."""
+    outputs = _outputs(args)
+    before = {p for p in outputs if p.exists()}
+    result = CliRunner().invoke(cli, args, input=stdin)
     text = result.output + result.stderr
+    if _left_behind(outputs):
+        return Outcome("temporary left", ", ".join(_left_behind(outputs)))
+    if result.exit_code == 2 and any(p.exists() for p in outputs if p not in before):
+        return Outcome("written on refusal", ", ".join(
+            str(p) for p in outputs if p.exists() and p not in before))
     if result.exception is not None and not isinstance(result.exception, SystemExit):
         return Outcome("traceback", f"{type(result.exception).__name__}: {result.exception}")
     if "Traceback" in text:
@@ -127,15 +176,31 @@ def outcome(args: list[str]) -> Outcome:
     return Outcome("ok" if result.exit_code == 0 else "fails", "")
 
 
+def _plots(rng: random.Random, folder: Path, share: float) -> list[str]:
+    """Sometimes (``share`` of the cases) ``--plots`` into a fresh folder."""
+    _fresh(folder / "plots")
+    return ["--plots", str(folder / "plots")] if rng.random() < share else []
+
+
 def design_case(rng: random.Random, folder: Path) -> list[str]:
     """Write a mutated design into ``folder`` and return the ``check`` command for it."""
     path = folder / "fuzz.toml"
     path.write_text(design_text(rng), encoding="utf-8")
     if rng.random() < 0.2:
         return ["design", str(path), "--samples", "0", "--time-limit", "0.3", "--quiet",
-                *rng.choice([[], ["--json"], ["--require", "worst-case"]])]
-    return ["check", str(path), "--samples", rng.choice(["0", "50"]),
-            *rng.choice([[], ["--json"], ["--verify"]])]
+                *rng.choice([[], ["--json"], ["--require", "worst-case"]]),
+                *_plots(rng, folder, 0.03)]
+    samples = rng.choice(["0", "50"])
+    return ["check", str(path), "--samples", samples,
+            *rng.choice([[], ["--json"], ["--verify"]]),
+            *(_plots(rng, folder, 0.05) if samples != "0" else [])]
+
+
+def stdin_case(rng: random.Random) -> tuple[list[str], bytes]:
+    """A mutated design on standard input: the command (``check -``) and its input."""
+    command = rng.choice([["check", "-", "--samples", "0"],
+                          ["design", "-", "--samples", "0", "--time-limit", "0.3", "--quiet"]])
+    return command, design_text(rng).encode("utf-8")
 
 
 BOARD = ROOT / "examples" / "greenhouse_board.toml"
@@ -165,10 +230,12 @@ def board_case(rng: random.Random, folder: Path) -> list[str]:
                     ",".join(_cell(rng) for _ in range(rng.choice([1, 4, 4, 6]))))
     encoding = rng.choice(["utf-8", "utf-8-sig", "cp1252", "utf-16"])
     (folder / "stock.csv").write_bytes("\n".join(rows).encode(encoding, errors="replace"))
+    _fresh(folder / "bom.csv")
     return ["bom", str(folder / "board.toml"), "--quiet", "--time-limit", "1",
             *rng.choice([[], ["--stock", str(folder / "stock.csv")],
                          ["--stock", str(folder / "stock.csv"), "--stock-only"],
-                         ["--format", "json"]])]
+                         ["--format", "json"]]),
+            *(["--output", str(folder / "bom.csv")] if rng.random() < 0.5 else [])]
 
 
-PROBLEMS = ("traceback", "lines")
+PROBLEMS = ("traceback", "lines", "temporary left", "written on refusal")
