@@ -113,3 +113,111 @@ def test_a_name_too_long_for_the_file_system_is_not_found(tmp_path):
     assert "was not found" in one_line_refusal("bom", str(board))
     board.write_text('[[network]]\nfile = "probe.toml"\n', encoding="utf-8")
     assert "not found" in one_line_refusal("bom", str(board), "--stock", long + ".csv")
+
+
+# -- the suffix rule: no other kind of file is read ---------------------------------------
+
+SECRET = "SECRET_KEY = \"do-not-print\"\npassword,hunter2\n"  # TOML and CSV at once
+
+
+def shared_board(tmp_path, board_text):
+    shutil.copy(PROBE, tmp_path / "probe.toml")
+    (tmp_path / "notes.txt").write_text(SECRET, encoding="utf-8")
+    board = tmp_path / "board.toml"
+    board.write_text(board_text, encoding="utf-8")
+    return board
+
+
+@pytest.mark.parametrize(("board_text", "extra", "fragment"), [
+    ('[board]\nstock = "notes.txt"\n[[network]]\nfile = "probe.toml"\n', (),
+     "board.toml, [board]: stock list 'notes.txt' is not a .csv file; name a file ending in "
+     ".csv"),
+    ('[[network]]\nfile = "notes.txt"\n', (),
+     "board.toml, network #1: design file 'notes.txt' is not a .toml file; name a file "
+     "ending in .toml"),
+    ('[[network]]\nfile = "probe.toml"\n', ("--stock", "{tmp}/notes.txt"),
+     "notes.txt: a stock list must be a .csv file; name a file ending in .csv"),
+    ('[[network]]\nfile = "probe.toml"\n', ("{tmp}/notes.txt",),
+     "notes.txt: a design or board file must be a .toml file; name a file ending in .toml"),
+])
+def test_a_file_of_another_kind_is_refused_by_its_name(tmp_path, board_text, extra, fragment):
+    board = shared_board(tmp_path, board_text)
+    line = one_line_refusal("bom", str(board), *(a.format(tmp=tmp_path) for a in extra),
+                            "--quiet")
+    assert line.endswith(fragment) and "do-not-print" not in line and "hunter2" not in line
+
+
+@pytest.mark.parametrize("name", ["notes.txt", "/etc/hostname", "missing.ini", "table.csv.bak"])
+def test_a_package_table_must_be_a_csv_file(tmp_path, name):
+    (tmp_path / "notes.txt").write_text(SECRET, encoding="utf-8")
+    design = tmp_path / "design.toml"
+    design.write_text(f'[design]\npackages = "{name}"\n' + PROBE.read_text(encoding="utf-8")
+                      .replace("[design]\n", "", 1), encoding="utf-8")
+    line = one_line_refusal("check", str(design), "--samples", "0")
+    # refused by its name before it is looked for: a missing one is not "not found"
+    assert line.endswith(f"design.toml, [design]: package table {name!r} is not a .csv file; "
+                         "name a file ending in .csv")
+    assert "do-not-print" not in line
+
+
+def test_a_design_file_must_be_a_toml_file(tmp_path):
+    (tmp_path / "notes.txt").write_text(SECRET, encoding="utf-8")
+    for command in ("check", "design"):
+        line = one_line_refusal(command, str(tmp_path / "notes.txt"))
+        assert line == (f"rnsynth: {tmp_path / 'notes.txt'}: a design file must be a .toml "
+                        "file; name a file ending in .toml")
+    with pytest.raises(DesignError, match=r"a design file must be a \.toml file"):
+        load_design(tmp_path / "notes.txt")
+
+
+def test_the_library_readers_keep_the_rule(tmp_path):
+    from synth.catalog.packages import load_package_table
+
+    (tmp_path / "notes.txt").write_text(SECRET, encoding="utf-8")
+    with pytest.raises(DesignError, match=r"notes\.txt: a stock list must be a \.csv file"):
+        load_stock(tmp_path / "notes.txt")
+    with pytest.raises(DesignError, match=r"notes\.txt: a package table must be a \.csv file"):
+        load_package_table(tmp_path / "notes.txt")
+
+
+def test_the_suffix_is_read_in_any_case(tmp_path):
+    shutil.copy(PROBE, tmp_path / "PROBE.TOML")
+    (tmp_path / "SHELF.CSV").write_text("value,package\n4k7,0603\n", encoding="utf-8")
+    assert load_design(tmp_path / "PROBE.TOML").title == load_design(PROBE).title
+    assert load_stock(tmp_path / "SHELF.CSV")[0].value == 4700.0
+
+
+# -- a design from a stream ---------------------------------------------------------------
+
+
+def test_a_design_from_a_stream_reads_as_the_file_does():
+    import io
+
+    from synth.design.load import load_design_stream
+
+    design = load_design_stream(io.BytesIO(PROBE.read_bytes()))
+    assert design.origin == "<stdin>" and design.title == load_design(PROBE).title
+    assert load_design_stream(io.BytesIO(PROBE.read_bytes()), name="<pipe>").origin == "<pipe>"
+
+
+def test_a_stream_that_cannot_be_read_is_one_line():
+    from synth.inputs import read_stream
+
+    class Broken:
+        def read(self, size):
+            raise OSError(9, "Bad file descriptor")
+
+    with pytest.raises(DesignError, match=r"^<stdin>: cannot be read \(Bad file descriptor\)$"):
+        read_stream(Broken(), "design file")
+
+
+def test_a_board_reads_dash_only_from_the_stream_it_is_given():
+    import io
+
+    from synth.design.board import load_board
+
+    with pytest.raises(DesignError, match="-: no standard input to read here; name a file"):
+        load_board(["-"])
+    board = load_board(["-"], stdin=io.BytesIO(PROBE.read_bytes()))
+    assert [n.name for n in board.networks] == ["stdin"]
+    assert board.networks[0].design.origin == "<stdin>"

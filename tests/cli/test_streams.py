@@ -71,6 +71,28 @@ def names(folder):
 
 
 @pytest.fixture
+def few_pictures(monkeypatch):
+    """Two small figures in place of a run's pictures (and no front to compute): the
+    writing is under test here, the pictures in tests/report."""
+    from matplotlib.figure import Figure
+
+    import synth.front
+    from synth.report import plots
+
+    def two(*args, **kwargs):
+        pictures = []
+        for stem in ("network", "spread-1-out"):
+            figure = Figure(figsize=(1, 1))
+            figure.subplots().plot([0, 1], [0, 1])
+            pictures.append((stem, figure))
+        return pictures
+
+    monkeypatch.setattr(plots, "check_pictures", two)
+    monkeypatch.setattr(plots, "design_pictures", two)
+    monkeypatch.setattr(synth.front, "error_front", lambda *args, **kwargs: None)
+
+
+@pytest.fixture
 def umask():
     old = os.umask(0o022)
     os.umask(old)
@@ -196,7 +218,7 @@ def test_plots_to_dash_are_refused(tmp_path, monkeypatch):
 # -- output files -------------------------------------------------------------------------
 
 
-def test_outputs_get_the_users_umask(tmp_path, umask):
+def test_outputs_get_the_users_umask(few_pictures, tmp_path, umask):
     umask(0o027)  # mode 0o666 & ~0o027 = 0o640 [POSIX-open]
     assert run("bom", str(PROBE), "--output", str(tmp_path / "bom.csv"), "--quiet",
                "--time-limit", "5").exit_code == 0
@@ -204,7 +226,7 @@ def test_outputs_get_the_users_umask(tmp_path, umask):
                str(tmp_path / "plots")).exit_code == 0
     modes = {p.name: stat.S_IMODE(p.stat().st_mode) for p in
              [tmp_path / "bom.csv", tmp_path / "d.toml", *(tmp_path / "plots").iterdir()]}
-    assert set(modes.values()) == {0o640} and "candidates.svg" in modes
+    assert set(modes.values()) == {0o640} and "network.svg" in modes
 
 
 @pytest.mark.skipif(os.name != "posix" or not os.path.exists(os.devnull),
@@ -235,7 +257,7 @@ def test_save_keeps_an_existing_file_unless_force(tmp_path):
     ("design", str(PROBE), "--samples", "200", "--top", "2"),
     (*DIVIDER[:-2], "--samples", "200"),
 ], ids=["check", "design", "divider"])
-def test_plots_keep_existing_files_unless_force(tmp_path, args):
+def test_plots_keep_existing_files_unless_force(few_pictures, tmp_path, args):
     plots = tmp_path / "plots"
     first = run(*args, "--plots", str(plots))
     assert first.exit_code == 0, first.output
@@ -265,7 +287,7 @@ def test_a_plot_folder_that_is_a_file_is_refused_before_the_work(tmp_path):
     assert names(tmp_path) == ["plots"]
 
 
-def test_a_full_disk_while_writing_plots_leaves_nothing(tmp_path, monkeypatch):
+def test_a_full_disk_while_writing_plots_leaves_nothing(few_pictures, tmp_path, monkeypatch):
     def full(*args, **kwargs):
         raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
 
@@ -276,17 +298,89 @@ def test_a_full_disk_while_writing_plots_leaves_nothing(tmp_path, monkeypatch):
     assert names(tmp_path) == []  # no file, no temporary file, no folder made for the plots
 
 
-def test_a_plot_written_by_another_run_meanwhile_removes_the_others(tmp_path, monkeypatch):
+def test_a_plot_written_by_another_run_meanwhile_removes_the_others(few_pictures, tmp_path,
+                                                                   monkeypatch):
     plots = tmp_path / "plots"
     real = files._write_whole
 
     def meanwhile(handle, payload):
         real(handle, payload)
         if payload.startswith(b"<?xml"):  # the other run's SVG appears while ours is written
-            (plots / "candidates.svg").write_text("other", encoding="utf-8")
+            (plots / "network.svg").write_text("other", encoding="utf-8")
 
     monkeypatch.setattr(files, "_write_whole", meanwhile)
     line = refused(*DIVIDER, "--save", str(tmp_path / "d.toml"), "--plots", str(plots))
-    assert "candidates.svg: already exists (written by another run meanwhile)" in line
-    assert names(tmp_path) == ["plots"] and names(plots) == ["candidates.svg"]
-    assert (plots / "candidates.svg").read_text(encoding="utf-8") == "other"
+    assert "network.svg: already exists (written by another run meanwhile)" in line
+    assert names(tmp_path) == ["plots"] and names(plots) == ["network.svg"]
+    assert (plots / "network.svg").read_text(encoding="utf-8") == "other"
+
+
+def test_a_plot_folder_that_cannot_be_made_is_one_line(few_pictures, tmp_path, monkeypatch):
+    from pathlib import Path
+
+    def refused_mkdir(self, *args, **kwargs):
+        raise PermissionError(errno.EACCES, os.strerror(errno.EACCES))
+
+    monkeypatch.setattr(Path, "mkdir", refused_mkdir)
+    line = refused("check", str(PROBE), "--samples", "100", "--plots", str(tmp_path / "p"))
+    assert line == f"rnsynth: {tmp_path / 'p'}: cannot create the plot folder (Permission denied)"
+
+
+def test_a_plot_folder_someone_else_filled_is_kept(few_pictures, tmp_path, monkeypatch):
+    plots = tmp_path / "plots"
+    real = files._write_whole
+
+    def meanwhile(handle, payload):
+        real(handle, payload)
+        (plots / "theirs.txt").write_text("x", encoding="utf-8")
+        raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
+
+    monkeypatch.setattr(files, "_write_whole", meanwhile)
+    line = refused(*DIVIDER, "--plots", str(plots))
+    assert "No space left on device" in line
+    assert names(plots) == ["theirs.txt"]  # the folder is not ours alone now: kept
+
+
+def test_no_pictures_make_no_folder(tmp_path):
+    from synth.cli.streams import write_files
+
+    assert write_files([], force=False, folder=str(tmp_path / "p")) == []
+    assert names(tmp_path) == []
+
+
+def line_figure():
+    from matplotlib.figure import Figure
+
+    figure = Figure()
+    figure.subplots().plot([0, 1], [0, 1])
+    return figure
+
+
+def test_plots_go_into_a_new_folder_and_replace_an_earlier_run_only_with_force(tmp_path):
+    from synth.cli.streams import plot_files, write_files
+    from synth.errors import DesignError
+
+    folder = tmp_path / "new" / "plots"
+    plots = plot_files([("line", line_figure())], str(folder))
+    assert write_files(plots, force=False, folder=str(folder)) == [folder / "line.png",
+                                                                   folder / "line.svg"]
+    assert (folder / "line.png").read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    assert b"<svg" in (folder / "line.svg").read_bytes()
+    with pytest.raises(DesignError, match=r"line\.png: already exists; pass --force"):
+        write_files(plots, force=False, folder=str(folder))
+    write_files(plots, force=True, folder=str(folder))
+    assert names(folder) == ["line.png", "line.svg"]
+
+
+def test_a_failed_plot_write_leaves_no_partial_file_nor_folder(tmp_path, monkeypatch):
+    from synth.cli.streams import plot_files, write_files
+    from synth.errors import DesignError
+
+    def full(*args, **kwargs):
+        raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
+
+    plots = plot_files([("line", line_figure())], str(tmp_path / "new"))
+    monkeypatch.setattr(files.os, "write", full)
+    with pytest.raises(DesignError, match=r"could not be written \(No space left on device\)"):
+        write_files(plots, force=False, folder=str(tmp_path / "new"))
+    assert names(tmp_path) == []
