@@ -8,25 +8,20 @@ candidates.  Both ``check`` (one candidate) and the search use it.
 
 from __future__ import annotations
 
-__all__ = ["Evaluation", "Evaluator", "SourceValues", "network_solver"]
+__all__ = ["Evaluation", "Evaluator", "SourceValues"]
 
 from dataclasses import dataclass, replace
 
 import numpy as np
 from numpy.typing import ArrayLike
 
-from synth.circuit.controlled import ControlledSolver
-from synth.circuit.mesh import MeshSolver
 from synth.circuit.network import Network, build_network
 from synth.circuit.solution import MeshSolution
-from synth.circuit.sparse import SPARSE_ABOVE, SparseSolver
+from synth.circuit.solvers import Solver, network_solver
+from synth.circuit.wellposed import refuse_singular, refuse_undefined_ratios
 from synth.design.model import Design
 from synth.design.target import Target
-from synth.errors import DesignError, name_list
 from synth.rating import NOISE_FRACTION
-
-Solver = MeshSolver | SparseSolver | ControlledSolver
-"""Any of the solvers :func:`network_solver` chooses (one interface)."""
 
 
 @dataclass(frozen=True)
@@ -357,130 +352,29 @@ class Evaluator:
         return self._without[without]
 
     def check_ratios(self, resistances: np.ndarray) -> None:
-        """Refuse a ratio or loss whose reference voltage is zero for every value set given.
-
-        A reference voltage within the noise floor of the network's voltage
-        scale (:data:`synth.rating.NOISE_FRACTION`) counts as zero: 0 / 0 (a
-        network whose sources are all 0 V) and noise / noise say nothing.
-
-        Raises
-        ------
-        DesignError
-            Naming the target and the reference voltage.
-        """
-        ratios = [(k, t) for k, t in enumerate(self.design.targets)
-                  if t.kind in ("ratio", "loss")]
-        if not ratios:
+        """Refuse a ratio or loss whose reference voltage is zero for every value set given
+        (:func:`synth.circuit.wellposed.refuse_undefined_ratios`)."""
+        if not any(t.kind in ("ratio", "loss") for t in self.design.targets):
             return
         src = self.nominal_sources
         sol = self._solve(self.solver, np.atleast_2d(resistances), src.voltages,
                           src.currents, src.setpoints, src.gains)
-        v = sol.node_voltages
-        with np.errstate(invalid="ignore"):
-            scale = np.where(np.isfinite(v), np.abs(v), 0.0).max(axis=1, initial=0.0)
-        for _, target in ratios:
-            _, _, c, d = target.nodes
-            den = np.abs(v[:, self.node_index[c]] - v[:, self.node_index[d]])
-            if np.all(~(den > NOISE_FRACTION * scale)):
-                reference = f"V({c})" if d == self.design.ground else f"V({c}) - V({d})"
-                volts = "every voltage of the network is 0 V" if not np.any(scale > 0) \
-                    else "it is 0 V up to rounding"
-                raise DesignError(
-                    f"{self.design.origin}, target {_excerpt(target.label)}: the {target.kind}'s "
-                    f"reference voltage {reference} is 0 V for these values ({volts}), so "
-                    f"the {target.kind} is undefined; drive that node pair with a source "
-                    "or measure against another pair")
+        refuse_undefined_ratios(self.design, self.node_index, sol)
 
     def check_regulators(self, resistances: np.ndarray) -> None:
-        """Refuse a network the solver finds singular for every value set given.
-
-        A regulating element whose output cannot move its sense node, several
-        whose setpoints depend on each other, or controlled sources whose loop
-        gain is exactly one leave the network's equations singular: no unique
-        solution.  The refusal names the parts involved (those with a share in
-        the singular system's null vector).
-
-        Raises
-        ------
-        DesignError
-            Naming the regulators or controlled sources involved.
-        """
+        """Refuse a network the solver finds singular for every value set given
+        (:func:`synth.circuit.wellposed.refuse_singular`)."""
         if not self.network.regulator_refs and not self.network.controlled:
             return
         src = self.nominal_sources
         r = np.atleast_2d(resistances)
         sol = self._solve(self.solver, r, src.voltages, src.currents, src.setpoints, src.gains)
-        origin = self.design.origin
-        # an output far beyond what the sources could drive through the network's resistors
-        # (1e12 times it) is the pole of a sense node the output cannot move
         with np.errstate(over="ignore", invalid="ignore"):
             drive = max(np.max(np.abs(src.voltages), initial=0.0),
                         np.max(np.abs(src.setpoints), initial=0.0),
                         np.max(np.abs(src.currents), initial=0.0)
                         * float(np.max(np.abs(r), initial=0.0)), 1.0)
-            outputs = sol.regulator_outputs
-            undefined = (~np.isfinite(outputs) & np.isfinite(drive)) | (
-                np.abs(outputs) > 1e12 * drive)
-        mesh = self.solver.inner if isinstance(self.solver, ControlledSolver) else self.solver
-        refs = self.network.regulator_refs
-        if len(refs) and np.all(undefined.any(axis=1)):
-            involved = _dependent(mesh.last_regulator_system, refs)
-            if len(involved) > 1:
-                raise DesignError(
-                    f"{origin}: regulators {name_list(involved)} set sense voltages that "
-                    "depend on each other, so the network's equations are singular (no "
-                    "output voltages meet every setpoint, or any do); give each its own "
-                    "sense node pair, or remove one")
-            ref = involved[0] if involved else refs[int(np.argmax(undefined[0]))]
-            raise DesignError(
-                f"{origin}, regulator {ref}: its output cannot move its sense node, so nothing "
-                "sets its voltage; connect the sense node to the output through the feedback "
-                "network")
-        if self.network.controlled and np.all(~np.isfinite(sol.node_voltages).all(axis=1)):
-            assert isinstance(self.solver, ControlledSolver)
-            sources = tuple(c.ref for c in self.network.controlled)
-            involved = _dependent(self.solver.last_loop_matrix, sources) or sources
-            raise DesignError(
-                f"{origin}: the controlled sources {name_list(involved)} leave the circuit "
-                "without a unique solution (their loop gain is exactly one, so the network's "
-                "equations are singular); check their gains and control connections")
-
-
-def _dependent(systems: np.ndarray, refs: tuple[str, ...]) -> tuple[str, ...]:
-    """The parts whose equations (rows of the first of ``systems``) are linearly dependent:
-    those with a share in the left null vector of its smallest singular value."""
-    if not len(systems) or not np.all(np.isfinite(systems[0])):
-        return ()
-    left, values, _ = np.linalg.svd(systems[0])
-    if values[-1] > 1e-9 * max(float(values[0]), 1e-300):
-        return ()
-    share = np.abs(left[:, -1])
-    return tuple(ref for ref, part in zip(refs, share, strict=True) if part > 1e-6)
-
-
-def network_solver(network: Network, resistor_weights: ArrayLike | None = None,
-                   sparse: bool | None = None) -> Solver:
-    """The solver for a network: dense loop solve, or sparse nodal solve when it is large.
-
-    Parameters
-    ----------
-    network : Network
-    resistor_weights : array_like, optional
-        Typical resistances, ohm (see :class:`synth.circuit.mesh.MeshSolver`).
-    sparse : bool, optional
-        Force the choice; by default the sparse solve is used for networks of
-        more than :data:`synth.circuit.sparse.SPARSE_ABOVE` resistors.
-
-    Returns
-    -------
-    MeshSolver, SparseSolver or ControlledSolver
-        Controlled sources are solved around either (superposition).
-    """
-    if sparse is None:
-        sparse = len(network.resistor_refs) > SPARSE_ABOVE
-    if network.controlled:
-        return ControlledSolver(network, resistor_weights, sparse=sparse)
-    return SparseSolver(network) if sparse else MeshSolver(network, resistor_weights)
+        refuse_singular(self.design.origin, self.network, self.solver, sol, drive)
 
 
 def _typical(resistor: object) -> float:
@@ -491,9 +385,3 @@ def _typical(resistor: object) -> float:
     if span is not None:
         return float(np.sqrt(span[0] * span[1]))
     return 1e3
-
-
-def _excerpt(text: str, limit: int = 40) -> str:
-    """A user's label quoted on one line, cut to ``limit`` characters."""
-    shown = repr(text)
-    return shown if len(shown) <= limit + 2 else shown[:limit] + "..." + shown[0]

@@ -20,9 +20,10 @@ import numpy as np
 import pytest
 
 from synth.circuit.controlled import ControlledSolver
-from synth.circuit.measure import Evaluator, network_solver
+from synth.circuit.measure import Evaluator
 from synth.circuit.mesh import MeshSolver
 from synth.circuit.network import Network, build_network
+from synth.circuit.solvers import network_solver
 from synth.circuit.sparse import SPARSE_ABOVE, SparseSolver
 from synth.design.reader import design_from_dict
 
