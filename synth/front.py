@@ -30,7 +30,7 @@ from synth.circuit.measure import Evaluator
 from synth.design.model import REQUIREMENTS, Design
 from synth.errors import DesignError
 from synth.search.branch_and_bound import search
-from synth.search.choices import choices_for
+from synth.search.choices import choices_for, values_of_row
 from synth.spread.worst_case import WorstCase
 
 SUPPLY_STEP = 1e-9
@@ -173,9 +173,7 @@ def error_front(design: Design, *, max_points: int = 30, time_limit_s: float | N
             stopped = None if outcome.proven else f"time limit {time_limit_s:g} s"
             break
         row = outcome.ranked.indices[0]
-        values = {ref: float(value) for p, choice in enumerate(choices)
-                  for ref, value in zip(choice.position.part_refs, choice.parts[int(row[p])],
-                                        strict=True)}
+        values = values_of_row(choices, row)
         supply = float(outcome.ranked.supply[0])
         points.append(FrontPoint(supply, float(outcome.ranked.objective[0]), values,
                                  outcome.proven))

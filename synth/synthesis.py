@@ -26,7 +26,7 @@ from synth.design.model import REQUIREMENTS, Design
 from synth.errors import DesignError
 from synth.results import Candidate, Problem, SynthesisResult, TargetReport
 from synth.search.branch_and_bound import SearchOutcome, search
-from synth.search.choices import Choices, choices_for, combination_count
+from synth.search.choices import Choices, choices_for, combination_count, values_of_row
 from synth.search.ideal import ideal_values
 from synth.search.problem import SearchProblem
 from synth.search.ranking import TIE_TOLERANCE
@@ -78,13 +78,9 @@ def _candidates(design: Design, evaluator: Evaluator, choices: list[Choices],
     checked = check_block(design, evaluator, positions, parts)
     out = []
     for rank, (row, result) in enumerate(zip(indices, checked, strict=True), start=1):
-        values: dict[str, float] = {}
-        labels: dict[str, str] = {}
-        for p, choice in enumerate(choices):
-            for ref, value in zip(choice.position.part_refs, choice.parts[int(row[p])],
-                                  strict=True):
-                values[ref] = float(value)
-                labels[ref] = _series_label(float(value), choice)
+        values = values_of_row(choices, row)
+        labels = {ref: _series_label(values[ref], choice)
+                  for choice in choices for ref in choice.position.part_refs}
         out.append(Candidate(
             rank=rank, values=values, positions=dict(result.positions), series=labels,
             objective=_objective(design, result.targets), targets=result.targets,

@@ -18,7 +18,7 @@ so the search can treat every position as an ordered list.
 
 from __future__ import annotations
 
-__all__ = ["Choices", "choices_for", "combination_count", "part_range"]
+__all__ = ["Choices", "choices_for", "combination_count", "part_range", "values_of_row"]
 
 import math
 from dataclasses import dataclass
@@ -168,3 +168,10 @@ def choices_for(resistor: Resistor, origin: str = "<design>") -> Choices:
 def combination_count(choices: list[Choices]) -> int:
     """Number of candidate value sets: the product of the positions' choice counts."""
     return math.prod(len(c) for c in choices)
+
+
+def values_of_row(choices: list[Choices], row: np.ndarray) -> dict[str, float]:
+    """Ohm by physical part reference for one row of choice indices (one per free position)."""
+    return {ref: float(value) for p, choice in enumerate(choices)
+            for ref, value in zip(choice.position.part_refs, choice.parts[int(row[p])],
+                                  strict=True)}
