@@ -277,16 +277,20 @@ class Evaluator:
                 finite = np.where(np.isfinite(values), np.abs(values), 0.0)
                 return finite.max(axis=1, initial=0.0)  # type: ignore[no-any-return]  # numpy types this array expression as Any
 
+            kinds = {t.kind for t in self.design.targets}
             v_scale = NOISE_FRACTION * largest(sol.node_voltages)
+            i_scale = NOISE_FRACTION * largest(sol.branch_currents) if "current" in kinds \
+                else v_scale
+            p_scale = NOISE_FRACTION * largest(power) if "power" in kinds else v_scale
             v = sol.node_voltages
             idx = self.node_index
             for k, target in enumerate(self.design.targets):
                 if target.kind == "voltage":
                     out[:, k] = v_scale
                 elif target.kind == "current":
-                    out[:, k] = NOISE_FRACTION * largest(sol.branch_currents)
+                    out[:, k] = i_scale
                 elif target.kind == "power":
-                    out[:, k] = NOISE_FRACTION * largest(power)
+                    out[:, k] = p_scale
                 elif target.kind in ("ratio", "loss"):
                     a, b, c, d = target.nodes
                     num = np.abs(v[:, idx[a]] - v[:, idx[b]])
