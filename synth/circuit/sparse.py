@@ -54,7 +54,7 @@ from typing import Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from synth.circuit.kernels import as_block, block_rows
+from synth.circuit.kernels import as_block, block_rows, resistance_scale
 from synth.circuit.network import Network
 from synth.circuit.solution import MeshSolution
 from synth.circuit.topology import UnionFind
@@ -273,6 +273,12 @@ class SparseSolver:
                      ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         """One block, entity-first: ``r`` (resistors, M) ohm, ``e``, ``j``, ``s`` likewise."""
         m = r.shape[1]
+        per_unit = resistance_scale(r)
+        if per_unit is not None:
+            # per-unit form, as the loop solve: R' = R / s and J' = s J leave every voltage
+            # as it is and scale every current by s (a power of two: nothing is rounded)
+            r = r / per_unit
+            j = j * per_unit
         with np.errstate(divide="ignore"):
             g = 1.0 / r
         # right-hand sides: the independent sources, then a unit output of each regulator
@@ -312,6 +318,8 @@ class SparseSolver:
         unbalanced = -(self._incidence_r @ i_r) - self._incidence_i @ j
         i_tied = self._tied_current @ unbalanced
         currents = np.concatenate([i_r, i_tied[:self.n_v], j, i_tied[self.n_v:]])
+        if per_unit is not None:
+            currents /= per_unit
         return node_v, currents, outputs, determinant
 
     def _factor(self, g: np.ndarray) -> Any:

@@ -296,3 +296,21 @@ def test_dependent_regulators_are_named_on_a_large_network():
                        match="regulators U1, U2 set sense voltages that depend on each other"):
         ev.check_regulators(np.array([r.value for r in design.resistors]))
     assert ev.solver.last_regulator_system.shape == (1, 2, 2)
+
+
+
+@pytest.mark.parametrize("ohms", [1e308, 1.7e308, 1e300, 1e-300])
+def test_resistances_near_the_float_limits_are_solved_per_unit(ohms):
+    # 7 V across a string of 70 equal resistors: the tap after 35 of them sits at 3.5 V
+    # [HB-divider] and 7 V / (70 R) flows through each [HB-ohm].  Unscaled, the conductances
+    # of 1e308 ohm are subnormal and the tap came out at infinity: the sparse solve takes the
+    # loop solve's per-unit form.
+    n = 70
+    net = build_network(design_from_dict({
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "n0", "minus": "gnd",
+                    "value": 7.0}],
+        "resistor": [{"ref": f"R{k}", "nodes": [f"n{k}", f"n{k + 1}" if k < n - 1 else "gnd"],
+                      "value": ohms} for k in range(n)]}))
+    solution = SparseSolver(net).solve([[ohms] * n], voltages=[7.0])
+    assert solution.node_voltages[0, net.nodes.index("n35")] == pytest.approx(3.5, rel=1e-12)
+    assert solution.branch_currents[0, 0] == pytest.approx(7.0 / (n * ohms), rel=1e-12)
