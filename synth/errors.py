@@ -55,16 +55,17 @@ def nearest_name(word: str, choices: Iterable[str]) -> str:
     return f"; did you mean '{close[0]}'?" if close else ""
 
 
-def excerpt(text: str, limit: int = 40) -> str:
+def excerpt(text: str, limit: int = 40, *, quoted: bool = False) -> str:
     """A user's name or text as a message shows it: itself when short and printable, else
-    quoted (a newline stays on the line as \\n) and cut to about ``limit`` characters.
+    quoted (a newline stays on the line as \\n) and cut to about ``limit`` characters;
+    ``quoted`` quotes it always (a label in running text).
 
     Examples
     --------
     >>> excerpt("R1"), excerpt("R\\n1"), excerpt("x" * 50)[-6:]
     ('R1', "'R\\\\n1'", "xx...'")
     """
-    if text.isprintable() and len(text) <= limit:
+    if not quoted and text.isprintable() and len(text) <= limit:
         return text
     shown = repr(text)
     return shown if len(shown) <= limit + 2 else shown[:limit] + "..." + shown[0]

@@ -13,7 +13,7 @@ from synth.circuit.network import Network
 from synth.circuit.solution import MeshSolution
 from synth.circuit.solvers import Solver
 from synth.design.model import Design
-from synth.errors import DesignError, name_list
+from synth.errors import DesignError, excerpt, name_list
 from synth.rating import NOISE_FRACTION
 
 
@@ -42,8 +42,9 @@ def refuse_undefined_ratios(design: Design, node_index: dict[str, int],
             reference = f"V({c})" if d == design.ground else f"V({c}) - V({d})"
             volts = "every voltage of the network is 0 V" if not np.any(scale > 0) \
                 else "it is 0 V up to rounding"
+            label = excerpt(target.label, quoted=True)
             raise DesignError(
-                f"{design.origin}, target {_excerpt(target.label)}: the {target.kind}'s "
+                f"{design.origin}, target {label}: the {target.kind}'s "
                 f"reference voltage {reference} is 0 V for these values ({volts}), so "
                 f"the {target.kind} is undefined; drive that node pair with a source "
                 "or measure against another pair")
@@ -111,9 +112,3 @@ def _dependent(systems: np.ndarray, refs: tuple[str, ...]) -> tuple[str, ...]:
         return ()
     share = np.abs(left[:, -1])
     return tuple(ref for ref, part in zip(refs, share, strict=True) if part > 1e-6)
-
-
-def _excerpt(text: str, limit: int = 40) -> str:
-    """A user's label quoted on one line, cut to ``limit`` characters."""
-    shown = repr(text)
-    return shown if len(shown) <= limit + 2 else shown[:limit] + "..." + shown[0]
