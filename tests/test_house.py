@@ -28,6 +28,7 @@ LAYERS = (
     ("circuit",),
     ("design",),
     ("rating",),
+    ("sensors",),
     ("catalog",),
     ("units", "inputs", "digest"),
     ("errors", "schemas"),
