@@ -11,6 +11,7 @@ __all__ = [
 import math
 from dataclasses import dataclass, field
 
+from synth.deadline import Cut
 from synth.design.model import Design
 from synth.spread.records import SpreadResult
 from synth.units import format_eng, format_window
@@ -320,6 +321,12 @@ class SynthesisResult:
         catalogue reaches with every part limit dropped.
     binding_limits : tuple of Problem
         The part limits that cost that accuracy (the limit-free best design breaks them).
+    time_limit_s : float or None
+        The time limit the call ran under, s (None: none).
+    cuts : tuple of Cut
+        What the time limit shortened or skipped (search, re-check, spread,
+        Monte Carlo samples, the limit-cost search), in order; empty when
+        nothing was cut.  A cut result is never ``proven_optimal``.
     """
 
     design: Design
@@ -337,3 +344,5 @@ class SynthesisResult:
     considered: int = 0
     unlimited_objective: float | None = None
     binding_limits: tuple[Problem, ...] = ()
+    time_limit_s: float | None = None
+    cuts: tuple[Cut, ...] = ()

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 __all__ = ["RANKINGS", "YIELD_POOL", "synthesize"]
 
+import math
 from collections.abc import Callable
 from dataclasses import replace
 
@@ -22,12 +23,14 @@ from synth.binding import distance, limit_text, nearest_text
 from synth.catalog.series import coarsest_series
 from synth.checking import check_block, required_problems
 from synth.circuit.measure import Evaluator
+from synth.deadline import Deadline
 from synth.design.model import REQUIREMENTS, Design
 from synth.errors import DesignError
 from synth.results import Candidate, Problem, SynthesisResult, TargetReport
 from synth.search.branch_and_bound import SearchOutcome, search
 from synth.search.choices import Choices, choices_for, combination_count, values_of_row
 from synth.search.ideal import ideal_values
+from synth.search.local import local_seeds
 from synth.search.problem import SearchProblem
 from synth.search.ranking import TIE_TOLERANCE
 from synth.spread.analyse import analyse_spread
@@ -37,18 +40,35 @@ from synth.spread.worst_case import WorstCase
 RANKINGS = ("nominal", "worst-case", "yield")
 
 
-def _seeds(choices: list[Choices], ideal: dict[str, float]) -> np.ndarray | None:
-    if not ideal or len(choices) > 12:
+_GRID_UP_TO = 12
+"""Up to this many free positions, every rounding up or down of the ideal values is a seed."""
+
+
+def _seeds(problem: SearchProblem, ideal: dict[str, float], deadline: Deadline
+           ) -> np.ndarray | None:
+    """Seeds of the search: the roundings of the ideal values, and a local descent's points."""
+    choices = problem.choices
+    if not ideal:
         return None
-    around = []
-    for choice in choices:
-        wanted = ideal.get(choice.ref)
-        if wanted is None:
-            return None
-        at = int(np.searchsorted(choice.values, wanted))
-        around.append(sorted({min(max(at - 1, 0), len(choice) - 1), min(at, len(choice) - 1)}))
-    grid = np.meshgrid(*[np.array(a) for a in around], indexing="ij")
-    return np.stack([g.ravel() for g in grid], axis=1).astype(np.int64)
+    budget = deadline.budget(_LOCAL_SHARE)
+    found = [local_seeds(problem, ideal, time_limit_s=None if budget is None
+                         else max(budget, _LOCAL_LEAST_S))]
+    if len(choices) <= _GRID_UP_TO and all(c.ref in ideal for c in choices):
+        around = []
+        for choice in choices:
+            at = int(np.searchsorted(choice.values, ideal[choice.ref]))
+            around.append(sorted({min(max(at - 1, 0), len(choice) - 1),
+                                  min(at, len(choice) - 1)}))
+        grid = np.meshgrid(*[np.array(a) for a in around], indexing="ij")
+        found.append(np.stack([g.ravel() for g in grid], axis=1).astype(np.int64))
+    return np.concatenate(found)
+
+
+_LOCAL_SHARE = 0.1
+"""Share of the time left the local descent may take under a limit."""
+
+_LOCAL_LEAST_S = 0.1
+"""Seconds the local descent may take however little time is left (an incumbent at once)."""
 
 
 def _series_label(value: float, choice: Choices) -> str:
@@ -66,18 +86,44 @@ def _probes(design: Design, choices: list[Choices]) -> np.ndarray:
     return probes
 
 
+_RECHECK_BLOCK = 2048
+"""Candidates re-checked per batched solve (the memory of one block stays bounded)."""
+
+
 def _candidates(design: Design, evaluator: Evaluator, choices: list[Choices],
-                indices: np.ndarray) -> list[Candidate]:
-    """Re-check ranked candidates in one batched solve and build their records."""
+                indices: np.ndarray, deadline: Deadline | None = None) -> list[Candidate]:
+    """Re-check ranked candidates in batched solves and build their records.
+
+    With a ``deadline``, the blocks after the first stop once it has passed;
+    the candidates left are dropped and the cut recorded.
+    """
     if not len(indices):
         return []
     problem = SearchProblem(design, evaluator, choices, relaxed=False)
+    out: list[Candidate] = []
+    for first in range(0, len(indices), _RECHECK_BLOCK):
+        if first and deadline is not None and deadline.expired():
+            deadline.cut("re-check", f"{first:,} of the {len(indices):,} candidates found "
+                         "re-checked and shown, the rest dropped", asked=len(indices),
+                         done=first)
+            break
+        block = indices[first:first + _RECHECK_BLOCK]
+        out += _checked(design, evaluator, choices, problem, block, first)
+    return out
+
+
+def _checked(design: Design, evaluator: Evaluator, choices: list[Choices],
+             problem: SearchProblem, indices: np.ndarray, ranked_before: int
+             ) -> list[Candidate]:
+    """The candidate records of one block of ranked choice indices."""
     positions = problem.resistances(indices)
     parts = problem.part_values(indices)
-    evaluator.check_regulators(positions[:1])
+    if not ranked_before:
+        evaluator.check_regulators(positions[:1])
     checked = check_block(design, evaluator, positions, parts)
     out = []
-    for rank, (row, result) in enumerate(zip(indices, checked, strict=True), start=1):
+    for rank, (row, result) in enumerate(zip(indices, checked, strict=True),
+                                         start=ranked_before + 1):
         values = values_of_row(choices, row)
         labels = {ref: _series_label(values[ref], choice)
                   for choice in choices for ref in choice.position.part_refs}
@@ -103,19 +149,27 @@ YIELD_POOL = 50
 
 
 def _limit_cost(design: Design, evaluator: Evaluator, choices: list[Choices],
-                seeds: np.ndarray | None, best: Candidate | None, time_limit_s: float | None
+                seeds: np.ndarray | None, best: Candidate | None, deadline: Deadline
                 ) -> tuple[tuple[Problem, ...], Candidate | None]:
     """The part limits that cost the best design accuracy, and the limit-free best.
 
     Searches again with every part's power and voltage limit dropped (windows
     kept).  When that finds a design although none met everything (``best``
     None), or reaches a smaller objective than ``best``, the limits its best
-    design breaks are the ones that bind.
+    design breaks are the ones that bind.  With a deadline already passed the
+    search is skipped, and a search the deadline cuts short is recorded.
     """
     if not any(r.package for r in design.resistors):
         return (), None
-    free = search(design, evaluator, choices, top=1, time_limit_s=time_limit_s, seeds=seeds,
-                  part_limits=False)
+    if deadline.expired():
+        deadline.cut("limit-cost search", "skipped: which part limit costs accuracy is not "
+                     "known")
+        return (), None
+    free = search(design, evaluator, choices, top=1, time_limit_s=deadline.budget(0.8),
+                  seeds=seeds, part_limits=False)
+    if not free.proven:
+        deadline.cut("limit-cost search", f"stopped after {free.elapsed_s:.2g} s, unfinished: "
+                     "a part limit that costs accuracy may go unnamed")
     if not len(free.ranked.objective):
         return (), None
     unlimited = _candidates(design, evaluator, choices, free.ranked.indices[:1])[0]
@@ -144,6 +198,43 @@ def _spread_of(design: Design, evaluator: Evaluator, candidate: Candidate,
     parts = np.array([candidate.check.values[ref] for ref in design.part_refs])
     return replace(candidate, spread=analyse_spread(design, candidate.positions, settings,
                                                     evaluator, part_values=parts))
+
+
+PILOT_SAMPLES = 1000
+"""Monte Carlo samples of the pilot run that measures a sample's cost under a time limit."""
+
+
+def _fitted_spread(design: Design, evaluator: Evaluator, candidate: Candidate,
+                   settings: SpreadSettings, seconds: float, deadline: Deadline) -> Candidate:
+    """The candidate's spread with its Monte Carlo shrunk to fit ``seconds``.
+
+    A pilot of :data:`PILOT_SAMPLES` samples measures the cost of a sample
+    (the pilot's whole time over its samples: an overestimate, as it also
+    holds the worst case); the samples that fit are run, at most those
+    asked.  A shortened run keeps the asked count in its settings and says
+    how many ran; the cut is recorded on ``deadline``.
+    """
+    asked = settings.samples
+    if asked <= PILOT_SAMPLES or not deadline.limited:
+        return _spread_of(design, evaluator, candidate, settings)
+    if seconds <= 0:
+        spread = _spread_of(design, evaluator, candidate, replace(settings, samples=0))
+        deadline.cut("Monte Carlo", f"skipped: 0 of {asked:,} samples run", asked=asked,
+                     done=0)
+        return spread
+    began = deadline.elapsed()
+    pilot = _spread_of(design, evaluator, candidate, replace(settings, samples=PILOT_SAMPLES))
+    per_sample = max(deadline.elapsed() - began, 1e-9) / PILOT_SAMPLES
+    fit = int(max(seconds - (deadline.elapsed() - began), 0.0) / per_sample)
+    if fit >= asked:
+        return _spread_of(design, evaluator, candidate, settings)
+    kept = pilot if fit <= PILOT_SAMPLES else _spread_of(design, evaluator, candidate,
+                                                         replace(settings, samples=fit))
+    assert kept.spread is not None
+    run = kept.spread.samples_run or 0
+    deadline.cut("Monte Carlo", f"{asked:,} samples asked, {run:,} run to fit the time "
+                 "limit; the yield interval is that of the samples run", asked=asked, done=run)
+    return replace(kept, spread=replace(kept.spread, settings=settings, samples_cut="time limit"))
 
 
 def _on_basis(design: Design, candidate: Candidate) -> Candidate:
@@ -175,6 +266,7 @@ def synthesize(
     rank_by: str = "nominal",
     require: str | None = None,
     min_yield: float | None = None,
+    deadline: Deadline | None = None,
 ) -> SynthesisResult:
     """Choose standard values for a design's free parts.
 
@@ -185,8 +277,11 @@ def synthesize(
     top : int
         Number of distinct candidates to return (default 10).
     time_limit_s : float, optional
-        Stop searching after this many seconds; the result is then marked
-        unproven unless the search had already finished.
+        Seconds the whole call may take: search, relaxed search, re-check,
+        spread (its Monte Carlo shrunk to fit) and the limit-cost search
+        share them.  Whatever the limit shortens is listed in
+        :attr:`SynthesisResult.cuts`, and a cut result is never marked
+        proven optimal.
     progress : callable, optional
         Called with the settled share of the search space (0..1).
     spread : SpreadSettings, optional
@@ -207,6 +302,9 @@ def synthesize(
         lower bound, among the nominal best :data:`YIELD_POOL`.
     min_yield : float, optional
         Least yield (fraction) with ``require="yield"``; the design's by default.
+    deadline : Deadline, optional
+        A deadline already running (a command's, started before this call);
+        built from ``time_limit_s`` when not given.  Its cuts are the result's.
 
     Returns
     -------
@@ -234,6 +332,8 @@ def synthesize(
     current.  The search is exact: see :mod:`synth.search`.
     """
     require, min_yield = _basis(design, rank_by, require, min_yield, time_limit_s)
+    deadline = deadline or Deadline(time_limit_s)
+    cuts_before = len(deadline.cuts)
     choices = [choices_for(r, design.origin) for r in design.free_resistors]
     evaluator = Evaluator(design)
     worst = (WorstCase(design, evaluator)
@@ -242,29 +342,38 @@ def synthesize(
     evaluator.check_regulators(probes)  # the solver's rules, as check applies them
     evaluator.check_ratios(probes)
     ideal = ideal_values(design, evaluator)
-    seeds = _seeds(choices, ideal)
+    seeds = _seeds(SearchProblem(design, evaluator, choices, relaxed=False), ideal,
+                   deadline)
     by_yield = rank_by == "yield" or require == "yield"
+    # the search leaves time for what follows it: re-check, spread, limit-cost search
     outcome: SearchOutcome = search(
         design, evaluator, choices, top=max(top, YIELD_POOL) if by_yield else top,
-        time_limit_s=time_limit_s, seeds=seeds, progress=progress,
+        time_limit_s=deadline.budget(_SEARCH_SHARE), seeds=seeds, progress=progress,
         target_ranges=worst.ranges if worst is not None and rank_by == "worst-case" else None,
         robust=worst.holds if worst is not None and require == "worst-case" else None)
+    if not outcome.proven:
+        deadline.cut("search", f"stopped at the time limit after {outcome.elapsed_s:.2g} s "
+                     f"with {outcome.settled * 100:.3g} % of the combinations settled: the "
+                     "best found, not proven best")
     feasible = len(outcome.ranked.objective) > 0
     evaluated, elapsed, proven = outcome.evaluated, outcome.elapsed_s, outcome.proven
-
-    def remaining() -> float | None:
-        return None if time_limit_s is None else max(time_limit_s - elapsed, 1.0)
 
     ranked = outcome.ranked
     if not feasible:
         relaxed = search(design, evaluator, choices, top=min(top, 5),
-                         time_limit_s=remaining(), seeds=seeds, relaxed=True)
+                         time_limit_s=deadline.budget(_SEARCH_SHARE), seeds=seeds,
+                         relaxed=True)
+        if not relaxed.proven:
+            deadline.cut("relaxed search", f"stopped after {relaxed.elapsed_s:.2g} s: the "
+                         "designs shown are the nearest found, not proven nearest")
         proven = proven and relaxed.proven
         evaluated += relaxed.evaluated
         elapsed += relaxed.elapsed_s
         ranked = relaxed.ranked
-    candidates = _candidates(design, evaluator, choices, ranked.indices)
-    candidates = _with_spreads(design, evaluator, candidates, spread, by_yield, require)
+    candidates = _candidates(design, evaluator, choices, ranked.indices, deadline)
+    follows = bool(candidates) and any(r.package for r in design.resistors)
+    candidates = _with_spreads(design, evaluator, candidates, spread, by_yield, require,
+                               deadline, _SPREAD_SHARE if follows else 1.0)
     if require == "worst-case" and not feasible:
         # the nearest designs, judged on the required basis, nearest first
         candidates = sorted((_on_basis(replace(design, require=require), c)
@@ -284,20 +393,28 @@ def synthesize(
     if candidates and (not feasible or any(t.status == "soft goal"
                                            for t in candidates[0].targets)):
         limits, unlimited = _limit_cost(design, evaluator, choices, seeds,
-                                        candidates[0] if feasible else None, remaining())
+                                        candidates[0] if feasible else None, deadline)
     binding = _binding(design, candidates, limits, feasible, considered,
                        min_yield if yield_short else None)
     if feasible and binding is not None:
         candidates = [_with_goal_status(c, binding, unlimited) for c in candidates]
+    cuts = deadline.cuts[cuts_before:]
     return SynthesisResult(
         design=design, ideal=ideal, candidates=tuple(candidates),
-        proven_optimal=proven, feasible=feasible and bool(candidates),
+        proven_optimal=proven and not cuts, feasible=feasible and bool(candidates),
         binding=binding, evaluated=evaluated, combinations=combination_count(choices),
         elapsed_s=elapsed, rank_by=rank_by, require=require, min_yield=min_yield,
         considered=considered,
         unlimited_objective=None if unlimited is None else unlimited.objective,
-        binding_limits=limits,
+        binding_limits=limits, time_limit_s=deadline.limit_s, cuts=cuts,
     )
+
+
+_SEARCH_SHARE = 0.7
+"""Share of the time left a search may take under a limit (the rest: re-check and spread)."""
+
+_SPREAD_SHARE = 0.7
+"""Share of the time left the spreads may take when the limit-cost search may follow."""
 
 
 def _basis(design: Design, rank_by: str, require: str | None, min_yield: float | None,
@@ -318,17 +435,36 @@ def _basis(design: Design, rank_by: str, require: str | None, min_yield: float |
 
 
 def _with_spreads(design: Design, evaluator: Evaluator, candidates: list[Candidate],
-                  spread: SpreadSettings | None, by_yield: bool, require: str
-                  ) -> list[Candidate]:
-    """Each candidate's spread: Monte Carlo for all when yield ranks or filters, else the best."""
+                  spread: SpreadSettings | None, by_yield: bool, require: str,
+                  deadline: Deadline, share: float) -> list[Candidate]:
+    """Each candidate's spread: Monte Carlo for all when yield ranks or filters, else the best.
+
+    Under a time limit the spreads take at most ``share`` of the time left:
+    the best candidate's is always analysed (its Monte Carlo shrunk to fit),
+    the others' while time remains; the rest keep no spread, and the cut is
+    recorded.
+    """
     settings = spread or (SpreadSettings() if by_yield else
                           SpreadSettings(samples=0) if require == "worst-case" else None)
-    if settings is None:
+    if settings is None or not candidates:
         return candidates
     # worst case and RSS for every candidate; the others' yield reads n/a
     others = settings if by_yield else replace(settings, samples=0)
-    return [_spread_of(design, evaluator, c, settings if k == 0 else others)
-            for k, c in enumerate(candidates)]
+    budget = deadline.budget(share)
+    ends = math.inf if budget is None else deadline.elapsed() + budget
+    out: list[Candidate] = []
+    for k, candidate in enumerate(candidates):
+        left = ends - deadline.elapsed()
+        if k and left <= 0:
+            deadline.cut("spread", f"analysed for {k:,} of the {len(candidates):,} candidates "
+                         "shown; the others show none", asked=len(candidates), done=k)
+            return out + candidates[k:]
+        chosen = settings if k == 0 else others
+        # the candidates that still run Monte Carlo share the time left evenly
+        sharing = len(candidates) - k if by_yield else 1
+        out.append(_fitted_spread(design, evaluator, candidate, chosen, left / sharing,
+                                  deadline))
+    return out
 
 
 def _by_min_yield(candidates: list[Candidate], min_yield: float

@@ -31,7 +31,7 @@ LAYERS = (
     ("sensors",),
     ("catalog",),
     ("units", "inputs", "digest"),
-    ("errors", "schemas"),
+    ("errors", "schemas", "deadline"),
 )
 """Each module's layer is named by its first dotted part below ``synth``."""
 

@@ -30,6 +30,7 @@ from synth.catalog.packages import PackageRating
 from synth.catalog.series import coarsest_series
 from synth.catalog.stock import StockItem, load_stock, stock_fits
 from synth.checking import check
+from synth.deadline import Deadline
 from synth.design.board import Board
 from synth.design.model import Design, Resistor
 from synth.errors import DesignError, InfeasibleError
@@ -134,6 +135,13 @@ def renumber(instances: list[list[str]], every: bool = False) -> list[dict[str, 
     return out
 
 
+_DESIGN_SHARE = 0.6
+"""Share of the build's time limit the networks' syntheses take together (at most)."""
+
+_LEAST_DESIGN_S = 0.01
+"""Seconds a stage gets however little of the limit is left (it then returns at once, cut)."""
+
+
 def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0,
               progress: Callable[[str], None] | None = None,
               renumber_all: bool = False,
@@ -146,8 +154,10 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
     stock_only : bool
         Keep only candidates whose chosen parts are all in the stock list.
     time_limit_s : float
-        Wall-clock limit of the consolidation, s (a guard; when it binds, a rerun may
-        choose differently).
+        Wall-clock limit of the whole build, s: every network's synthesis shares
+        :data:`_DESIGN_SHARE` of it (each what is left over the networks left), the
+        consolidation the rest (a guard; when it binds, a rerun may choose
+        differently, and the notes say what it cut).
     work_limit : float
         Work limit of the consolidation in CP-SAT deterministic time units (about a
         second each); the same board with the same limit gives the same BOM.
@@ -168,14 +178,20 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
     DesignError
         On a malformed stock list.
     """
+    deadline = Deadline(time_limit_s)
     stock = load_stock(board.stock_path) if board.stock_path else []
     pools, options, notes = [], [], []
-    for net in board.networks:
+    for number, net in enumerate(board.networks):
         if progress is not None:
             progress(net.name)
         design = net.design
         if design.free_resistors:
-            result = synthesize(design, top=board.pool)
+            # the networks left share the designs' part of the time left evenly
+            left = sum(1 for n in board.networks[number:] if n.design.free_resistors)
+            result = synthesize(design, top=board.pool,
+                                time_limit_s=max(deadline.remaining() * _DESIGN_SHARE / left,
+                                                 _LEAST_DESIGN_S))
+            notes += [f"network {net.name}: cut by the time limit: {cut}" for cut in result.cuts]
             if not result.feasible:
                 raise InfeasibleError(f"{design.origin}: network {net.name!r} has no standard "
                                       f"values meeting every window and limit; binding: "
@@ -206,7 +222,8 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
     table_of = _tables(board, pools)
     in_stock = (frozenset(k for k, table in table_of.items() if _stock_match(k, stock, table))
                 if stock else None)
-    outcome = consolidate(pools, in_stock=in_stock, time_limit_s=time_limit_s,
+    outcome = consolidate(pools, in_stock=in_stock,
+                          time_limit_s=max(deadline.remaining(), 1e-9),
                           work_limit=work_limit)
     if outcome.fallback:
         notes.append("consolidation: no cover found within the time limit; every network "

@@ -229,8 +229,9 @@ _SEARCH_CHOICES = [
     click.option("--cost", type=click.Choice(PLOT_AXES), default=None, hidden=True,
                  callback=_deprecated_cost, help="Deprecated name of --plot-x."),
     click.option("--time-limit", type=float, default=None, metavar="SECONDS",
-                 help="Stop searching after this long and show the best so far, "
-                      "marked unproven."),
+                 help="Seconds the whole command may take: the search stops and shows the "
+                      "best so far, marked unproven; re-check and spread shrink to fit, and "
+                      "the report says what was cut."),
     click.option("--quiet", is_flag=True, help="No progress bar."),
     click.option("--require", type=click.Choice(["nominal", "worst-case", "yield"]),
                  default=None,

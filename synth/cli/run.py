@@ -15,6 +15,7 @@ import click
 from synth.errors import DesignError
 
 if TYPE_CHECKING:
+    from synth.deadline import Deadline
     from synth.design.model import Design
     from synth.results import Candidate, SynthesisResult
     from synth.spread.records import SpreadSettings
@@ -54,15 +55,19 @@ def _checked_settings(search: SearchOptions, spread: SpreadOptions) -> SpreadSet
 
 
 def _plots(design: Design, result: SynthesisResult, search: SearchOptions,
-           spread: SpreadOptions) -> list[tuple[Path, bytes]]:
-    """The plot files of a search (see ``synth.report.plots.design_pictures``)."""
+           spread: SpreadOptions, deadline: Deadline) -> list[tuple[Path, bytes]]:
+    """The plot files of a search (see ``synth.report.plots.design_pictures``).
+
+    The front takes at most half the time the command has left (it says if cut short).
+    """
     if not spread.plots or not result.candidates:
         return []
     from synth.front import error_front
     from synth.report.plots import design_pictures
 
-    front = error_front(design, time_limit_s=_FRONT_SECONDS if search.time_limit is None
-                        else min(search.time_limit, _FRONT_SECONDS),
+    budget = deadline.budget(0.5)
+    front = error_front(design, time_limit_s=_FRONT_SECONDS if budget is None
+                        else max(min(budget, _FRONT_SECONDS), 0.01),
                         require=result.require)
     return plot_files(design_pictures(result, cost=search.plot_axis, front=front),
                       spread.plots)
@@ -70,15 +75,21 @@ def _plots(design: Design, result: SynthesisResult, search: SearchOptions,
 
 def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
                rules: Rules | None = None, prepared: SynthesisResult | None = None, *,
-               force: bool = False, save: tuple[str, str] | None = None) -> None:
+               force: bool = False, save: tuple[str, str] | None = None,
+               deadline: Deadline | None = None) -> None:
     """Search ``design``, write its output files, print its report, exit 1 when it fails.
 
     ``save`` is a design file to write with the plots (its name and TOML text; ``-``
     puts it on standard output and the report on stderr); ``force`` lets them replace
     existing files.  Nothing is written when an option or a write is refused.
+    ``deadline`` is the command's (``--time-limit``), started with it; one is started
+    here when not given.
     """
+    from synth.deadline import Deadline
     from synth.report.synthesis import design_json, design_text
     from synth.synthesis import synthesize
+
+    deadline = deadline or Deadline(search.time_limit)
 
     if not design.free_resistors:
         raise DesignError(f"{design.origin}: no resistor has choose = ...; mark the parts "
@@ -92,11 +103,12 @@ def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
         result = (prepared if prepared is not None else synthesize(
             design, top=search.top, time_limit_s=search.time_limit, progress=progress,
             spread=settings, rank_by=search.rank_by, require=search.require,
-            min_yield=None if search.min_yield is None else search.min_yield.value))
+            min_yield=None if search.min_yield is None else search.min_yield.value,
+            deadline=deadline))
     finally:
         progress.close()
     # the files first, all of them or none; then what is printed
-    plots = _plots(design, result, search, spread)
+    plots = _plots(design, result, search, spread, deadline)
     saved: list[tuple[str | Path, str | bytes]] = (
         [save] if save is not None and not to_stdout else [])
     written = write_files([*saved, *plots], force=force,
@@ -136,6 +148,9 @@ def quick_run(tables: dict[str, Any], origin: str, quick: QuickOptions, search: 
         raise DesignError("--save - and --json would both write to standard output; name a "
                           "file for --save")
     _checked_settings(search, spread)
+    from synth.deadline import Deadline
+
+    deadline = Deadline(search.time_limit)  # the whole command's, every package tried
     prepared = None
     if quick.package.lower() == "auto":
         from synth.synthesis import synthesize
@@ -146,7 +161,7 @@ def quick_run(tables: dict[str, Any], origin: str, quick: QuickOptions, search: 
                               spread=spread.settings(), rank_by=search.rank_by,
                               require=search.require,
                               min_yield=None if search.min_yield is None
-                              else search.min_yield.value)
+                              else search.min_yield.value, deadline=deadline)
 
         tables, design, prepared, chosen = synthesize_auto(tables, origin, run, options=names)
         if not search.as_json:
@@ -159,4 +174,5 @@ def quick_run(tables: dict[str, Any], origin: str, quick: QuickOptions, search: 
         import tomli_w
 
         save = (quick.save, tomli_w.dumps(tables))
-    run_design(design, search, spread, rules, prepared, force=quick.force, save=save)
+    run_design(design, search, spread, rules, prepared, force=quick.force, save=save,
+               deadline=deadline)

@@ -33,7 +33,10 @@ def spread_text(spread: SpreadResult, units: list[str]) -> str:
              f"supply: {len(spread.variables)} quantities vary"
              + (f"; Monte Carlo {run:,} {s.distribution} samples, seed {s.seed}"
                 if s.samples else "")]
-    if s.samples and run < s.samples:
+    if s.samples and run < s.samples and spread.samples_cut == "time limit":
+        lines.append(f"note: Monte Carlo cut from {s.samples:,} to {run:,} samples to fit the "
+                     "time limit; the yield interval is that of the samples run")
+    elif s.samples and run < s.samples:
         lines.append(f"note: Monte Carlo cut from {s.samples:,} to {run:,} samples to bound its "
                      f"time (a large network runs at most {s.sample_budget:,} samples × "
                      "resistors); the yield interval is that of the samples run")
@@ -88,6 +91,7 @@ def spread_json(spread: SpreadResult) -> dict[str, Any]:
         "temperature": list(spread.temperature_c),
         "samples": s.samples, "distribution": s.distribution, "seed": s.seed,
         "samples_run": spread.samples_run,
+        "samples_cut": spread.samples_cut,
         "yield": json_number(spread.yield_fraction),
         "yield_interval": (None if spread.yield_interval is None
                            else [json_number(v) for v in spread.yield_interval]),

@@ -84,6 +84,9 @@ def design_text(result: SynthesisResult) -> str:
     state = "proven optimal" if result.proven_optimal else "NOT proven optimal (time limit)"
     lines.append(f"search: {result.combinations:,} combinations, {result.evaluated:,} "
                  f"solved, {result.elapsed_s:.2f} s, {state}")
+    if result.cuts:
+        lines.append(f"cut to fit the time limit of {result.time_limit_s:g} s:")
+        lines.extend(f"  {cut}" for cut in result.cuts)
     if result.ideal:
         ideal = ", ".join(f"{ref} = {format_eng(v, 'Ω', 6)}" for ref, v in result.ideal.items())
         lines.append(f"ideal values: {ideal}")
@@ -160,6 +163,9 @@ def design_json(result: SynthesisResult) -> dict[str, Any]:
         "considered": result.considered,
         "unlimited_objective": json_number(result.unlimited_objective),
         "binding_limits": [problem_json(p) for p in result.binding_limits],
+        "time_limit_s": json_number(result.time_limit_s),
+        "cuts": [{"stage": c.stage, "note": c.note, "asked": c.asked, "done": c.done}
+                 for c in result.cuts],
         "verdict": verdict_text(result)[0].removeprefix("result: "),
         "candidates": [_candidate_json(c) for c in result.candidates],
         "cautions": list(best.check.cautions) if best else [],

@@ -69,6 +69,8 @@ class SearchOutcome:
         Size of the whole search space.
     elapsed_s : float
         Wall time, s.
+    settled : float
+        Share of the search space settled (1 when proven).
     """
 
     ranked: RankedCandidates
@@ -76,6 +78,7 @@ class SearchOutcome:
     evaluated: int
     combinations: int
     elapsed_s: float
+    settled: float = 1.0
 
 
 def _enumerate(lo: np.ndarray, hi: np.ndarray) -> np.ndarray:
@@ -182,7 +185,10 @@ def search(
     evaluated = 0
     bar = math.inf
     if seeds is not None and len(seeds):
-        seeded, n = problem.score(np.asarray(seeds, dtype=np.int64))
+        # each seed once: the ranking's merge expects distinct rows within each side
+        seeds = np.asarray(seeds, dtype=np.int64)
+        _, first = np.unique(seeds, axis=0, return_index=True)
+        seeded, n = problem.score(seeds[np.sort(first)])
         evaluated += n
         ranked = ranked.merged(seeded, top, supply_first)
         if len(ranked.objective) >= top:
@@ -203,10 +209,13 @@ def search(
     open_lo, open_hi, open_bound = lo[feasible], hi[feasible], bound[feasible]
     settled = 0 if feasible[0] else total
     proven = True
+    rounds = 0
     while len(open_bound):
-        if time_limit_s is not None and time.perf_counter() - start > time_limit_s:
+        # the first round always runs: a limit already spent still gives some candidates
+        if rounds and time_limit_s is not None and time.perf_counter() - start > time_limit_s:
             proven = False
             break
+        rounds += 1
         current_bar = min(bar, float(ranked.objective[-1]) if len(ranked.objective) >= top
                           else math.inf)
         keep = open_bound <= current_bar + TIE_TOLERANCE
@@ -265,4 +274,5 @@ def search(
             progress(min(settled / total, 1.0))
     if progress is not None and proven:
         progress(1.0)
-    return SearchOutcome(ranked, proven, evaluated, total, time.perf_counter() - start)
+    return SearchOutcome(ranked, proven, evaluated, total, time.perf_counter() - start,
+                         1.0 if proven else min(settled / total, 1.0))

@@ -199,6 +199,10 @@ class SpreadResult:
         Monte Carlo samples actually run: ``settings.samples``, or fewer when
         a large network cut them (see :attr:`SpreadSettings.sample_budget`);
         None without Monte Carlo.
+    samples_cut : str or None
+        ``"time limit"`` when a time limit shortened the Monte Carlo to
+        ``samples_run`` (``settings.samples`` stays the count asked for); None
+        otherwise.
     """
 
     variables: tuple[str, ...]
@@ -209,6 +213,7 @@ class SpreadResult:
     temperature_c: tuple[float, float]
     yield_interval: tuple[float, float] | None = None
     samples_run: int | None = None
+    samples_cut: str | None = None
 
     @property
     def worst_error(self) -> float:

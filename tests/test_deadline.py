@@ -1,0 +1,54 @@
+"""The command's deadline: time left, expiry, shares of what is left, and the cuts recorded.
+
+A fake clock makes every figure exact; no test here measures real time.
+"""
+
+from __future__ import annotations
+
+import math
+
+from synth.deadline import Cut, Deadline
+
+
+class Clock:
+    def __init__(self, now=0.0):
+        self.now = now
+
+    def __call__(self):
+        return self.now
+
+
+def test_without_a_limit_nothing_expires_and_no_budget_is_set():
+    clock = Clock()
+    d = Deadline(None, clock=clock)
+    clock.now = 1e9
+    assert not d.limited and not d.expired()
+    assert d.remaining() == math.inf and d.budget(0.3) is None
+    assert d.elapsed() == 1e9
+
+
+def test_remaining_counts_down_from_the_start_and_stops_at_zero():
+    clock = Clock(100.0)
+    d = Deadline(5.0, clock=clock)
+    assert d.start == 100.0 and d.remaining() == 5.0 and not d.expired()
+    clock.now = 103.0
+    assert d.elapsed() == 3.0 and d.remaining() == 2.0 and d.budget(0.25) == 0.5
+    clock.now = 105.0
+    assert d.expired() and d.remaining() == 0.0
+    clock.now = 200.0
+    assert d.remaining() == 0.0 and d.budget(0.7) == 0.0
+
+
+def test_a_deadline_started_in_the_past_is_already_expired():
+    d = Deadline(1.0, start=-10.0, clock=Clock(0.0))
+    assert d.expired() and d.remaining() == 0.0
+
+
+def test_cuts_are_kept_in_order_with_their_counts():
+    d = Deadline(1.0, clock=Clock())
+    assert d.cuts == ()
+    d.cut("search", "stopped")
+    d.cut("Monte Carlo", "100,000 samples asked, 4,000 run", asked=100_000, done=4_000)
+    assert d.cuts == (Cut("search", "stopped"),
+                      Cut("Monte Carlo", "100,000 samples asked, 4,000 run", 100_000, 4_000))
+    assert str(d.cuts[1]) == "Monte Carlo: 100,000 samples asked, 4,000 run"

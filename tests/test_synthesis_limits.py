@@ -1,0 +1,162 @@
+"""synthesize() under a time limit: what is cut is recorded, a cut result is unproven, and
+candidates are still returned, even with many free parts.
+
+No test measures wall time (the figures are in benchmarks/limits.py): each either hands
+synthesize a deadline that has already passed, or a fake clock.
+"""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+from click.testing import CliRunner
+
+from synth.cli import cli
+from synth.deadline import Deadline
+from synth.design.reader import design_from_dict
+from synth.spread.records import SpreadSettings
+from synth.synthesis import _fitted_spread, synthesize
+
+from conftest import ROOT
+
+
+def divider():
+    return design_from_dict({
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "value": "12 V"}],
+        "resistor": [{"ref": "R1", "nodes": ["in", "out"], "choose": "E24",
+                      "range": ["10k", "1M"], "package": "0603"},
+                     {"ref": "R2", "nodes": ["out", "gnd"], "choose": "E24",
+                      "range": ["10k", "1M"], "package": "0603"}],
+        "target": [{"voltage": "out", "equals": "3 V", "within": "2%"},
+                   {"current": "V1", "at_most": "200 uA"}]})
+
+
+def string(parts):
+    """A reference across a string of ``parts`` free resistors, a goal at every tap."""
+    nodes = [f"t{k}" for k in range(parts)] + ["gnd"]
+    return design_from_dict({
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "t0", "minus": "gnd",
+                    "value": "5 V"}],
+        "resistor": [{"ref": f"R{k + 1}", "nodes": [nodes[k], nodes[k + 1]], "choose": "E24",
+                      "range": ["100", "100k"]} for k in range(parts)],
+        "target": [{"voltage": f"t{k}", "equals": f"{5 * 10 ** (-1.5 * k / 20):.4f} V",
+                    "within": "5%"} for k in range(1, parts)]})
+
+
+def expired():
+    return Deadline(1.0, start=-10.0)
+
+
+def test_a_passed_deadline_still_returns_candidates_cut_and_unproven():
+    result = synthesize(divider(), spread=SpreadSettings(samples=20_000), deadline=expired())
+    assert result.candidates and result.feasible and result.candidates[0].feasible
+    assert not result.proven_optimal
+    stages = [c.stage for c in result.cuts]
+    assert "search" in stages and "Monte Carlo" in stages
+    mc = next(c for c in result.cuts if c.stage == "Monte Carlo")
+    assert (mc.asked, mc.done) == (20_000, 0)
+    assert result.time_limit_s == 1.0
+
+
+def test_without_a_limit_nothing_is_cut_and_the_search_is_proven():
+    result = synthesize(divider(), spread=SpreadSettings(samples=2_000))
+    assert result.cuts == () and result.proven_optimal and result.time_limit_s is None
+
+
+def test_a_cut_run_keeps_the_unlimited_best_on_a_small_space():
+    # the local descent from the ideal values finds the best of an unlimited run
+    free = synthesize(divider())
+    cut = synthesize(divider(), deadline=expired())
+    assert cut.candidates[0].objective == free.candidates[0].objective
+
+
+def test_a_limited_run_on_sixteen_free_parts_returns_feasible_candidates():
+    design = string(16)
+    result = synthesize(design, top=3, time_limit_s=0.05)
+    assert result.candidates and result.feasible
+    assert all(c.feasible for c in result.candidates)
+    assert not result.proven_optimal and result.cuts[0].stage == "search"
+
+
+class Steps:
+    """A clock that reads the given times, then stays at the last."""
+
+    def __init__(self, *times):
+        self.times = list(times)
+
+    def __call__(self):
+        return self.times.pop(0) if len(self.times) > 1 else self.times[0]
+
+
+def test_monte_carlo_shrinks_to_the_samples_its_pilot_says_fit():
+    design = divider()
+    candidate = synthesize(design, top=1).candidates[0]
+    # the pilot of 1,000 samples takes 1 s by this clock: 1 ms a sample, and 4 s left of 5
+    deadline = Deadline(100.0, start=0.0, clock=Steps(0.0, 1.0))
+    from synth.circuit.measure import Evaluator
+
+    settings = SpreadSettings(samples=100_000, keep_samples=False)
+    shrunk = _fitted_spread(design, Evaluator(design), candidate, settings, 5.0, deadline)
+    spread = shrunk.spread
+    assert spread.samples_run == 4_000 and spread.settings.samples == 100_000
+    assert spread.samples_cut == "time limit"
+    assert [(c.stage, c.asked, c.done) for c in deadline.cuts] == [
+        ("Monte Carlo", 100_000, 4_000)]
+    # enough time for every sample: nothing is cut
+    roomy = Deadline(100.0, start=0.0, clock=Steps(0.0, 0.001))
+    whole = _fitted_spread(design, Evaluator(design), candidate,
+                           replace_samples(settings, 5_000), 50.0, roomy)
+    assert whole.spread.samples_run == 5_000 and whole.spread.samples_cut is None
+    assert roomy.cuts == ()
+
+
+def replace_samples(settings, samples):
+    from dataclasses import replace
+
+    return replace(settings, samples=samples)
+
+
+def test_the_cli_reports_the_cuts_in_text_and_json():
+    path = ROOT / "examples" / "vent_sensor.toml"
+    done = CliRunner().invoke(cli, ["design", str(path), "--time-limit", "1e-6", "--json",
+                                    "--quiet"])
+    assert done.exit_code == 0, done.output
+    doc = json.loads(done.stdout)
+    assert doc["time_limit_s"] == 1e-6 and not doc["proven_optimal"]
+    assert {"search", "Monte Carlo"} <= {c["stage"] for c in doc["cuts"]}
+    assert doc["candidates"] and doc["feasible"]
+    text = CliRunner().invoke(cli, ["design", str(path), "--time-limit", "1e-6", "--quiet"])
+    assert "cut to fit the time limit of 1e-06 s:" in text.stdout
+    assert "NOT proven optimal" in text.stdout
+    assert "Monte Carlo: skipped: 0 of 100,000 samples run" in text.stdout
+
+
+def test_bom_hands_its_time_limit_to_every_network():
+    board = ROOT / "examples" / "greenhouse_board.toml"
+    done = CliRunner().invoke(cli, ["bom", str(board), "--format", "json", "--quiet",
+                                    "--time-limit", "1e-9"])
+    assert done.exit_code == 0, done.output
+    notes = json.loads(done.stdout)["notes"]
+    assert any("cut by the time limit: search:" in n for n in notes), notes
+
+
+def test_local_seeds_reach_the_exhaustive_best_of_a_small_case():
+    # [CALC-exhaustive]: the descent's end point is the best of every combination here
+    from brute import exhaustive
+
+    from synth.circuit.measure import Evaluator
+    from synth.search.choices import choices_for
+    from synth.search.ideal import ideal_values
+    from synth.search.local import local_seeds
+    from synth.search.problem import SearchProblem
+
+    design = divider()
+    choices = [choices_for(r, design.origin) for r in design.free_resistors]
+    evaluator = Evaluator(design)
+    problem = SearchProblem(design, evaluator, choices, relaxed=False)
+    seeds = local_seeds(problem, ideal_values(design, evaluator))
+    ranked, _ = problem.score(seeds[:1])
+    objectives, _ = exhaustive(design)
+    np.testing.assert_allclose(ranked.objective, objectives[:1], rtol=1e-9, atol=1e-12)
