@@ -32,7 +32,8 @@ if TYPE_CHECKING:
     from synth.circuit.nodal import nodal_solve
     from synth.circuit.solution import MeshSolution
     from synth.design.load import load_design
-    from synth.design.model import Design, Regulator, Resistor, Source
+    from synth.design.model import Design, OperatingPoint, Regulator, Resistor, Source
+    from synth.design.points import expand_points, range_points
     from synth.design.reader import design_from_dict
     from synth.design.target import Target
     from synth.errors import DesignError, InfeasibleError, RnsynthError
@@ -65,6 +66,7 @@ _OWNERS = {
     "MeshSolution": "synth.circuit.solution",
     "MeshSolver": "synth.circuit.mesh",
     "Network": "synth.circuit.network",
+    "OperatingPoint": "synth.design.model",
     "PackageRating": "synth.catalog.packages",
     "PartReport": "synth.results",
     "Regulator": "synth.design.model",
@@ -78,6 +80,8 @@ _OWNERS = {
     "Target": "synth.design.model",
     "TargetReport": "synth.results",
     "allowed_power": "synth.rating",
+    "expand_points": "synth.design.points",
+    "range_points": "synth.design.points",
     "analyse_spread": "synth.spread.analyse",
     "build_network": "synth.circuit.network",
     "check": "synth.checking",
@@ -111,6 +115,7 @@ __all__ = [
     "MeshSolution",
     "MeshSolver",
     "Network",
+    "OperatingPoint",
     "PackageRating",
     "PartReport",
     "Regulator",
@@ -130,6 +135,7 @@ __all__ = [
     "check",
     "derating_factor",
     "design_from_dict",
+    "expand_points",
     "format_eng",
     "format_rkm",
     "load_design",
@@ -142,6 +148,7 @@ __all__ = [
     "parse_resistance",
     "parse_tcr",
     "parse_temperature",
+    "range_points",
     "series_names",
     "series_values",
     "synthesize",

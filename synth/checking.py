@@ -11,10 +11,11 @@ from __future__ import annotations
 
 __all__ = [
     "check", "check_block", "part_problems", "required_problems", "resolve_values",
-    "target_reports",
+    "target_reports", "worst_points",
 ]
 
 from collections.abc import Mapping
+from dataclasses import replace
 
 import numpy as np
 
@@ -23,6 +24,7 @@ from synth.circuit.measure import Evaluation, Evaluator
 from synth.circuit.nodal import nodal_solve
 from synth.circuit.solution import solution_difference
 from synth.design.model import Design
+from synth.design.points import point_label
 from synth.errors import DesignError, name_list, nearest_name
 from synth.rating import exceeds, falls_short, use_of
 from synth.results import CheckResult, PartReport, Problem, TargetReport
@@ -98,8 +100,16 @@ def resolve_values(design: Design, given: Mapping[str, float] | None = None
         )
     positions, parts = [], []
     missing = []
+    resolved: dict[str, np.ndarray] = {}
     for resistor in design.resistors:
         position = resistor.position
+        if resistor.follows and resistor.copy_of is not None:
+            # an operating point's copy of a part: the same physical part's value
+            if resistor.copy_of in resolved:
+                values = resolved[resistor.copy_of]
+                parts.extend(values.tolist())
+                positions.append(float(position.effective(values[None, :])[0]))
+            continue
         named = [ref for ref in position.part_refs if ref in given and ref != resistor.ref]
         if named and len(named) < position.count:
             absent = [ref for ref in position.part_refs if ref not in given]
@@ -125,6 +135,7 @@ def resolve_values(design: Design, given: Mapping[str, float] | None = None
             raise DesignError(f"{design.origin}: the value of {resistor.ref} must be a positive "
                               "resistance")
         parts.extend(values.tolist())
+        resolved[resistor.ref] = values
         positions.append(float(position.effective(values[None, :])[0]))
     if missing:
         raise DesignError(
@@ -144,20 +155,61 @@ def part_problems(part: PartReport) -> list[Problem]:
     return problems
 
 
+def _point_problems(design: Design, part: PartReport) -> list[Problem]:
+    """:func:`part_problems`, the subject naming the operating point in a design of points."""
+    found = part_problems(part)
+    if not design.points or part.point is None:
+        return found
+    return [replace(p, subject=point_label(p.subject, part.point)) for p in found]
+
+
+def worst_points(reports: list[PartReport]) -> list[PartReport]:
+    """Each physical resistor once: its report at the operating point it is most stressed.
+
+    The point of the largest use of its allowed dissipation (of its voltage
+    allowance on a tie; of its dissipation for an unrated part).  Sources and
+    regulators keep one report per point.
+    """
+    worst: dict[str, PartReport] = {}
+    order: list[str] = []
+
+    def stress(p: PartReport) -> tuple[float, float, float]:
+        return (p.utilization if p.utilization is not None else -1.0,
+                p.voltage_utilization if p.voltage_utilization is not None else -1.0, p.power)
+
+    for part in reports:
+        if part.kind != "resistor":
+            continue
+        if part.ref not in worst:
+            order.append(part.ref)
+            worst[part.ref] = part
+        elif stress(part) > stress(worst[part.ref]):
+            worst[part.ref] = part
+    return [worst[ref] for ref in order] + [p for p in reports if p.kind != "resistor"]
+
+
 def _window_problem(target: TargetReport) -> Problem:
     edge = target.low if target.value < target.low else target.high
     return Problem("window", target.label, target.value, edge, target.unit,
                    low=target.low, high=target.high)
 
 
+def _physical_refs(design: Design) -> dict[str, tuple[str, ...]]:
+    """Each position's physical part designators, a later point's copy under its leader's."""
+    own = {r.ref: r.part_refs for r in design.resistors if r.copy_of is None}
+    return {r.ref: own[r.copy_of] if r.copy_of is not None else r.part_refs
+            for r in design.resistors}
+
+
 def _part_reports(design: Design, ev: Evaluator, row: int, result: Evaluation,
                   parts: np.ndarray) -> list[PartReport]:
     sol = result.solution
     reports = []
+    physical = _physical_refs(design)
     for k, resistor in enumerate(design.resistors):
         allowance = design.allowance(resistor)
         cols = ev.part_columns[k]
-        for offset, ref in enumerate(resistor.part_refs):
+        for offset, ref in enumerate(physical[resistor.ref]):
             col = cols.start + offset
             power = float(result.part_power[row, col])
             across = float(result.part_voltage[row, col])
@@ -173,9 +225,10 @@ def _part_reports(design: Design, ev: Evaluator, row: int, result: Evaluation,
                 allowed_voltage=None if allowance is None else allowance.voltage_v,
                 voltage_utilization=None if allowance is None
                 else float(use_of(across, allowance.voltage_v)),
-                position=resistor.ref,
+                position=resistor.copy_of or resistor.ref, point=resistor.point,
             ))
     v = sol.node_voltages[row]
+    point_of = {s.ref: s.point for s in design.sources if s.point is not None}
     # sources and controlled sources: current as delivered (out of plus, into `to`)
     two_terminal = ([(s.ref, f"{s.kind} source", s.value, s.pos, s.neg) for s in design.sources]
                     + [(c.ref, f"controlled source ({c.kind})", c.gain, c.pos, c.neg)
@@ -184,7 +237,8 @@ def _part_reports(design: Design, ev: Evaluator, row: int, result: Evaluation,
         current = float(sol.branch_currents[row, ev.branch_index[ref]])
         across = float(v[ev.node_index[pos]] - v[ev.node_index[neg]])
         reports.append(PartReport(ref=ref, kind=kind, value=value, current=current,
-                                  voltage=across, power=current * across))
+                                  voltage=across, power=current * across,
+                                  point=point_of.get(ref)))
     for g, regulator in enumerate(design.regulators):
         col = ev.branch_index[regulator.ref]
         current = float(sol.branch_currents[row, col])
@@ -204,13 +258,15 @@ def _cautions(design: Design, parts: list[PartReport], max_voltage: float) -> li
         if part.kind != "resistor" or part.allowed_power is None:
             continue
         allowance = design.allowance(by_ref[part.ref])
+        name = part.ref if part.point is None or not design.points else point_label(
+            part.ref, part.point)
         assert allowance is not None
         if bool(exceeds(part.power, part.allowed_power)):
             hot = bool(exceeds(part.power, allowance.derated_power_w))
-            (over_rating if hot else over_margin).append(part.ref)
+            (over_rating if hot else over_margin).append(name)
         elif part.allowed_voltage is not None and bool(exceeds(part.voltage,
                                                                 part.allowed_voltage)):
-            over_margin.append(part.ref)
+            over_margin.append(name)
     return voltage_cautions(max_voltage) + power_cautions(over_rating, over_margin)
 
 
@@ -236,23 +292,30 @@ def check_block(design: Design, evaluator: Evaluator, positions: np.ndarray,
     positions = np.atleast_2d(np.asarray(positions, dtype=float))
     parts = np.atleast_2d(np.asarray(parts, dtype=float))
     result = evaluator.evaluate(positions, part_values=parts)
+    physical = {ref for r in design.physical_resistors for ref in r.part_refs}
     out = []
     for row in range(len(positions)):
         v = result.solution.node_voltages[row]
         reports = _part_reports(design, evaluator, row, result, parts[row])
         targets = target_reports(design, result.targets[row], result.target_noise[row])
-        problems = [p for part in reports if part.kind == "resistor" for p in part_problems(part)]
+        problems = [p for part in reports if part.kind == "resistor"
+                    for p in _point_problems(design, part)]
         problems += [_window_problem(t) for t in targets if not t.met]
         max_voltage = float(v.max() - v.min())
+        cautions = tuple(_cautions(design, reports, max_voltage))
+        if design.points:
+            reports = worst_points(reports)
         out.append(CheckResult(
             design=design,
-            values={ref: float(parts[row, c]) for c, ref in enumerate(design.part_refs)},
+            values={ref: float(parts[row, c]) for c, ref in enumerate(design.part_refs)
+                    if ref in physical},
             nodes={name: float(v[k]) for k, name in enumerate(evaluator.network.nodes)},
             parts=tuple(reports), targets=targets,
             supply_current=float(result.supply_current[row]), max_voltage=max_voltage,
-            cautions=tuple(_cautions(design, reports, max_voltage)), problems=tuple(problems),
+            cautions=cautions, problems=tuple(problems),
             verify_difference=None,
-            positions={r.ref: float(positions[row, k]) for k, r in enumerate(design.resistors)},
+            positions={r.ref: float(positions[row, k]) for k, r in enumerate(design.resistors)
+                       if r.copy_of is None},
         ))
     return out
 
@@ -313,6 +376,7 @@ def check(design: Design, *, values: Mapping[str, float] | None = None,
     filled: dict[str, float] = {}
     missing = [p.ref for p in design.resistors
                if p.value is None and p.position.part_values is None and p.ref not in given
+               and not p.follows
                and not any(ref in given for ref in p.part_refs)]
     if missing and fill_ideal and design.targets:
         ideal = ideal_values(design)

@@ -108,6 +108,10 @@ class PartReport:
     position : str or None
         The resistor position this physical part belongs to (its own
         designator for a single part; ``"R1"`` for ``"R1A"``); None for sources.
+    point : str or None
+        In a design of operating points: the point these figures are taken at
+        (for a resistor, the point of its largest use of its allowance); None
+        without points.
     """
 
     ref: str
@@ -124,6 +128,7 @@ class PartReport:
     allowed_voltage: float | None = None
     voltage_utilization: float | None = None
     position: str | None = None
+    point: str | None = None
 
 
 @dataclass(frozen=True)

@@ -195,7 +195,16 @@ def _with_goal_status(candidate: Candidate, binding: str | None,
 
 def _spread_of(design: Design, evaluator: Evaluator, candidate: Candidate,
                settings: SpreadSettings) -> Candidate:
-    parts = np.array([candidate.check.values[ref] for ref in design.part_refs])
+    values = candidate.check.values
+    if design.points:  # the copies at later points: their leader's or their point's values
+        r0 = evaluator.follow(np.array([candidate.positions.get(
+            r.ref, r.value if r.value is not None else np.nan) for r in design.resistors]))
+        parts = evaluator.part_values(r0)[0]
+        for c, ref in enumerate(design.part_refs):
+            parts[c] = values.get(ref, parts[c])
+        parts = evaluator.follow_parts(parts)[0]
+    else:
+        parts = np.array([values[ref] for ref in design.part_refs])
     return replace(candidate, spread=analyse_spread(design, candidate.positions, settings,
                                                     evaluator, part_values=parts))
 

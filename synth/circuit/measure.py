@@ -61,7 +61,8 @@ class Evaluation:
     resistor_voltage : numpy.ndarray
         ``(N, resistors)`` V across each resistor (absolute).
     supply_current : numpy.ndarray
-        ``(N,)`` A: sum of the currents delivered by voltage sources and
+        ``(N,)`` A (with operating points: the largest over the points): sum of
+        the currents delivered by voltage sources and
         regulating elements (a source that absorbs current, such as a
         forward-biased LED modelled as a voltage drop, counts zero).  An
         amplifier's output current counts too: its output is a regulating
@@ -121,6 +122,16 @@ class Evaluator:
             self.part_columns.append(slice(start, start + resistor.position.count))
             start += resistor.position.count
         self.multi_part = [k for k, r in enumerate(design.resistors) if r.position.count > 1]
+        pairs = design.followers
+        self.copies = np.array([c for c, _ in pairs], dtype=int)
+        """Resistor columns that take another column's value (operating points' copies)."""
+        self.leaders = np.array([lead for _, lead in pairs], dtype=int)
+        self.copy_parts = np.array([col for c, _ in pairs for col in
+                                    range(self.part_columns[c].start, self.part_columns[c].stop)],
+                                   dtype=int)
+        self.leader_parts = np.array([col for _, lead in pairs for col in
+                                      range(self.part_columns[lead].start,
+                                            self.part_columns[lead].stop)], dtype=int)
         allowances = [design.allowance(r) for r in design.resistors for _ in r.part_refs]
         self.allowed_power = np.array([np.nan if a is None else a.power_w for a in allowances])
         """Per physical part, W (NaN for an unrated part), at the design's rating ambient."""
@@ -143,6 +154,15 @@ class Evaluator:
             dtype=int,
         )
         """Branch columns whose delivered current counts in the supply current."""
+        self.supply_groups: list[np.ndarray] = []
+        """With operating points: the supply columns of each point (the supply current is
+        the largest point's); empty otherwise."""
+        if design.points:
+            supply_refs = (*self.network.vsource_refs, *self.network.regulator_refs)
+            names = [p.name for p in design.points]
+            self.supply_groups = [
+                np.array([k for k, ref in enumerate(supply_refs)
+                          if ref.rpartition("@")[2] == name], dtype=int) for name in names]
 
     def _seen_solver(self, plus: str, minus: str) -> Solver:
         key = (plus, minus)
@@ -172,6 +192,20 @@ class Evaluator:
                           np.zeros(len(self.network.regulator_refs)), gains)
         v = sol.node_voltages
         return v[:, self.node_index[plus]] - v[:, self.node_index[minus]]  # type: ignore[no-any-return]  # numpy types this array expression as Any
+
+    def follow(self, resistances: np.ndarray) -> np.ndarray:
+        """``(N, resistors)`` ohm with every point's copy at its leader's value (a copy)."""
+        r = np.array(np.atleast_2d(resistances), dtype=float)
+        if len(self.copies):
+            r[:, self.copies] = r[:, self.leaders]
+        return r
+
+    def follow_parts(self, part_values: np.ndarray) -> np.ndarray:
+        """``(N, parts)`` ohm with every copy's parts at its leader's part values (a copy)."""
+        parts = np.array(np.atleast_2d(part_values), dtype=float)
+        if len(self.copy_parts):
+            parts[:, self.copy_parts] = parts[:, self.leader_parts]
+        return parts
 
     def part_values(self, resistances: np.ndarray) -> np.ndarray:
         """Physical part values ``(N, parts)`` for position values ``(N, resistors)``, ohm.
@@ -234,6 +268,10 @@ class Evaluator:
         Evaluation
         """
         r = np.atleast_2d(np.asarray(resistances, dtype=float))
+        if len(self.copies):
+            r = self.follow(r)
+            if part_values is not None:
+                part_values = self.follow_parts(part_values)
         src = sources or self.nominal_sources
         gains = src.gains if src.gains is not None else self.nominal_sources.gains
         sol = self._solve(self.solver, r, src.voltages, src.currents, src.setpoints, gains)
@@ -245,7 +283,12 @@ class Evaluator:
         targets = np.column_stack(
             [self._target_values(t, r, sol, power, gains) for t in self.design.targets]
         ) if self.design.targets else np.zeros((len(r), 0))
-        supply = np.clip(sol.branch_currents[:, self.supply_columns], 0.0, None).sum(axis=1)
+        delivered = np.clip(sol.branch_currents[:, self.supply_columns], 0.0, None)
+        if self.supply_groups:
+            supply = np.max([delivered[:, cols].sum(axis=1) for cols in self.supply_groups],
+                            axis=0)
+        else:
+            supply = delivered.sum(axis=1)
         if parts:
             part_i, part_u, part_p = self._split(r, i_r, across, power, part_values)
         else:
@@ -361,7 +404,7 @@ class Evaluator:
         if not any(t.kind in ("ratio", "loss") for t in self.design.targets):
             return
         src = self.nominal_sources
-        sol = self._solve(self.solver, np.atleast_2d(resistances), src.voltages,
+        sol = self._solve(self.solver, self.follow(resistances), src.voltages,
                           src.currents, src.setpoints, src.gains)
         refuse_undefined_ratios(self.design, self.node_index, sol)
 
@@ -371,7 +414,7 @@ class Evaluator:
         if not self.network.regulator_refs and not self.network.controlled:
             return
         src = self.nominal_sources
-        r = np.atleast_2d(resistances)
+        r = self.follow(resistances)
         sol = self._solve(self.solver, r, src.voltages, src.currents, src.setpoints, src.gains)
         with np.errstate(over="ignore", invalid="ignore"):
             drive = max(np.max(np.abs(src.voltages), initial=0.0),

@@ -7,8 +7,8 @@ Positions are described in :mod:`synth.design.position`, targets in
 from __future__ import annotations
 
 __all__ = [
-    "REQUIREMENTS", "ControlledSource", "Design", "Regulator", "Resistor", "Source",
-    "Transistor",
+    "REQUIREMENTS", "ControlledSource", "Design", "OperatingPoint", "Regulator", "Resistor",
+    "Source", "Transistor",
 ]
 
 from collections.abc import Mapping
@@ -19,6 +19,35 @@ from synth.catalog.packages import PackageRating
 from synth.design.position import Position
 from synth.design.target import Target
 from synth.rating import Allowance, allowance
+
+
+@dataclass(frozen=True)
+class OperatingPoint:
+    """One operating point: the source values (and temperature) a copy of the network runs at.
+
+    Attributes
+    ----------
+    name : str
+        How targets (``at``) and reports name the point.
+    sources : mapping of str to float
+        Value of each source the point sets, V or A, by designator; the others
+        keep their design value.
+    temperature_c : float or None
+        The point's temperature, °C (for parts whose value follows temperature).
+    resistors : mapping of str to float
+        Fixed resistors whose value differs at this point (a sensor), ohm by
+        designator.
+    range_ends : tuple of str
+        The sources whose range this point is an end of (see
+        :func:`synth.design.points.range_points`); empty for a point as written.
+    """
+
+    name: str
+    sources: Mapping[str, float] = field(default_factory=dict)
+    temperature_c: float | None = None
+    resistors: Mapping[str, float] = field(default_factory=dict)
+    range_ends: tuple[str, ...] = ()
+
 
 REQUIREMENTS = ("nominal", "worst-case", "yield")
 """Bases a design's windows and limits may be required to hold on."""
@@ -43,6 +72,12 @@ class Source:
     tolerance_abs : float or None
         Absolute tolerance, V or A, when the file gives one with a unit
         (``tolerance = "10 uA"``): the value may then span zero.
+    point : str or None
+        In a design of operating points (:mod:`synth.design.points`): the point
+        this copy of the source belongs to; None in a design without points.
+    copy_of : str or None
+        The designator of the source this copy stands for (its deviation is
+        the same random draw at every point); None outside operating points.
     """
 
     ref: str
@@ -52,6 +87,8 @@ class Source:
     value: float
     tolerance: float
     tolerance_abs: float | None = None
+    point: str | None = None
+    copy_of: str | None = None
 
 
 @dataclass(frozen=True)
@@ -83,6 +120,15 @@ class Resistor:
     bom : bool
         True when the part goes on the bill of materials; False for resistors
         that model something else (a load, a sensor, an input resistance).
+    point : str or None
+        In a design of operating points (:mod:`synth.design.points`): the point
+        this copy of the network belongs to; None in a design without points.
+    copy_of : str or None
+        For the copies in the second and later points: the designator of the
+        physical position (the first point's copy keeps it); None otherwise.
+    follows : bool
+        True when this copy takes ``copy_of``'s value (always for a free
+        part; for a fixed one unless a point gives it its own value).
     """
 
     ref: str
@@ -96,6 +142,9 @@ class Resistor:
     package: str | None
     position: Position
     bom: bool = True
+    point: str | None = None
+    copy_of: str | None = None
+    follows: bool = False
 
     @property
     def combine(self) -> str | None:
@@ -130,6 +179,8 @@ class Regulator:
         Regulated voltage, V (the reference voltage of the regulator).
     tolerance : float
         Relative tolerance of the setpoint (fraction).
+    copy_of : str or None
+        In a design of operating points: the element this point's copy stands for.
     """
 
     ref: str
@@ -138,6 +189,7 @@ class Regulator:
     reference: str
     setpoint: float
     tolerance: float
+    copy_of: str | None = None
 
 
 @dataclass(frozen=True)
@@ -161,6 +213,8 @@ class ControlledSource:
         V/V, A/V (S), V/A (ohm) or A/A.
     gain_low, gain_high : float
         The range the gain may take (for spread); both equal ``gain`` when fixed.
+    copy_of : str or None
+        In a design of operating points: the source this point's copy stands for.
     """
 
     ref: str
@@ -172,6 +226,7 @@ class ControlledSource:
     gain: float
     gain_low: float
     gain_high: float
+    copy_of: str | None = None
 
     @property
     def voltage_output(self) -> bool:
@@ -247,6 +302,11 @@ class Design:
     packages_path : Path or None
         The design's own package table (``[design] packages``); None for the
         bundled ``catalogs/packages.csv``.
+    points : tuple of OperatingPoint
+        The operating points the network was copied for, in copy order
+        (:func:`synth.design.points.expand_points`); empty for one network.
+    single : Design or None
+        With operating points: the design as written, one copy of the network.
     """
 
     origin: str
@@ -267,6 +327,20 @@ class Design:
     min_yield: float | None = None
     deprecations: tuple[str, ...] = ()
     packages_path: Path | None = None
+    points: tuple[OperatingPoint, ...] = ()
+    single: Design | None = field(default=None, repr=False)
+
+    @property
+    def physical_resistors(self) -> tuple[Resistor, ...]:
+        """Each physical position once: the resistors that are not a later point's copy."""
+        return tuple(r for r in self.resistors if r.copy_of is None)
+
+    @property
+    def followers(self) -> tuple[tuple[int, int], ...]:
+        """``(copy, leader)`` resistor indices: each copy that takes its leader's value."""
+        index = {r.ref: k for k, r in enumerate(self.resistors)}
+        return tuple((k, index[r.copy_of]) for k, r in enumerate(self.resistors)
+                     if r.follows and r.copy_of in index)
 
     @property
     def free_resistors(self) -> tuple[Resistor, ...]:

@@ -22,7 +22,7 @@ from synth.units import (
 )
 
 _TARGET_KEYS = (*TARGET_KINDS, "name", "equals", "within", "at_least", "at_most", "without",
-                "note")
+                "note", "at")
 
 
 def _bare_number(raw: Any) -> bool:
@@ -151,7 +151,17 @@ def read_target(origin: str, index: int, raw: Any, ground: str) -> Target:
                 and all(isinstance(n, str) and n.strip() for n in names)):
             reader.fail('without must name resistors, such as without = ["RS"]')
         without = tuple(n.strip() for n in names)
+    at: tuple[str, ...] | None = None
+    if reader.has("at"):
+        points = raw["at"]
+        if isinstance(points, str):
+            points = [points]
+        if not (isinstance(points, list) and points
+                and all(isinstance(p, str) and p.strip() for p in points)):
+            reader.fail('at must name operating points, such as at = "cold" or '
+                        'at = ["cold", "hot"]')
+        at = tuple(dict.fromkeys(p.strip() for p in points))
     name = reader.text("name") if reader.has("name") else default_label
     return Target(label=name, kind=kind, nodes=nodes, ref=ref, equals=equals,
                   within_abs=within_abs, within_rel=within_rel, at_least=at_least,
-                  at_most=at_most, unit=TARGET_UNITS[kind], without=without)
+                  at_most=at_most, unit=TARGET_UNITS[kind], without=without, at=at)

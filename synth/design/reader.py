@@ -31,6 +31,8 @@ from synth.design.fields import (
     temperature_end,
 )
 from synth.design.model import REQUIREMENTS, Design, Regulator, Source
+from synth.design.points import expand_points
+from synth.design.read_point import read_points, source_range
 from synth.design.read_resistor import read_resistor
 from synth.design.read_target import read_target
 from synth.errors import DesignError, name_list, nearest_name
@@ -42,7 +44,7 @@ from synth.units import (
 )
 
 _TOP_KEYS = ("design", "source", "resistor", "regulator", "controlled", "transistor",
-             "amplifier", "target")
+             "amplifier", "target", "point")
 
 
 _DESIGN_KEYS = (
@@ -56,7 +58,8 @@ _RENAMED_DESIGN_KEYS = (("margin", "max_power_use"), ("voltage_margin", "max_vol
 """(old, new) ``[design]`` names: the old one is still read, with a deprecation note."""
 
 
-_SOURCE_KEYS = ("ref", "kind", "plus", "minus", "from", "to", "value", "tolerance", "note")
+_SOURCE_KEYS = ("ref", "kind", "plus", "minus", "from", "to", "value", "tolerance", "note",
+                "range")
 
 
 
@@ -126,10 +129,17 @@ def _read_design_table(origin: str, raw: Any) -> dict[str, Any]:
     return settings
 
 
-def _read_source(origin: str, index: int, raw: Any) -> Source:
+def _read_source(origin: str, index: int, raw: Any,
+                 ranges: dict[str, tuple[float, float]]) -> Source:
     reader = ItemReader(origin, item_label("source", index, raw), raw, _SOURCE_KEYS)
     ref = reader.text("ref")
     kind = reader.text("kind")
+    if kind in ("voltage", "current") and reader.has("range"):
+        # the source runs over a range: its value is the middle unless given
+        span = source_range(reader, "range", raw["range"], "V" if kind == "voltage" else "A")
+        ranges[ref] = span
+        raw = {"value": (span[0] + span[1]) / 2, **raw}
+        reader = ItemReader(origin, reader.item, raw, _SOURCE_KEYS)
     if kind == "voltage":
         for wrong in ("from", "to"):
             if reader.has(wrong):
@@ -247,7 +257,8 @@ def _design(data: Mapping[str, Any], origin: str) -> Design:
         fail_item(origin, "[design]", f"package {name!r} is not in the package "
                   f"table{nearest_name(name, packages)}; use one of "
                   f"{name_list(sorted(packages))}")
-    sources = tuple(_read_source(origin, i, s)
+    ranges: dict[str, tuple[float, float]] = {}
+    sources = tuple(_read_source(origin, i, s, ranges)
                     for i, s in enumerate(table_array(origin, data, "source"), 1))
     resistors = tuple(read_resistor(origin, i, r, settings, packages)
                       for i, r in enumerate(table_array(origin, data, "resistor"), 1))
@@ -270,4 +281,12 @@ def _design(data: Mapping[str, Any], origin: str) -> Design:
         deprecations=settings["deprecations"], packages_path=packages_path,
     )
     check_references(design)
+    points, base_names = read_points(origin, data, design.sources, ranges)
+    if points:
+        return expand_points(design, points, base_names=base_names)
+    for target in design.targets:
+        if target.at is not None:
+            raise DesignError(f"{origin}, target {target.label!r}: at names point "
+                              f"{target.at[0]!r}, but the design has no operating points; "
+                              "add [[point]] tables or drop at")
     return design

@@ -45,6 +45,12 @@ class Target:
         For a resistance: the positions left out (opened) while it is measured,
         so a port's match is the resistance the network presents, not in
         parallel with its own termination.
+    at : tuple of str or None
+        The operating points it applies at (``at`` in the file); None for
+        every point.
+    point : str or None
+        In a design of operating points: the point this copy of the target
+        is measured at (its label ends ``" @ point"``); None otherwise.
     """
 
     label: str
@@ -58,6 +64,8 @@ class Target:
     at_most: float | None
     unit: str
     without: tuple[str, ...] = ()
+    at: tuple[str, ...] | None = None
+    point: str | None = None
 
     @property
     def bounds(self) -> tuple[float, float]:

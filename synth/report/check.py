@@ -16,6 +16,7 @@ from typing import Any
 from tabulate import tabulate
 
 from synth.report.numbers import NOISE_FRACTION, json_number
+from synth.report.points import points_json, points_lines
 from synth.report.spread import spread_json, spread_text
 from synth.report.verdict import check_verdict_text, error_text
 from synth.results import CheckResult, PartReport, Problem, TargetReport
@@ -90,7 +91,8 @@ def check_text(result: CheckResult) -> str:
     lines = [design.title or "(untitled design)", f"file: {design.origin}",
              f"ambient {design.ambient_c:g} °C; a part may use up to "
              f"{design.margin_frac * 100:g} % of its derated power and "
-             f"{design.voltage_margin_frac * 100:g} % of its limiting element voltage", ""]
+             f"{design.voltage_margin_frac * 100:g} % of its limiting element voltage",
+             *points_lines(design), ""]
     lines.append("result: " + check_verdict_text(result))
     lines.extend(result.cautions)
     for ref, value in result.filled.items():
@@ -102,12 +104,16 @@ def check_text(result: CheckResult) -> str:
                               headers=["target", "value", "goal", "error", "window", "met"],
                               disable_numparse=True))
     lines.append("")
+    at_points = bool(design.points)
     lines.append(tabulate(
-        [_part_row(p) for p in result.parts],
+        [_part_row(p) + ([p.point or "-"] if at_points else []) for p in result.parts],
         headers=["part", "kind", "value", "current", "voltage", "power", "package",
-                 "allowed", "P use", "V use"],
+                 "allowed", "P use", "V use", *(["at point"] if at_points else [])],
         disable_numparse=True,
     ))
+    if at_points:
+        lines.append("note: each resistor is listed once, at the operating point where it "
+                     "uses the most of its allowed dissipation")
     if any(p.kind == "resistor" and p.package is None for p in result.parts):
         lines.append("note: parts without a package are not checked against a power rating")
     lines.append(f"supply current: {format_eng(result.supply_current, 'A')}; "
@@ -160,6 +166,7 @@ def part_json(part: PartReport) -> dict[str, Any]:
         "allowed_voltage": json_number(part.allowed_voltage),
         "voltage_utilization": json_number(part.voltage_utilization),
         "position": part.position,
+        **({"point": part.point} if part.point is not None else {}),
     }
 
 
@@ -183,6 +190,8 @@ def check_json(result: CheckResult) -> dict[str, Any]:
         "cautions": list(result.cautions),
         "filled": dict(result.filled),
     }
+    if result.design.points:
+        doc["points"] = points_json(result.design)
     if result.verify_difference is not None:
         doc["verify"] = {"max_difference": result.verify_difference}
     if result.spread is not None:

@@ -70,6 +70,7 @@ def spread_text(spread: SpreadResult, units: list[str]) -> str:
              for t in spread.targets],
             headers=["target", *spread.variables], disable_numparse=True))
     lines.append("")
+    at_points = any(p.point is not None for p in spread.parts)
     lines.append(f"worst-case dissipation against the derated rating at the hottest ambient "
                  f"({max(high_c, low_c):g} °C)")
     lines.append(tabulate(
@@ -77,8 +78,10 @@ def spread_text(spread: SpreadResult, units: list[str]) -> str:
           "n/a" if p.worst_power_bound == float("inf") else format_eng(p.worst_power_bound, "W"),
           "-" if p.allowed_power_hot is None else format_eng(p.allowed_power_hot, "W"),
           "-" if p.utilization is None else f"{p.utilization * 100:.3g}%",
-          format_eng(p.worst_voltage, "V")] for p in spread.parts],
-        headers=["part", "nominal", "worst", "bound", "allowed", "use", "worst voltage"],
+          format_eng(p.worst_voltage, "V"), *([p.point or "-"] if at_points else [])]
+         for p in spread.parts],
+        headers=["part", "nominal", "worst", "bound", "allowed", "use", "worst voltage",
+                 *(["worst at point"] if at_points else [])],
         disable_numparse=True))
     return "\n".join(lines)
 
@@ -114,6 +117,7 @@ def spread_json(spread: SpreadResult) -> dict[str, Any]:
             "allowed_power_hot": json_number(p.allowed_power_hot),
             "utilization": json_number(p.utilization),
             "worst_voltage": json_number(p.worst_voltage),
+            **({"point": p.point} if p.point is not None else {}),
             "allowed_voltage": json_number(p.allowed_voltage),
         } for p in spread.parts],
     }

@@ -10,6 +10,7 @@ from tabulate import tabulate
 
 from synth.report.check import part_json, problem_json, target_json
 from synth.report.numbers import json_number
+from synth.report.points import points_json, points_lines
 from synth.report.spread import spread_json, spread_text
 from synth.report.verdict import error_text, verdict_text
 from synth.results import Candidate, SynthesisResult, TargetReport
@@ -80,7 +81,8 @@ def design_text(result: SynthesisResult) -> str:
     """The report ``rnsynth design`` prints: search summary, ideal values, ranked table."""
     design = result.design
     where = "built from" if design.origin.startswith("rnsynth ") else "file"
-    lines = [design.title or "(untitled design)", f"{where}: {design.origin}"]
+    lines = [design.title or "(untitled design)", f"{where}: {design.origin}",
+             *points_lines(design)]
     state = "proven optimal" if result.proven_optimal else "NOT proven optimal (time limit)"
     lines.append(f"search: {result.combinations:,} combinations, {result.evaluated:,} "
                  f"solved, {result.elapsed_s:.2f} s, {state}")
@@ -169,4 +171,5 @@ def design_json(result: SynthesisResult) -> dict[str, Any]:
         "verdict": verdict_text(result)[0].removeprefix("result: "),
         "candidates": [_candidate_json(c) for c in result.candidates],
         "cautions": list(best.check.cautions) if best else [],
+        **({"points": points_json(result.design)} if result.design.points else {}),
     }

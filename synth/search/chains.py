@@ -165,6 +165,8 @@ def _chains(design: Design, evaluator: Evaluator, choices: list[Choices]
             blocked.add(t.ref)
     position = {c.ref: p for p, c in enumerate(choices)}
     resistors = design.resistors
+    if design.points:
+        return []  # a chain's copies at the other points follow parts the reduction merges
     eligible = {k for k, r in enumerate(resistors)
                 if r.ref in position and r.position.count == 1 and r.ref not in blocked
                 and ends[k, 0] != ends[k, 1]}

@@ -84,14 +84,14 @@ class SearchProblem:
         r = np.broadcast_to(self.base, (len(indices), self.n_r)).copy()
         for p, choice in enumerate(self.choices):
             r[:, self.free[p]] = choice.values[indices[:, p]]
-        return r
+        return self.ev.follow(r) if len(self.ev.copies) else r
 
     def part_values(self, indices: np.ndarray) -> np.ndarray:
         """``(M, parts)`` ohm of every physical part for ``(M, positions)`` choice indices."""
         parts = np.broadcast_to(self.base_parts, (len(indices), len(self.base_parts))).copy()
         for p, choice in enumerate(self.choices):
             parts[:, self.free_columns[p]] = choice.parts[indices[:, p]]
-        return parts
+        return self.ev.follow_parts(parts) if len(self.ev.copies) else parts
 
     def evaluate(self, r: np.ndarray, part_values: np.ndarray | None = None, *,
                  parts: bool = True) -> Evaluation:
@@ -233,6 +233,8 @@ class SearchProblem:
         for p, choice in enumerate(self.choices):
             r_lo[:, self.free[p]] = choice.values[lo[:, p]]
             r_hi[:, self.free[p]] = choice.values[hi[:, p]]
+        if len(self.ev.copies):  # each operating point's copy spans its leader's values
+            r_lo, r_hi = self.ev.follow(r_lo), self.ev.follow(r_hi)
         i2_lo = np.where((i_lo <= 0) & (i_hi >= 0), 0.0, np.minimum(i_lo ** 2, i_hi ** 2))
         i2_hi = np.maximum(i_lo ** 2, i_hi ** 2)
         u2_lo = np.where((u_lo <= 0) & (u_hi >= 0), 0.0, np.minimum(u_lo ** 2, u_hi ** 2))
@@ -260,7 +262,10 @@ class SearchProblem:
             # each delivering branch's current is monotone in every resistance, so its
             # least value over the box lies at a vertex: the sum of those is a lower bound
             delivered = ev.solution.branch_currents[:, self.supply_columns]
-            least = np.clip(delivered.reshape(*shape, -1).min(axis=1), 0.0, None).sum(axis=1)
+            each = np.clip(delivered.reshape(*shape, -1).min(axis=1), 0.0, None)
+            groups = self.ev.supply_groups  # operating points: the largest point's supply
+            least = (np.max([each[:, cols].sum(axis=1) for cols in groups], axis=0)
+                     if groups else each.sum(axis=1))
             broken |= least > self.max_supply_a
         parts = [gap_below, gap_above, np.zeros((n_box, 1))]
         if self.n_r:

@@ -47,7 +47,7 @@ from synth.design.model import Design
 from synth.spread.monte_carlo import block_size, monte_carlo, sample_count, yield_interval
 from synth.spread.records import PartSpread, SpreadResult, SpreadSettings, TargetSpread
 from synth.spread.variables import SpreadVariables, box_corners
-from synth.spread.worst_case import EXACT_VARIABLES, part_spread
+from synth.spread.worst_case import EXACT_VARIABLES, part_spread, worst_point_parts
 
 
 def analyse_spread(design: Design, values: dict[str, float] | None = None,
@@ -88,6 +88,7 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
     given = dict(values or {})
     r0 = np.array([given.get(r.ref, r.value if r.value is not None else np.nan)
                    for r in design.resistors], dtype=float)
+    r0 = ev.follow(r0)[0]  # operating points' copies at their leader's value
     parts0 = (ev.part_values(r0[None, :])[0] if part_values is None
               else np.asarray(part_values, dtype=float))
     src = ev.nominal_sources
@@ -168,6 +169,8 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
 
     parts = part_spread(design, ev, var, bits if exact else None, vertices, nominal, p_v)
     targets = _with_power_peaks(design, ev, targets, parts)
+    if design.points:
+        parts = worst_point_parts(parts)
     yield_fraction = None
     interval = None
     run = None

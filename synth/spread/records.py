@@ -165,6 +165,10 @@ class PartSpread:
         Largest voltage across the part over the box, V.
     allowed_voltage : float or None
         The voltage the design allows the part, V.
+    point : str or None
+        In a design of operating points: the point of the part's largest
+        worst-case dissipation (its worst voltage is the largest over every
+        point); None without points.
     """
 
     ref: str
@@ -175,6 +179,7 @@ class PartSpread:
     utilization: float | None
     worst_voltage: float
     allowed_voltage: float | None = None
+    point: str | None = None
 
 
 @dataclass(frozen=True)

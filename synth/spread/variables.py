@@ -33,13 +33,31 @@ class SpreadVariables:
         low_c, high_c = design.temperature_c
         self.span_c = max(abs(low_c - REFERENCE_C), abs(high_c - REFERENCE_C))
         self.evaluator = evaluator
-        names, low, high, tol, drift, tcr = [], [], [], [], [], []
+        names: list[str] = []
+        low: list[float] = []
+        high: list[float] = []
+        tol: list[float] = []
+        drift: list[float] = []
+        tcr: list[float] = []
         self.kind: list[tuple[str, int]] = []
+        self.tied: list[tuple[str, int, int]] = []
+        """``(group, index, variable column)``: an operating point's copy of a part or source,
+        varied by its leader's variable (one physical part, one deviation at every point)."""
+        leader_of: dict[tuple[str, str], int] = {}  # (group, physical name) -> column
+        copies: list[tuple[str, str, int]] = []
         column = 0
         for r in design.resistors:
             d = r.tcr * self.span_c
+            if r.copy_of is not None:
+                leader = next(x for x in design.resistors if x.ref == r.copy_of)
+                for ref, own in zip(leader.part_refs, range(column, column + r.position.count),
+                                    strict=True):
+                    copies.append(("part", ref, own))
+                column += r.position.count
+                continue
             for ref in r.part_refs:
                 if r.tolerance != 0 or d != 0:
+                    leader_of[("part", ref)] = len(names)
                     names.append(ref)
                     low.append((1 - r.tolerance) * (1 - d))
                     high.append((1 + r.tolerance) * (1 + d))
@@ -55,7 +73,12 @@ class SpreadVariables:
         for k, c in enumerate(design.controlled):
             if c.gain_low == c.gain_high:
                 continue
-            names.append(c.ref)
+            if c.copy_of is not None and ("gain", c.copy_of) in leader_of:
+                copies.append(("gain", c.copy_of, k))
+                continue
+            if c.copy_of is not None:
+                leader_of[("gain", c.copy_of)] = len(names)
+            names.append(c.copy_of or c.ref)
             ends = sorted((c.gain_low / c.gain, c.gain_high / c.gain))
             low.append(ends[0])
             high.append(ends[1])
@@ -71,8 +94,17 @@ class SpreadVariables:
                 absolute = getattr(item, "tolerance_abs", None)
                 if item.tolerance == 0 and not absolute:
                     continue
+                physical = getattr(item, "copy_of", None)
+                if physical is not None:
+                    if (group, physical) in leader_of:
+                        copies.append((group, physical, k))
+                        continue
+                    leader_of[(group, physical)] = len(names)
+                    names.append(physical)
+                else:
+                    names.append(item.ref)
                 if absolute:
-                    self.offset[len(names)] = absolute
+                    self.offset[len(names) - 1] = absolute
                     low.append(0.0)
                     high.append(2.0)
                     tol.append(1.0)
@@ -80,10 +112,12 @@ class SpreadVariables:
                     low.append(1 - item.tolerance)
                     high.append(1 + item.tolerance)
                     tol.append(item.tolerance)
-                names.append(item.ref)
                 drift.append(0.0)
                 tcr.append(0.0)
                 self.kind.append((group, k))
+        for group, physical, k in copies:
+            if (group, physical) in leader_of:
+                self.tied.append((group, k, leader_of[(group, physical)]))
         self.names = tuple(names)
         self.low, self.high = np.array(low), np.array(high)
         self.tolerance, self.drift = np.array(tol), np.array(drift)
@@ -95,7 +129,9 @@ class SpreadVariables:
 
     def column_of_part(self) -> dict[int, int]:
         """Variable column of each physical part that varies, by part column."""
-        return {k: c for c, (group, k) in enumerate(self.kind) if group == "part"}
+        out = {k: c for c, (group, k) in enumerate(self.kind) if group == "part"}
+        out.update({k: c for group, k, c in self.tied if group == "part"})
+        return out
 
     def apply(self, factors: np.ndarray, parts0: np.ndarray, src: SourceValues,
               base: np.ndarray | None = None
@@ -129,6 +165,13 @@ class SpreadVariables:
                   "setpoint": np.tile(src.setpoints, (m, 1)),
                   "gain": np.tile(gains, (m, 1))}
         for column, (group, k) in enumerate(self.kind):
+            if group == "part":
+                parts[:, k] *= factors[:, column]
+            elif column in self.offset:
+                values[group][:, k] += (factors[:, column] - 1.0) * self.offset[column]
+            else:
+                values[group][:, k] *= factors[:, column]
+        for group, k, column in self.tied:
             if group == "part":
                 parts[:, k] *= factors[:, column]
             elif column in self.offset:

@@ -6,7 +6,10 @@ from __future__ import annotations
 
 __all__ = [
     "EXACT_VARIABLES", "RANKING_VARIABLES", "WorstCase", "part_spread", "thevenin_peak",
+    "worst_point_parts",
 ]
+
+from dataclasses import replace
 
 import numpy as np
 
@@ -182,8 +185,11 @@ def part_spread(design: Design, ev: Evaluator, var: SpreadVariables,
     out = []
     column_of = var.column_of_part()
     owner = ev.part_resistor()
+    physical = {r.ref: r.part_refs for r in design.resistors if r.copy_of is None}
     for col, ref in enumerate(design.part_refs):
         resistor = design.resistors[int(owner[col])]
+        if resistor.copy_of is not None:  # an operating point's copy: the physical part's name
+            ref = physical[resistor.copy_of][resistor.part_refs.index(ref)]
         power = vertices.part_power[:, col]
         worst = float(np.max(power))
         bound = worst if bits is not None else np.inf
@@ -215,5 +221,18 @@ def part_spread(design: Design, ev: Evaluator, var: SpreadVariables,
             utilization=None if allowed is None else float(use_of(worst, allowed)),
             worst_voltage=float(np.max(volts[:, col])),
             allowed_voltage=None if allowance is None else allowance.voltage_v,
+            point=resistor.point,
         ))
     return out
+
+
+def worst_point_parts(spreads: list[PartSpread]) -> list[PartSpread]:
+    """Each physical part once: its figures at the point of its largest worst-case
+    dissipation, its worst voltage the largest over every point."""
+    kept: dict[str, PartSpread] = {}
+    highest_v: dict[str, float] = {}
+    for s in spreads:
+        highest_v[s.ref] = max(highest_v.get(s.ref, -np.inf), s.worst_voltage)
+        if s.ref not in kept or s.worst_power_bound > kept[s.ref].worst_power_bound:
+            kept[s.ref] = s
+    return [replace(s, worst_voltage=highest_v[ref]) for ref, s in kept.items()]
