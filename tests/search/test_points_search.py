@@ -25,7 +25,7 @@ def e12(low, high):
     return [v for v in values if low * (1 - 1e-9) <= v <= high * (1 + 1e-9)]
 
 
-def mapper_design(within=None, extra_point=None):
+def mapper_design(within=None, extra_point=None, package=None):
     goals = [("low", "0.1 V"), ("high", "3.2 V")]
     targets = [{"voltage": "out", "equals": goal, "at": name,
                 **({"within": within} if within else {})} for name, goal in goals]
@@ -38,6 +38,7 @@ def mapper_design(within=None, extra_point=None):
                     "value": "0 V"},
                    {"ref": "VREF", "kind": "voltage", "plus": "ref", "minus": "gnd",
                     "value": "3.3 V"}],
+        "design": {"package": package, "ambient": "140 C"} if package else {},
         "resistor": [{"ref": ref, "nodes": nodes, "choose": "E12", "range": ["1k", "100k"]}
                      for ref, nodes in (("R1", ["in", "out"]), ("R2", ["ref", "out"]),
                                         ("R3", ["out", "gnd"]))],
@@ -46,8 +47,9 @@ def mapper_design(within=None, extra_point=None):
     })
 
 
-def exhaustive_best(within=None):
-    """Every E12 triple in 1k..100k, out by superposition [HB-superposition]."""
+def exhaustive_best(within=None, allowed_w=None):
+    """Every E12 triple in 1k..100k, out by superposition [HB-superposition]; with
+    ``allowed_w`` every part's dissipation at both points at most that [HB-ohm]."""
     values = np.array(e12(1e3, 1e5))
     r1, r2, r3 = (g.ravel() for g in np.meshgrid(values, values, values, indexing="ij"))
 
@@ -59,6 +61,11 @@ def exhaustive_best(within=None):
     objective = np.maximum(err_low, err_high)
     if within is not None:
         objective = np.where((err_low <= within) & (err_high <= within), objective, np.inf)
+    if allowed_w is not None:
+        for vin in (-10.0, 10.0):
+            v = out(vin)
+            hottest = np.max([(vin - v) ** 2 / r1, (3.3 - v) ** 2 / r2, v ** 2 / r3], axis=0)
+            objective = np.where(hottest <= allowed_w * (1 + 1e-9), objective, np.inf)
     best = int(np.argmin(objective))
     return float(objective[best]), (r1[best], r2[best], r3[best]), len(values) ** 3
 
@@ -103,3 +110,17 @@ def test_every_free_part_takes_one_value_at_every_point():
                                     rel=1e-12)  # [HB-superposition]
     assert set(best.values) == {"R1", "R2", "R3"}
     assert not any("@" in ref for ref in itertools.chain(best.values, best.positions))
+
+
+def test_power_limits_at_every_point_match_the_exhaustive_search():
+    """0201 chips: 0.05 W at 70 °C [CP-chip-ratings], derated linearly to zero at 155 °C
+    [CP-derating], half of it allowed [CP-margin], at 140 °C."""
+    result = synthesize(mapper_design(package="0201"), top=1)
+    allowed = 0.05 * (155 - 140) / (155 - 70) * 0.5
+    best_objective, values, _ = exhaustive_best(allowed_w=allowed)
+    unlimited, _, _ = exhaustive_best()
+    assert best_objective > unlimited  # the limit binds
+    assert result.proven_optimal
+    best = result.candidates[0]
+    assert best.objective == pytest.approx(best_objective, rel=1e-9)
+    assert (best.values["R1"], best.values["R2"], best.values["R3"]) == pytest.approx(values)
