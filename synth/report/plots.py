@@ -51,22 +51,37 @@ def target_histogram(design: Design, spread: SpreadResult, target: int = 0, *,
                      ax: Axes | None = None) -> Figure:
     """A histogram of one target's Monte Carlo samples, its window and worst case marked.
 
-    The samples are those kept with ``SpreadSettings(keep_samples=True)``.
+    Drawn from the samples kept with ``SpreadSettings(keep_samples=True)`` (at most
+    ``kept_samples``, the first ones drawn: the legend says how many of how many), or
+    else from the streamed histogram of every sample (fixed bins over the worst-case
+    range; samples outside it are counted in the legend, not drawn).
 
     Raises
     ------
     DesignError
-        When the spread kept no samples of the target.
+        When the spread has no Monte Carlo samples of the target.
     """
     record = design.targets[target]
     t = spread.targets[target]
-    if t.mc_values is None:
+    if t.mc_values is None and t.mc_histogram is None:
         raise DesignError(f"target {t.label!r} has no Monte Carlo samples; analyse the spread "
-                          "with samples and keep_samples")
+                          "with samples")
     figure, axes = figure_for(ax)
-    values = t.mc_values[np.isfinite(t.mc_values)]
-    axes.hist(values, bins=60, facecolor="none", edgecolor="black", hatch="///",
-              label=f"Monte Carlo, {len(values):,} samples")
+    run = spread.samples_run or 0
+    if t.mc_values is not None:
+        values = t.mc_values[np.isfinite(t.mc_values)]
+        drawn = (f"{len(values):,} samples" if len(t.mc_values) >= run
+                 else f"first {len(values):,} of {run:,} samples")
+        axes.hist(values, bins=60, facecolor="none", edgecolor="black", hatch="///",
+                  label=f"Monte Carlo, {drawn}")
+    elif t.mc_histogram is not None:
+        h = t.mc_histogram
+        edges = np.linspace(h.low, h.high, len(h.counts) + 1)
+        outside = h.below + h.above + h.undefined
+        axes.stairs(np.asarray(h.counts), edges, fill=True, facecolor="none",
+                    edgecolor="black", hatch="///",
+                    label=f"Monte Carlo, {run:,} samples in {len(h.counts)} bins"
+                    + (f" ({outside:,} outside, not drawn)" if outside else ""))
     low, high = record.bounds
     for edge in (low, high):
         if np.isfinite(edge):
@@ -89,7 +104,8 @@ def target_histograms(design: Design, spread: SpreadResult,
                       stem: str = "spread") -> list[Picture]:
     """One histogram per target with samples, each named ``{stem}-{k}-{slug of its label}``."""
     return [(f"{stem}-{k}-{_slug(t.label)}", target_histogram(design, spread, k - 1))
-            for k, t in enumerate(spread.targets, 1) if t.mc_values is not None]
+            for k, t in enumerate(spread.targets, 1)
+            if t.mc_values is not None or t.mc_histogram is not None]
 
 
 def _cost(candidate: Candidate, cost: str) -> float:

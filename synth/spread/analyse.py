@@ -44,7 +44,14 @@ import numpy as np
 
 from synth.circuit.measure import Evaluator
 from synth.design.model import Design
-from synth.spread.monte_carlo import block_size, monte_carlo, sample_count, yield_interval
+from synth.spread.monte_carlo import (
+    ShardMap,
+    block_size,
+    monte_carlo,
+    sample_count,
+    shard_count,
+    yield_interval,
+)
 from synth.spread.records import PartSpread, SpreadResult, SpreadSettings, TargetSpread
 from synth.spread.variables import SpreadVariables, box_corners
 from synth.spread.worst_case import EXACT_VARIABLES, part_spread, worst_point_parts
@@ -53,7 +60,8 @@ from synth.spread.worst_case import EXACT_VARIABLES, part_spread, worst_point_pa
 def analyse_spread(design: Design, values: dict[str, float] | None = None,
                    settings: SpreadSettings | None = None,
                    evaluator: Evaluator | None = None, *,
-                   part_values: np.ndarray | None = None) -> SpreadResult:
+                   part_values: np.ndarray | None = None,
+                   map_shards: ShardMap | None = None) -> SpreadResult:
     """Worst case, root-sum-square and Monte Carlo spread of a design.
 
     Parameters
@@ -65,6 +73,12 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
     settings : SpreadSettings, optional
     evaluator : Evaluator, optional
         Reused when given.
+    part_values : numpy.ndarray, optional
+        ``(parts,)`` ohm of every physical part (derived from ``values`` by default).
+    map_shards : callable, optional
+        Runs the Monte Carlo shards, like ``map`` (the default); a process pool's ``map``
+        spreads them over processes with the same figures
+        (:func:`synth.spread.monte_carlo.monte_carlo`).
 
     Returns
     -------
@@ -173,16 +187,20 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
         parts = worst_point_parts(parts)
     yield_fraction = None
     interval = None
-    run = None
+    run = shards = None
+    kept = 0
     if settings.samples > 0:
         run = sample_count(ev, settings)
         targets, yield_fraction = monte_carlo(design, ev, var, parts0, src,
-                                              replace(settings, samples=run), targets)
+                                              replace(settings, samples=run), targets,
+                                              map_shards=map_shards)
         interval = yield_interval(round(yield_fraction * run), run)
+        shards = shard_count(run)
+        kept = len(targets[0].mc_values) if targets and targets[0].mc_values is not None else 0
     return SpreadResult(variables=var.names, targets=tuple(targets), parts=tuple(parts),
                         yield_fraction=yield_fraction, settings=settings,
                         temperature_c=design.temperature_c, yield_interval=interval,
-                        samples_run=run)
+                        samples_run=run, shards=shards, samples_kept=kept)
 
 
 def _with_power_peaks(design: Design, ev: Evaluator, targets: list[TargetSpread],

@@ -1,14 +1,16 @@
-"""Seeded Monte Carlo of tolerances, TCR and ambient, with yield.
+"""Seeded Monte Carlo of tolerances, TCR and ambient, with yield, in shards of streamed blocks.
 """
 
 from __future__ import annotations
 
 __all__ = [
-    "LEAST_SAMPLES", "YIELD_CONFIDENCE", "block_size", "monte_carlo", "sample_count",
-    "yield_interval",
+    "LEAST_SAMPLES", "SHARD_SIZE", "YIELD_CONFIDENCE", "ShardMap", "ShardWork", "block_size",
+    "monte_carlo", "run_shard", "sample_count", "shard_count", "shard_seed", "yield_interval",
 ]
 
-import math
+from collections.abc import Callable, Iterable
+from dataclasses import dataclass, replace
+from functools import partial
 
 import numpy as np
 
@@ -16,15 +18,19 @@ from synth.circuit.measure import Evaluator, SourceValues
 from synth.circuit.sparse import SPARSE_ABOVE
 from synth.design.model import Design
 from synth.rating import exceeds
-from synth.spread.records import SpreadSettings, TargetSpread
+from synth.spread.binomial import YIELD_CONFIDENCE, yield_interval
+from synth.spread.records import SampleHistogram, SpreadSettings, TargetSpread
+from synth.spread.tally import SampleTally, histogram_range
 from synth.spread.variables import REFERENCE_C, SpreadVariables, inside_windows
 
-YIELD_CONFIDENCE = 0.95
-"""Confidence level of the yield interval."""
+SHARD_SIZE = 1 << 16
+"""Samples per shard (the last one may be shorter).  Fixed, whatever runs the shards: shard
+``k`` draws rows ``k·SHARD_SIZE ..`` from its own seed, so a run gives the same figures
+however its shards are spread over processes."""
 
 _MC_BLOCK = 1 << 15
-"""Samples drawn and solved per block: arrays stay in cache; the random stream is drawn
-block by block in a fixed order, so a seed gives the same samples every time."""
+"""Samples drawn and solved per block within a shard: arrays stay in cache; a shard's random
+stream is drawn block by block in a fixed order, so a seed gives the same samples every time."""
 
 LEAST_SAMPLES = 1000
 """Fewest samples a cut leaves (the yield interval is then about ±3 % wide at most)."""
@@ -33,6 +39,10 @@ _MC_ENTRIES = 1 << 22
 """Samples per block times the columns of a sample's results (branches and parts): a large
 network takes smaller blocks (at least 256 samples) so that memory stays bounded (32 MiB
 per result array)."""
+
+ShardMap = Callable[[Callable[[int], SampleTally], Iterable[int]], Iterable[SampleTally]]
+"""A map-like callable running the shard work over shard numbers and giving the tallies back
+in the order of the numbers (``map``, or a process pool's ``map``)."""
 
 
 def sample_count(ev: Evaluator, settings: SpreadSettings) -> int:
@@ -51,28 +61,71 @@ def block_size(ev: Evaluator) -> int:
     return min(_MC_BLOCK, max(256, _MC_ENTRIES // max(columns, 1)))
 
 
-def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, parts0: np.ndarray,
-                src: SourceValues, settings: SpreadSettings, targets: list[TargetSpread]
-                ) -> tuple[list[TargetSpread], float]:
-    """Seeded Monte Carlo: each target's samples and the yield.
+def shard_count(samples: int) -> int:
+    """Shards of :data:`SHARD_SIZE` samples that ``samples`` takes."""
+    return -(-samples // SHARD_SIZE)
+
+
+def shard_seed(seed: int, shard: int) -> np.random.SeedSequence:
+    """The seed of shard ``shard``: ``numpy.random.SeedSequence(seed).spawn(n)[shard]``.
+
+    A spawned child is the parent's entropy with spawn key ``(shard,)``, whatever ``n``, so
+    any process builds it alone.
+
+    Examples
+    --------
+    >>> child = np.random.SeedSequence(1).spawn(5)[3]
+    >>> bool((shard_seed(1, 3).generate_state(4) == child.generate_state(4)).all())
+    True
+    """
+    return np.random.SeedSequence(seed, spawn_key=(shard,))
+
+
+@dataclass(frozen=True)
+class ShardWork:
+    """Everything a shard needs, picklable so that another process can run it.
+
+    Attributes
+    ----------
+    design : Design
+    evaluator : Evaluator
+    variables : SpreadVariables
+    parts0 : numpy.ndarray
+        ``(parts,)`` nominal ohm of every physical part.
+    sources : SourceValues
+        Nominal source values.
+    settings : SpreadSettings
+        ``samples`` is the number of samples the whole run takes.
+    ranges : tuple of (float, float) or None
+        Each target's histogram range.
+    """
+
+    design: Design
+    evaluator: Evaluator
+    variables: SpreadVariables
+    parts0: np.ndarray
+    sources: SourceValues
+    settings: SpreadSettings
+    ranges: tuple[tuple[float, float] | None, ...]
+
+
+def run_shard(work: ShardWork, shard: int) -> SampleTally:
+    """The tally of shard ``shard``: samples ``shard·SHARD_SIZE`` up to the next shard's first.
 
     Each physical part draws its own tolerance deviation and temperature
     coefficient; the ambient is drawn once per sample over the design's
-    temperature range.  Yield is the share of samples in which every target
-    lies in its window and every physical part stays within its allowance
-    (taken at the design's hottest ambient, as everywhere; see
-    :mod:`synth.rating`).
+    temperature range.  A sample passes when every target lies in its window
+    and every physical part stays within its allowance (taken at the design's
+    hottest ambient, as everywhere; see :mod:`synth.rating`).
     """
-    rng = np.random.default_rng(settings.seed)
-    total, n = settings.samples, len(var)
+    design, ev, var, settings = work.design, work.evaluator, work.variables, work.settings
+    rng = np.random.default_rng(shard_seed(settings.seed, shard))
+    first = shard * SHARD_SIZE
+    rows = max(0, min(SHARD_SIZE, settings.samples - first))
     low_c, high_c = design.temperature_c
-    tcr = var.tcr
     gain_columns = [c for c, (group, _) in enumerate(var.kind) if group == "gain"]
-    n_t = len(design.targets)
-    kept = np.empty((total, n_t)) if settings.keep_samples else None
-    stats = _Running(n_t)
-    inside_count = np.zeros(n_t, dtype=np.int64)
-    passed = 0
+    tally = SampleTally(list(work.ranges),
+                        keep=settings.kept_samples if settings.keep_samples else 0)
 
     def draw(m: int, width: np.ndarray) -> np.ndarray:
         if settings.distribution == "normal":
@@ -85,144 +138,82 @@ def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, parts0: np.
         return out
 
     block = block_size(ev)
-    for start in range(0, total, block):
-        m = min(block, total - start)
-        rows = slice(start, start + m)
+    for start in range(0, rows, block):
+        m = min(block, rows - start)
         temperature = (rng.uniform(low_c, high_c, m) if high_c > low_c
                        else np.full(m, low_c))
         factors = draw(m, var.tolerance)
         factors += 1.0
         for column in gain_columns:  # a gain range (a transistor's beta): uniform within it
             factors[:, column] = rng.uniform(var.low[column], var.high[column], m)
-        if n:
+        if len(var):
             # each part's temperature coefficient lies within its ±TCR (a normal spread
             # reads the TCR limit as 3σ, like a tolerance)
-            drift = draw(m, tcr)
+            drift = draw(m, var.tcr)
             drift *= (temperature - REFERENCE_C)[:, None]
             drift += 1.0
             factors *= drift
-        r, p, s = var.apply(factors, parts0, src)
+        r, p, s = var.apply(factors, work.parts0, work.sources)
         result = ev.evaluate(r, s, part_values=p)
-        if kept is not None:
-            kept[rows] = result.targets
-        stats.add(result.targets)
         inside = inside_windows(design, result.targets, result.target_noise)
-        inside_count += inside.sum(axis=0)
         good = inside.all(axis=1)
         good &= ~np.any(exceeds(result.part_power, ev.allowed_power)
                         | exceeds(result.part_voltage, ev.allowed_voltage), axis=1)
-        passed += int(good.sum())
-    updated = []
-    for j, t in enumerate(targets):
-        updated.append(TargetSpread(
-            **{**t.__dict__, "mc_mean": float(stats.mean[j]), "mc_std": float(stats.std[j]),
-               "mc_values": None if kept is None else kept[:, j],
-               "mc_min": float(stats.low[j]), "mc_max": float(stats.high[j]),
-               "inside": float(inside_count[j] / total)}))
-    return updated, passed / total
+        tally.add(result.targets, inside, good, first_row=first + start)
+    return tally
 
 
-class _Running:
-    """Count, mean, variance and extremes per column, merged block by block.
+def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, parts0: np.ndarray,
+                src: SourceValues, settings: SpreadSettings, targets: list[TargetSpread],
+                map_shards: ShardMap | None = None
+                ) -> tuple[list[TargetSpread], float]:
+    """Seeded Monte Carlo: each target's statistics and histogram, and the yield.
 
-    Chan, Golub and LeVeque's pairwise update of the mean and the sum of squared
-    deviations, so that memory stays bounded and large offsets do not cancel.
-    """
+    Parameters
+    ----------
+    design, ev, var, parts0, src
+        The design, its evaluator, varying quantities, nominal parts (ohm) and sources.
+    settings : SpreadSettings
+        ``samples`` samples are run.
+    targets : list of TargetSpread
+        The worst case of each target (it fixes the histogram ranges).
+    map_shards : callable, optional
+        Runs :func:`run_shard` over the shard numbers, like ``map`` (the default), and
+        gives the tallies back in shard order: a process pool's ``map`` runs them
+        elsewhere.  The figures do not depend on it.
 
-    def __init__(self, columns: int):
-        self.count = 0
-        self.mean = np.zeros(columns)
-        self.m2 = np.zeros(columns)
-        self.low = np.full(columns, np.inf)
-        self.high = np.full(columns, -np.inf)
-
-    def add(self, block: np.ndarray) -> None:
-        m = len(block)
-        if m == 0:
-            return
-        with np.errstate(invalid="ignore"):
-            block_mean = block.mean(axis=0)
-            block_m2 = ((block - block_mean) ** 2).sum(axis=0)
-            total = self.count + m
-            delta = block_mean - self.mean
-            self.mean = self.mean + delta * (m / total)
-            self.m2 = self.m2 + block_m2 + delta ** 2 * (self.count * m / total)
-        self.count = total
-        self.low = np.fmin(self.low, block.min(axis=0))
-        self.high = np.fmax(self.high, block.max(axis=0))
-
-    @property
-    def std(self) -> np.ndarray:
-        """Population standard deviation (as numpy.std)."""
-        return np.sqrt(self.m2 / max(self.count, 1))
-
-
-def yield_interval(passed: int, samples: int, confidence: float = YIELD_CONFIDENCE
-                   ) -> tuple[float, float]:
-    """Clopper–Pearson interval of a yield from ``passed`` of ``samples``, fractions.
-
-    Examples
-    --------
-    >>> low, high = yield_interval(50, 100)
-    >>> round(low, 4), round(high, 4)
-    (0.3983, 0.6017)
+    Returns
+    -------
+    targets : list of TargetSpread
+        With ``mc_*``, ``inside`` and ``mc_histogram`` filled in.
+    yield_fraction : float
 
     Notes
     -----
-    The exact binomial interval (Clopper & Pearson, Biometrika 26, 1934): its
-    ends are quantiles of beta distributions, B(α/2; k, n-k+1) and
-    B(1-α/2; k+1, n-k), found here by bisection on the regularized incomplete
-    beta function (its continued fraction, evaluated by Lentz's method).  The
-    tests check it against scipy.stats.beta.
+    The run is split into :func:`shard_count` shards of :data:`SHARD_SIZE` samples;
+    shard ``k`` draws from ``SeedSequence(seed).spawn(n)[k]`` and the tallies are merged
+    in shard order, so a run gives the same figures whichever order or process computes
+    its shards.
     """
-    alpha = 1 - confidence
-    low = 0.0 if passed == 0 else _beta_quantile(alpha / 2, passed, samples - passed + 1)
-    high = (1.0 if passed == samples
-            else _beta_quantile(1 - alpha / 2, passed + 1, samples - passed))
-    return low, high
-
-
-def _beta_quantile(q: float, a: float, b: float) -> float:
-    """x with I_x(a, b) = q, by bisection (I is increasing in x)."""
-    low, high = 0.0, 1.0
-    for _ in range(200):
-        middle = 0.5 * (low + high)
-        if _incomplete_beta(middle, a, b) < q:
-            low = middle
-        else:
-            high = middle
-        if high - low < 1e-15 * max(middle, 1e-300):
-            break
-    return 0.5 * (low + high)
-
-
-def _incomplete_beta(x: float, a: float, b: float) -> float:
-    """The regularized incomplete beta function I_x(a, b)."""
-    if x <= 0.0:
-        return 0.0
-    if x >= 1.0:
-        return 1.0
-    log_front = (math.lgamma(a + b) - math.lgamma(a) - math.lgamma(b)
-                 + a * math.log(x) + b * math.log1p(-x))
-    if x < (a + 1) / (a + b + 2):
-        return math.exp(log_front) * _beta_fraction(x, a, b) / a
-    return 1.0 - math.exp(log_front) * _beta_fraction(1 - x, b, a) / b
-
-
-def _beta_fraction(x: float, a: float, b: float) -> float:
-    """The continued fraction of the incomplete beta function (modified Lentz)."""
-    tiny = 1e-300
-    c, d = 1.0, 1.0 - (a + b) * x / (a + 1)
-    d = 1.0 / (d if abs(d) > tiny else tiny)
-    value = d
-    for m in range(1, 10_000):
-        for numerator in (m * (b - m) * x / ((a + 2 * m - 1) * (a + 2 * m)),
-                          -(a + m) * (a + b + m) * x / ((a + 2 * m) * (a + 2 * m + 1))):
-            d = 1.0 + numerator * d
-            d = 1.0 / (d if abs(d) > tiny else tiny)
-            c = 1.0 + numerator / c
-            c = c if abs(c) > tiny else tiny
-            value *= c * d
-        if abs(c * d - 1.0) < 1e-15:
-            break
-    return value
+    total = settings.samples
+    work = ShardWork(design, ev, var, np.asarray(parts0, dtype=float), src, settings,
+                     tuple(histogram_range(t.nominal, t.worst_low, t.worst_high)
+                           for t in targets))
+    runner: ShardMap = map if map_shards is None else map_shards
+    tally = SampleTally(list(work.ranges),
+                        keep=settings.kept_samples if settings.keep_samples else 0)
+    for part in runner(partial(run_shard, work), range(shard_count(total))):
+        tally.merge(part)
+    updated = []
+    for j, t in enumerate(targets):
+        bounds = work.ranges[j]
+        histogram = None if bounds is None else SampleHistogram(
+            bounds[0], bounds[1], tuple(int(c) for c in tally.histogram[j]),
+            below=int(tally.below[j]), above=int(tally.above[j]),
+            undefined=int(tally.undefined[j]))
+        updated.append(replace(
+            t, mc_mean=float(tally.mean[j]), mc_std=float(tally.std[j]),
+            mc_values=tally.kept[:, j] if settings.keep_samples else None,
+            mc_min=float(tally.low[j]), mc_max=float(tally.high[j]),
+            inside=float(tally.inside[j] / total), mc_histogram=histogram))
+    return updated, tally.passed / total

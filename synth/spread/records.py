@@ -3,7 +3,7 @@
 
 from __future__ import annotations
 
-__all__ = ["PartSpread", "SpreadResult", "SpreadSettings", "TargetSpread"]
+__all__ = ["PartSpread", "SampleHistogram", "SpreadResult", "SpreadSettings", "TargetSpread"]
 
 from dataclasses import dataclass, field
 
@@ -23,22 +23,91 @@ class SpreadSettings:
     seed : int
         Seed of the random generator (results repeat for the same seed).
     keep_samples : bool
-        Keep every target's samples (``TargetSpread.mc_values``, for plots and
-        notebooks); without them memory stays bounded at any sample count, as
-        the statistics and the yield are accumulated block by block.
+        Keep each target's first samples (``TargetSpread.mc_values``, for plots
+        and notebooks), at most ``kept_samples`` of them.  Off by default: the
+        statistics, histograms and the yield are accumulated block by block, so
+        memory stays bounded at any sample count.
     sample_budget : int
         On a network of more than :data:`synth.circuit.sparse.SPARSE_ABOVE`
         resistors (each sample a sparse solve of the whole network), the most
         samples times resistors the Monte Carlo runs: a larger ``samples`` is
         cut to ``sample_budget // resistors`` (at least 1,000), and
-        :attr:`SpreadResult.samples_run` and the reports say so.
+        :attr:`SpreadResult.samples_run` and the reports say so.  The budget
+        bounds the time of a run; memory is bounded at any sample count.
+    kept_samples : int
+        The most samples kept per target with ``keep_samples`` (the first ones
+        drawn, in the run's order).
     """
 
     samples: int = 100_000
     distribution: str = "uniform"
     seed: int = 1
-    keep_samples: bool = True
+    keep_samples: bool = False
     sample_budget: int = 10_000_000
+    kept_samples: int = 100_000
+
+
+@dataclass(frozen=True)
+class SampleHistogram:
+    """Counts of one target's Monte Carlo samples in equal bins over a range fixed beforehand.
+
+    Attributes
+    ----------
+    low, high : float
+        The range, in the target's unit: the worst-case span, 2 % wider at each end.
+    counts : tuple of int
+        Samples in each equal bin, ``[edge_k, edge_k+1)`` (the last one closed).
+    below, above : int
+        Samples under ``low`` and over ``high`` (possible when the worst case is not exact).
+    undefined : int
+        Samples where the target is not defined (NaN).
+    """
+
+    low: float
+    high: float
+    counts: tuple[int, ...]
+    below: int = 0
+    above: int = 0
+    undefined: int = 0
+
+    @property
+    def bin_width(self) -> float:
+        """Width of one bin, in the target's unit."""
+        return (self.high - self.low) / len(self.counts)
+
+    @property
+    def defined(self) -> int:
+        """Samples with a value (binned, below or above)."""
+        return sum(self.counts) + self.below + self.above
+
+    def quantile(self, p: float) -> float | None:
+        """The ``p``-quantile of the samples, within one bin width; None outside the range.
+
+        Examples
+        --------
+        >>> h = SampleHistogram(0.0, 4.0, (1, 1, 1, 1))
+        >>> h.quantile(0.5), h.quantile(0.25), h.quantile(1.0)
+        (2.0, 1.0, 4.0)
+
+        Notes
+        -----
+        The rank ``r = p · n`` of the ``n`` defined samples falls in the bin ``k`` where
+        the cumulative count first reaches it; the estimate interpolates linearly within
+        that bin.  The sample of rank ``⌈r⌉`` (the empirical quantile) lies in the same
+        bin, so the two differ by at most one bin width.  None when that rank falls
+        among the samples below or above the range, or when no sample is defined.
+        """
+        n = self.defined
+        rank = p * n
+        if n == 0 or (self.below and rank <= self.below):
+            return None
+        cumulative = self.below + np.cumsum(self.counts)
+        k = int(np.searchsorted(cumulative, rank, side="left"))
+        if k >= len(self.counts):
+            return None
+        before = cumulative[k] - self.counts[k]
+        share = (rank - before) / self.counts[k] if self.counts[k] else 0.0
+        return float(self.low + (k + share) * self.bin_width)
 
 
 @dataclass(frozen=True)
@@ -91,6 +160,9 @@ class TargetSpread:
         The largest noise floor of the target's value over the nominal point
         and the vertices solved (:attr:`synth.circuit.measure.Evaluation.target_noise`):
         the worst case meets a window edge within it.
+    mc_histogram : SampleHistogram or None
+        Every Monte Carlo sample's count in fixed bins (None without samples), from which
+        quantiles are read within one bin width.
     """
 
     label: str
@@ -113,6 +185,7 @@ class TargetSpread:
     rss_terms: dict[str, tuple[float, float]] = field(default_factory=dict)
     noise: float = 0.0
     method: str = "vertices"
+    mc_histogram: SampleHistogram | None = None
 
     def variance_shares(self) -> dict[str, float]:
         """Each varying quantity's share of the root-sum-square variance (they add up to 1).
@@ -208,6 +281,12 @@ class SpreadResult:
         ``"time limit"`` when a time limit shortened the Monte Carlo to
         ``samples_run`` (``settings.samples`` stays the count asked for); None
         otherwise.
+    shards : int or None
+        Seeded shards of :data:`synth.spread.monte_carlo.SHARD_SIZE` samples the
+        run was split into (None without Monte Carlo).
+    samples_kept : int
+        Samples kept per target (``TargetSpread.mc_values``): 0 unless
+        ``settings.keep_samples``.
     """
 
     variables: tuple[str, ...]
@@ -219,6 +298,8 @@ class SpreadResult:
     yield_interval: tuple[float, float] | None = None
     samples_run: int | None = None
     samples_cut: str | None = None
+    shards: int | None = None
+    samples_kept: int = 0
 
     @property
     def worst_error(self) -> float:

@@ -56,15 +56,18 @@ def test_divider_worst_case_sensitivities_and_rss():
     ("uniform", 1 / math.sqrt(3)), ("normal", 1 / 3)])
 def test_monte_carlo_converges_to_first_order_values(distribution, sigma_of_tolerance):
     n = 200_000
-    s = analyse_spread(divider(), settings=SpreadSettings(samples=n, distribution=distribution,
-                                                          seed=7)).targets[0]
+    settings = SpreadSettings(samples=n, distribution=distribution, seed=7, keep_samples=True,
+                              kept_samples=n)
+    s = analyse_spread(divider(), settings=settings).targets[0]
     sigma = 5.0 * 0.5 * math.sqrt(2) * 0.01 * sigma_of_tolerance  # first order: σ = |S|σ_x
     assert abs(s.mc_mean - 5.0) < 4 * sigma / math.sqrt(n) + 1e-5
     assert s.mc_std == pytest.approx(sigma, rel=4 / math.sqrt(2 * n) + 0.005)
     assert len(s.mc_values) == n
-    again = analyse_spread(divider(), settings=SpreadSettings(samples=n, distribution=distribution,
-                                                              seed=7)).targets[0]
+    again = analyse_spread(divider(), settings=settings).targets[0]
     np.testing.assert_array_equal(s.mc_values, again.mc_values)  # seeded: repeatable
+    # the streamed mean and σ are those of the very samples [LIB-numpy-mean-std]
+    assert s.mc_mean == pytest.approx(np.mean(s.mc_values), rel=1e-12)
+    assert s.mc_std == pytest.approx(np.std(s.mc_values), rel=1e-9)
 
 
 def test_yield_of_a_known_case():
@@ -115,7 +118,7 @@ def test_temperature_coefficient_moves_resistance_by_tcr_times_delta_t():
                       "tcr": "100 ppm/C"}],
         "target": [{"current": "R1", "equals": "1 mA"}],
     })
-    spread = analyse_spread(design, settings=SpreadSettings(samples=50_000))
+    spread = analyse_spread(design, settings=SpreadSettings(samples=50_000, keep_samples=True))
     t = spread.targets[0]
     assert t.worst_low == pytest.approx(1 / (1000 * (1 + 100e-6 * 100)), rel=1e-12)
     assert t.worst_high == pytest.approx(1 / (1000 * (1 - 100e-6 * 100)), rel=1e-12)

@@ -1,4 +1,5 @@
-"""Each quantity's share of a target's root-sum-square variance.
+"""Spread records: each quantity's share of a target's root-sum-square variance, and
+quantiles read from a streamed histogram.
 
 By the law of propagation of uncertainty [GUM-propagation] (the RSS formula of
 [HB-wca]) the variance of the output is the sum of the squared sensitivity-weighted
@@ -11,11 +12,12 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
 import pytest
 
 from synth.design.reader import design_from_dict
 from synth.spread.analyse import analyse_spread
-from synth.spread.records import SpreadSettings, TargetSpread
+from synth.spread.records import SampleHistogram, SpreadSettings, TargetSpread
 
 
 def divider(r1="30k", r2="10k", tcr="0 ppm/C", source_tolerance="1%"):
@@ -71,3 +73,22 @@ def test_nothing_varies_nothing_is_shared():
         "target": [{"current": "R1", "equals": "10 mA"}]})
     target = spread_of(design)
     assert target.rss_terms == {} and target.variance_shares() == {}
+
+
+def test_a_histogram_quantile_lies_within_one_bin_of_numpy_quantile():
+    # the streamed histogram's quantile against numpy.quantile of the very samples
+    # [LIB-numpy-quantile] [LIB-numpy-histogram]
+    rng = np.random.default_rng(8)
+    values = rng.normal(5.0, 0.02, 20_000)
+    counts, _ = np.histogram(values, bins=64, range=(4.9, 5.1))
+    below, above = int((values < 4.9).sum()), int((values > 5.1).sum())
+    h = SampleHistogram(4.9, 5.1, tuple(int(c) for c in counts), below=below, above=above,
+                        undefined=3)
+    assert h.defined == 20_000 and h.bin_width == pytest.approx(0.2 / 64)
+    for p in (0.001, 0.01, 0.05, 0.25, 0.5, 0.75, 0.95, 0.99, 0.999):
+        assert abs(h.quantile(p) - np.quantile(values, p)) <= h.bin_width
+    # a rank among the samples outside the range has no estimate
+    tails = SampleHistogram(4.99, 5.01, (10, 10), below=5, above=5)
+    assert tails.quantile(0.1) is None and tails.quantile(0.95) is None
+    assert tails.quantile(0.5) == pytest.approx(5.0)
+    assert SampleHistogram(0.0, 1.0, (0, 0), undefined=4).quantile(0.5) is None

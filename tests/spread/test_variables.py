@@ -29,7 +29,8 @@ def divider(sources, goal):
 def test_voltage_toleranced_in_volts():
     design = divider([{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
                        "value": "10 V", "tolerance": "0.1 V"}], {"equals": "5 V"})
-    spread = analyse_spread(design, settings=SpreadSettings(samples=4000, seed=1))
+    settings = SpreadSettings(samples=4000, seed=1, keep_samples=True)
+    spread = analyse_spread(design, settings=settings)
     t = spread.targets[0]
     assert spread.variables == ("V1",)
     assert (t.worst_low, t.worst_high) == pytest.approx((4.95, 5.05), rel=1e-12)
@@ -45,7 +46,8 @@ def test_leakage_around_zero_amperes():
                       {"ref": "ILEAK", "kind": "current", "from": "gnd", "to": "out",
                        "value": "0 A", "tolerance": "10 uA"}],
                      {"equals": "0 V", "within": "60 mV"})
-    spread = analyse_spread(design, settings=SpreadSettings(samples=4000, seed=1))
+    settings = SpreadSettings(samples=4000, seed=1, keep_samples=True)
+    spread = analyse_spread(design, settings=settings)
     t = spread.targets[0]
     assert spread.variables == ("ILEAK",)
     assert t.nominal == pytest.approx(0.0, abs=1e-15)
