@@ -334,6 +334,11 @@ class Evaluator:
                     out[:, k] = i_scale
                 elif target.kind == "power":
                     out[:, k] = p_scale
+                elif target.kind in ("gain", "offset"):
+                    _, _, in_a, in_b = self.transfer_terms(target, sol)
+                    span = np.abs(in_b - in_a)
+                    out[:, k] = (2 * v_scale / span if target.kind == "gain"
+                                 else v_scale * (1 + 2 * np.abs(in_a) / span))
                 elif target.kind in ("ratio", "loss"):
                     a, b, c, d = target.nodes
                     num = np.abs(v[:, idx[a]] - v[:, idx[b]])
@@ -378,6 +383,11 @@ class Evaluator:
                     return ratio  # type: ignore[no-any-return]  # numpy types this array expression as Any
                 # loss in dB, -20 log10 of the voltage ratio (NaN where the ratio is not positive)
                 return -20.0 * np.log10(np.where(ratio > 0, ratio, np.nan))
+        if target.kind in ("gain", "offset"):
+            out_a, out_b, in_a, in_b = self.transfer_terms(target, sol)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                gain = (out_b - out_a) / (in_b - in_a)
+                return gain if target.kind == "gain" else out_a - gain * in_a  # type: ignore[no-any-return]  # numpy types this array expression as Any
         if target.kind == "current":
             return sol.branch_currents[:, self.branch_index[target.ref or ""]]
         if target.kind == "power":
@@ -387,6 +397,27 @@ class Evaluator:
             reduced, keep = self._reduced(target.without)
             return reduced.seen_resistance(r[:, keep], a, b, gains)
         return self.seen_resistance(r, a, b, gains)
+
+    def transfer_terms(self, target: Target, sol: MeshSolution
+                       ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+        """Output and input at each of a transfer's two points, ``(N,)`` each.
+
+        Outputs are node-pair voltages (V); inputs node-pair voltages or, for
+        a current-source input, the source's current (A).
+        """
+        v = sol.node_voltages
+        idx = self.node_index
+        n = target.nodes
+
+        def pair(k: int) -> np.ndarray:
+            return v[:, idx[n[k]]] - v[:, idx[n[k + 1]]]  # type: ignore[no-any-return]  # numpy types this array expression as Any
+
+        if target.input_refs:
+            first, second = (sol.branch_currents[:, self.branch_index[ref]]
+                             for ref in target.input_refs)
+        else:
+            first, second = pair(4), pair(6)
+        return pair(0), pair(2), first, second
 
     def _reduced(self, without: tuple[str, ...]) -> tuple[Evaluator, np.ndarray]:
         """An evaluator of the network with the positions ``without`` opened (left out)."""

@@ -16,6 +16,7 @@ __all__ = ["design_from_dict"]
 
 import warnings
 from collections.abc import Mapping
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
@@ -34,6 +35,8 @@ from synth.design.model import REQUIREMENTS, Design, Regulator, Source
 from synth.design.points import expand_points
 from synth.design.read_point import read_points, source_range
 from synth.design.read_resistor import read_resistor
+from synth.design.read_transfer import read_transfer
+from synth.design.transfer import transfer_targets
 from synth.design.read_target import read_target
 from synth.errors import DesignError, name_list, nearest_name
 from synth.inputs import present, require_suffix
@@ -44,7 +47,7 @@ from synth.units import (
 )
 
 _TOP_KEYS = ("design", "source", "resistor", "regulator", "controlled", "transistor",
-             "amplifier", "target", "point")
+             "amplifier", "target", "point", "transfer")
 
 
 _DESIGN_KEYS = (
@@ -282,8 +285,20 @@ def _design(data: Mapping[str, Any], origin: str) -> Design:
     )
     check_references(design)
     points, base_names = read_points(origin, data, design.sources, ranges)
+    transfers = table_array(origin, data, "transfer")
     if points:
-        return expand_points(design, points, base_names=base_names)
+        expanded = expand_points(design, points, base_names=base_names)
+        added = tuple(target for i, raw in enumerate(transfers, 1)
+                      for target in transfer_targets(expanded,
+                                                     read_transfer(origin, i, raw, expanded)))
+        if not added:
+            return expanded
+        expanded = replace(expanded, targets=expanded.targets + added)
+        check_references(expanded)
+        return expanded
+    if transfers:
+        raise DesignError(f"{origin}: a [[transfer]] runs between two operating points, and the "
+                          "design has none; add [[point]] tables or a source range")
     for target in design.targets:
         if target.at is not None:
             raise DesignError(f"{origin}, target {target.label!r}: at names point "

@@ -51,6 +51,17 @@ class Target:
     point : str or None
         In a design of operating points: the point this copy of the target
         is measured at (its label ends ``" @ point"``); None otherwise.
+    input_refs : tuple of str
+        For a ``gain`` or ``offset`` (:mod:`synth.design.transfer`) whose input
+        is a current source: its copies at the two points (their currents are
+        the input); empty otherwise.
+
+    Notes
+    -----
+    A ``gain`` or ``offset`` target (:data:`synth.design.transfer.TRANSFER_KINDS`)
+    measures ``output = gain × input + offset`` through two operating points:
+    ``nodes`` holds the output's node pair at each point, then (for a
+    voltage input) the input's node pair at each point.
     """
 
     label: str
@@ -66,6 +77,7 @@ class Target:
     without: tuple[str, ...] = ()
     at: tuple[str, ...] | None = None
     point: str | None = None
+    input_refs: tuple[str, ...] = ()
 
     @property
     def bounds(self) -> tuple[float, float]:

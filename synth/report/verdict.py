@@ -27,8 +27,16 @@ def error_text(target: TargetReport) -> str:
     if target.relative:
         if abs(target.error) < NOISE_FRACTION:
             return "0%"  # float noise of an exact result is not data
+        if target.kind in ("gain", "offset") and target.goal is not None:
+            # a transfer's gain and offset errors in their own units as well
+            return (f"{target.error * 100:+.3g}%, "
+                    f"{_signed(format_eng(target.value - target.goal, target.unit, 4))}")
         return f"{target.error * 100:+.3g}%"
     return format_eng(target.error, target.unit, 4) if target.unit else f"{target.error:+.4g}"
+
+
+def _signed(text: str) -> str:
+    return text if text.startswith(("-", "+")) else f"+{text}"
 
 
 def basis_text(result: SynthesisResult) -> str:

@@ -64,6 +64,17 @@ class SearchProblem:
         node = evaluator.node_index
         self.ratio_den = {k: (node[t.nodes[2]], node[t.nodes[3]])
                           for k, t in enumerate(targets) if t.kind in ("ratio", "loss")}
+        # a gain or offset between points whose fixed parts differ (a sensor) is a sum of
+        # two linear-fractional terms over different denominators: not vertex-bounded
+        settings = {p.name: dict(p.resistors) for p in design.points}
+        self.unbounded = np.array(
+            [k for k, t in enumerate(targets) if t.kind in ("gain", "offset")
+             and t.at is not None and settings.get(t.at[0]) != settings.get(t.at[-1])],
+            dtype=int)
+        # a gain with a voltage of the network as input is a ratio of two differences
+        self.gain_den = {k: tuple(node[n] for n in t.nodes[4:8])
+                         for k, t in enumerate(targets)
+                         if t.kind in ("gain", "offset") and len(t.nodes) == 8}
         self.power_of = {k: evaluator.resistor_index[t.ref or ""]
                          for k, t in enumerate(targets) if t.kind == "power"}
         # without part limits (to find what a limit costs) every part is unrated here
@@ -211,6 +222,8 @@ class SearchProblem:
             return v.min(axis=1), v.max(axis=1)
 
         t_lo, t_hi = span(ev.targets)
+        if len(self.unbounded):
+            t_lo[:, self.unbounded], t_hi[:, self.unbounded] = -np.inf, np.inf
         _, noise = span(ev.target_noise)  # the largest floor of any vertex
         current = ev.solution.branch_currents[:, : self.n_r]
         i_lo, i_hi = span(current)
@@ -226,6 +239,9 @@ class SearchProblem:
             valid &= np.all(d > 0, axis=1) | np.all(d < 0, axis=1)
         for c, d_ in self.ratio_den.values():
             den = (node_v[:, c] - node_v[:, d_]).reshape(shape)
+            valid &= np.all(den > 0, axis=1) | np.all(den < 0, axis=1)
+        for a_, b_, c, d_ in self.gain_den.values():
+            den = (node_v[:, c] - node_v[:, d_] - node_v[:, a_] + node_v[:, b_]).reshape(shape)
             valid &= np.all(den > 0, axis=1) | np.all(den < 0, axis=1)
         # resistance span of each resistor over the box
         r_lo = np.broadcast_to(self.base, (n_box, self.n_r)).copy()
