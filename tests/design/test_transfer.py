@@ -104,9 +104,9 @@ def test_the_search_on_gain_and_offset_matches_an_exhaustive_search():
 def test_a_sensor_between_the_points_keeps_the_search_exact():
     """R3 differs between the points: the gain has two denominators and is not vertex-bounded;
     the search must still find the exhaustive best [CALC-exhaustive]."""
-    points = [{"name": "a", "sources": {"VIN": "-10 V"}, "resistors": {"R3": "10k"}},
-              {"name": "b", "sources": {"VIN": "10 V"}, "resistors": {"R3": "20k"}}]
-    data = mapper({"input": "VIN", "output": "out", "points": ["a", "b"], "gain": 0.21},
+    points = [{"name": "a", "sources": {"VIN": "-1.88 V"}, "resistors": {"R3": "3k"}},
+              {"name": "b", "sources": {"VIN": "-0.77 V"}, "resistors": {"R3": "100k"}}]
+    data = mapper({"input": "VIN", "output": "out", "points": ["a", "b"], "gain": 0.1138},
                   points=points)
     for item in data["resistor"][:2]:
         item.pop("value")
@@ -120,10 +120,10 @@ def test_a_sensor_between_the_points_keeps_the_search_exact():
     def out(vin, r3):
         return (vin / r1 + 3.3 / r2) / (1 / r1 + 1 / r2 + 1 / r3)  # [HB-superposition]
 
-    gain = (out(10.0, 20e3) - out(-10.0, 10e3)) / 20.0
+    gain = (out(-0.77, 100e3) - out(-1.88, 3e3)) / (-0.77 + 1.88)
     assert result.proven_optimal
     assert result.candidates[0].objective == pytest.approx(
-        np.min(np.abs(gain - 0.21) / 0.21), rel=1e-9)
+        np.min(np.abs(gain - 0.1138) / 0.1138), rel=1e-9)
 
 
 @pytest.mark.parametrize("transfer, fragment", [
