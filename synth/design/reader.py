@@ -35,9 +35,9 @@ from synth.design.model import REQUIREMENTS, Design, Regulator, Source
 from synth.design.points import expand_points
 from synth.design.read_point import read_points, source_range
 from synth.design.read_resistor import read_resistor
+from synth.design.read_target import read_target
 from synth.design.read_transfer import read_transfer
 from synth.design.transfer import transfer_targets
-from synth.design.read_target import read_target
 from synth.errors import DesignError, name_list, nearest_name
 from synth.inputs import present, require_suffix
 from synth.units import (

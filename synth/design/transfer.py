@@ -152,11 +152,11 @@ def transfer_targets(design: Design, transfer: Transfer) -> tuple[Target, ...]:
                               "exactly); give windows on the ends or on the gain")
     targets: list[Target] = []
     if transfer.ends is not None:
-        for point, goal in zip((a, b), transfer.ends, strict=True):
+        for point, end in zip((a, b), transfer.ends, strict=True):
             targets.append(Target(
                 label=point_label(f"{transfer.name} output", point), kind="voltage",
                 nodes=tuple(_node(n, point, ground) for n in transfer.output), ref=None,
-                equals=goal, within_abs=transfer.ends_within,
+                equals=end, within_abs=transfer.ends_within,
                 within_rel=transfer.ends_within_rel, at_least=None, at_most=None, unit="V",
                 point=point))
     for kind, goal, within, within_rel, kind_unit in (

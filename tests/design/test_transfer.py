@@ -80,7 +80,7 @@ def test_a_loop_current_gain_is_in_volts_per_ampere():
 
 def test_a_node_as_input_measures_the_gain_between_two_voltages():
     design = design_from_dict(mapper({"input": "in", "output": "out", "gain": 0.5}))
-    gain = [t for t in check(design).targets if t.label == "transfer 1 gain"][0]
+    gain = next(t for t in check(design).targets if t.label == "transfer 1 gain")
     g1, g2, g3 = 1 / 10e3, 1 / 20e3, 1 / 30e3
     assert gain.value == pytest.approx(g1 / (g1 + g2 + g3), rel=1e-12)  # [HB-superposition]
 
