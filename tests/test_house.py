@@ -20,6 +20,7 @@ LAYERS = (
     ("report",),
     ("templates",),
     ("bom",),
+    ("sweep",),
     ("checking", "synthesis", "front"),
     ("binding",),
     ("results", "cautions"),
@@ -30,7 +31,7 @@ LAYERS = (
     ("rating",),
     ("sensors",),
     ("catalog",),
-    ("units", "inputs", "digest"),
+    ("units", "inputs", "digest", "cluster"),
     ("errors", "schemas", "deadline"),
 )
 """Each module's layer is named by its first dotted part below ``synth``."""

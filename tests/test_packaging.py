@@ -69,3 +69,11 @@ def test_ci_runs_the_readme_test_command():
     for gate in ("ruff check synth tests benchmarks", "mypy --strict synth",
                  "--cov=synth --cov-branch", "--cov-fail-under="):
         assert gate in script
+
+
+def test_the_cluster_extra_is_in_the_test_extra():
+    # the suite's cluster test runs in CI only when the test extra brings Dask distributed
+    extras = PYPROJECT["project"]["optional-dependencies"]
+    names = {re.split(r"[<>=!~ ]", spec)[0] for spec in extras["test"]}
+    assert [re.split(r"[<>=!~ ]", spec)[0] for spec in extras["cluster"]] == ["distributed"]
+    assert "distributed" in names and set(extras["cluster"]) <= set(extras["test"])

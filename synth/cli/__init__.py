@@ -12,9 +12,10 @@ from __future__ import annotations
 
 __all__ = ["cli", "main"]
 
-# imported for their effect: they register the quick commands and report
+# imported for their effect: they register the quick commands, report and sweep
 import synth.cli.quick
-import synth.cli.report  # noqa: F401
+import synth.cli.report
+import synth.cli.sweep  # noqa: F401
 from synth.cli.commands import cli
 
 

@@ -1,4 +1,5 @@
-"""JSON Schemas of the JSON documents rnsynth writes: ``check``, ``design`` and ``bom``."""
+"""JSON Schemas of the JSON documents rnsynth writes: ``check``, ``design``, ``bom`` and
+``sweep``."""
 
 from __future__ import annotations
 
@@ -8,7 +9,7 @@ from pathlib import Path
 
 
 def schema_path(name: str) -> Path:
-    """The schema file of one output (``"check"``, ``"design"`` or ``"bom"``).
+    """The schema file of one output (``"check"``, ``"design"``, ``"bom"`` or ``"sweep"``).
 
     Examples
     --------
