@@ -48,7 +48,7 @@ MAX_POINTS = 10_000
 SPACINGS = ("linear", "log")
 
 _ARRAYS = {"source": "ref", "resistor": "ref", "regulator": "ref", "controlled": "ref",
-           "transistor": "ref", "amplifier": "ref", "target": "name"}
+           "transistor": "ref", "amplifier": "ref", "target": "name", "point": "name"}
 """The design file's arrays of tables, and the key that names an item of each."""
 
 _TABLES = ("design", *_ARRAYS)
@@ -224,7 +224,8 @@ def _item(tables: Mapping[str, Any], design: Design, key: str, table: str, name:
     names = [str(item.get(naming, "")) if isinstance(item, Mapping) else "" for item in items]
     if name in names:
         return names.index(name), f"{table} {name}"
-    if table == "target":
+    if table == "target" and len(design.targets) == len(items):
+        # (with operating points the design's targets are per point, not per table)
         labels = [t.label for t in design.targets]
         if name in labels:
             return labels.index(name), f"target {name}"

@@ -280,3 +280,18 @@ def test_bad_options_are_refused():
         sweep(divider_tables(), ["source.V1.value=1V:2V:2"], time_limit_s=-1)
     with pytest.raises(DesignError, match=r"README.md: a design file must be a .toml file"):
         sweep(ROOT / "README.md", ["source.V1.value=1V:2V:2"])
+
+
+def test_operating_points_are_named_by_name_and_their_targets_by_position():
+    tables = divider_tables()
+    tables["point"] = [{"name": "low", "sources": {"V1": "6 V"}}, {"name": "high"}]
+    with pytest.raises(DesignError, match="sources holds a list or table"):
+        grid_designs(tables, "d.toml", [SweepAxis("point.low.sources", (1.0,))])
+    result = sweep(tables, ["point.low.temperature=-20C:0C:2", "target.1.at_most=3V:5V:2"],
+                   jobs=1)
+    for point in result.points:
+        # 6 V and 12 V over 10k/4.7k [HB-divider], against the swept bound
+        low, high = point.targets["tap @ low"], point.targets["tap @ high"]
+        assert (low, high) == pytest.approx((6 * 4.7 / 14.7, 12 * 4.7 / 14.7), rel=1e-12)
+        assert point.verdict == ("meets" if high <= point.values[1] else "fails")
+    assert [p.verdict for p in result.points] == ["fails", "meets"] * 2
