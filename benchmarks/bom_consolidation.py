@@ -1,13 +1,17 @@
 """Consolidation of mixed boards of 10, 50 and 200 networks, stage by stage.
 
 Run: python benchmarks/bom_consolidation.py [--series E24|E96] [--work-limit UNITS]
+     [--sizes 10,50,200] [--compare]
 
 A seeded scenario of a controller family: feedback dividers of adjustable
 regulators (0.6, 0.8 or 1.25 V references), sense dividers from 3.3–24 V rails
 (±2 % windows) and LED series resistors (±5 %), 1 % 0603 parts, the dividers
 over the chosen series from 1 kΩ to 1 MΩ.  Every network is designed with a
 pool of up to 200 candidates; printed per board: design time, then each
-stage's value, proof, bound, work units and wall time.
+stage's value, proof, bound, gap (value - bound), work units and wall time.
+With ``--compare`` the same board is consolidated again as one model without
+the reductions and components (``presolved=False``), and the ratios of work
+units and wall time are printed side by side.
 """
 
 from __future__ import annotations
@@ -18,7 +22,7 @@ import time
 import numpy as np
 
 from synth.bom.build import bom_parts
-from synth.bom.consolidate import DEFAULT_WORK_LIMIT, Pool, consolidate
+from synth.bom.consolidate import DEFAULT_WORK_LIMIT, Consolidation, Pool, consolidate
 from synth.design.reader import design_from_dict
 from synth.synthesis import synthesize
 
@@ -78,23 +82,40 @@ def board(size: int, series: str) -> list[Pool]:
     return pools
 
 
-def main(series: str, work_limit: float) -> None:
-    for size in (10, 50, 200):
+def _report(label: str, result: Consolidation) -> None:
+    print(f"  {label}: {result.lines} lines (at least {result.lines_bound}), "
+          f"{result.elapsed_s:.2f} s, {result.status}")
+    for stage in result.stages:
+        print(f"    {stage.name}: {stage.value:.6g} {'proven' if stage.proven else 'unproven'}"
+              f" (bound {stage.bound:.6g}, gap {stage.value - stage.bound:.3g}"
+              f"{', ' + stage.scope if stage.scope else ''}), "
+              f"{stage.work:.2f} work units, {stage.elapsed_s:.2f} s")
+
+
+def main(series: str, work_limit: float, sizes: list[int], compare: bool) -> None:
+    for size in sizes:
         start = time.perf_counter()
         pools = board(size, series)
         design_s = time.perf_counter() - start
         before = len(set().union(*(p.lines[0] for p in pools)))
+        print(f"{size} networks ({series}): designed in {design_s:.1f} s; "
+              f"{before} lines at each network's own best")
         result = consolidate(pools, work_limit=work_limit, time_limit_s=600.0)
-        print(f"{size} networks ({series}): designed in {design_s:.1f} s; lines {before} -> "
-              f"{result.lines}; consolidation {result.elapsed_s:.2f} s, {result.status}")
-        for stage in result.stages:
-            print(f"  {stage.name}: {stage.value:.6g} {'proven' if stage.proven else 'unproven'}"
-                  f" (bound {stage.bound:.6g}{', ' + stage.scope if stage.scope else ''}), "
-                  f"{stage.work:.2f} work units, {stage.elapsed_s:.2f} s")
+        _report("reduced, by components", result)
+        if compare:
+            whole = consolidate(pools, work_limit=work_limit, time_limit_s=600.0,
+                                presolved=False)
+            _report("one model (before)", whole)
+            work = sum(s.work for s in result.stages)
+            old_work = sum(s.work for s in whole.stages)
+            print(f"  ratio one model / reduced: work {old_work / max(work, 1e-9):.1f}x, "
+                  f"time {whole.elapsed_s / max(result.elapsed_s, 1e-9):.1f}x")
 
 
 if __name__ == "__main__":
     chosen = sys.argv[sys.argv.index("--series") + 1] if "--series" in sys.argv else "E24"
     limit = (float(sys.argv[sys.argv.index("--work-limit") + 1]) if "--work-limit" in sys.argv
              else DEFAULT_WORK_LIMIT)
-    main(chosen, limit)
+    wanted = ([int(n) for n in sys.argv[sys.argv.index("--sizes") + 1].split(",")]
+              if "--sizes" in sys.argv else [10, 50, 200])
+    main(chosen, limit, wanted, "--compare" in sys.argv)

@@ -36,12 +36,14 @@ __all__ = ["DEFAULT_WORK_LIMIT", "Consolidation", "Pool", "Stage", "consolidate"
 import math
 import time
 from collections.abc import Hashable, Sequence
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
 from typing import Any
 
 from ortools.sat.python import cp_model
 
 from synth.bom.cover import best_within, greedy_cover, smallest_need
+from synth.bom.presolve import Component, Presolved, disjoint_need, presolve
 
 _ERROR_UNIT = 1e-9  # errors enter the model as integers of this size (fractions)
 DEFAULT_WORK_LIMIT = 20.0
@@ -166,13 +168,14 @@ class _Model:
     """The CP-SAT model of the choice, its objectives and one deterministic solver."""
 
     def __init__(self, lines: Sequence[Sequence[frozenset[int]]],
-                 errors: Sequence[Sequence[float]], line_count: int,
+                 errors: Sequence[Sequence[float]] | None,
                  buy: frozenset[int], seed: int) -> None:
         self.lines = lines
         self.model = cp_model.CpModel()
         self.picks = [[self.model.new_bool_var(f"n{i}c{c}") for c in range(len(pool))]
                       for i, pool in enumerate(lines)]
-        self.used = [self.model.new_bool_var(f"line{k}") for k in range(line_count)]
+        present = sorted(frozenset().union(*(c for pool in lines for c in pool)))
+        self.used = {k: self.model.new_bool_var(f"line{k}") for k in present}
         for row, pool in zip(self.picks, lines, strict=True):
             self.model.add_exactly_one(row)
             # a line is needed when the network's chosen candidate needs it; with exactly
@@ -186,12 +189,14 @@ class _Model:
             for key, variables in needing.items():
                 self.model.add(sum(variables) <= self.used[key])
         self.objectives: dict[str, Any] = {
-            "lines": sum(self.used),
-            "to buy": sum(self.used[k] for k in sorted(buy)),
-            "error": sum(round(err / _ERROR_UNIT) * var
-                         for row, pool_errors in zip(self.picks, errors, strict=True)
-                         for var, err in zip(row, pool_errors, strict=True)),
+            "lines": sum(self.used.values()),
+            "to buy": sum(self.used[k] for k in present if k in buy),
         }
+        if errors is not None:
+            self.objectives["error"] = sum(
+                round(err / _ERROR_UNIT) * var
+                for row, pool_errors in zip(self.picks, errors, strict=True)
+                for var, err in zip(row, pool_errors, strict=True))
         self.solver = cp_model.CpSolver()
         self.solver.parameters.num_workers = 1  # one worker: the result repeats run after run
         self.solver.parameters.random_seed = seed
@@ -209,7 +214,7 @@ class _Model:
             for c, var in enumerate(row):
                 self.model.add_hint(var, c == pick)
             needed |= pool[pick]
-        for k, var in enumerate(self.used):
+        for k, var in self.used.items():
             self.model.add_hint(var, k in needed)
         self.model.minimize(self.objectives[name])
         params = self.solver.parameters
@@ -235,9 +240,61 @@ class _Model:
         self.model.add(self.objectives[name] <= value)
 
 
+@dataclass(frozen=True)
+class _Part:
+    """One component's fewest lines (then fewest to buy): its lines, bounds, work, time."""
+
+    lines: frozenset[int]
+    bounds: dict[str, int]
+    work: dict[str, float]
+    elapsed_s: dict[str, float]
+
+
+def _solve_part(part: Component, buy: frozenset[int], names: Sequence[str], seed: int,
+                work: float, deadline: float) -> _Part | None:
+    """Fewest lines of one component, then fewest to buy, by CP-SAT from a greedy cover.
+
+    ``work`` is the component's share of the work limit: the lines take 60 % of it at
+    most, the lines to buy half of what is left.  None when the greedy cover does not
+    finish before ``deadline``.
+    """
+    lines = part.lines
+    if len(lines) == 1:  # one network: its smallest candidate (then fewest to buy)
+        best = min(lines[0], key=lambda c: (len(c), len(c & buy), sorted(c)))
+        return _Part(best, {"lines": len(best), "to buy": len(best & buy)},
+                     dict.fromkeys(names, 0.0), dict.fromkeys(names, 0.0))
+    cover = greedy_cover(lines, deadline)
+    if cover is None:
+        return None
+    choice = tuple(next(c for c, s in enumerate(pool) if s <= cover) for pool in lines)
+    model = _Model(lines, None, buy, seed)
+
+    def count(name: str, picked: Sequence[int]) -> int:
+        used = _line_set(lines, picked)
+        return len(used) if name == "lines" else len(used & buy)
+
+    bounds: dict[str, int] = {}
+    spent: dict[str, float] = {}
+    elapsed: dict[str, float] = {}
+    for name in names:
+        began = time.perf_counter()
+        budget = (_LINES_SHARE * work if name == "lines"
+                  else (work - sum(spent.values())) / 2)
+        found, bound, spent[name], _ = model.solve(name, choice, budget, deadline - began)
+        if found is not None and count(name, found) <= count(name, choice):
+            choice = found
+        value = count(name, choice)
+        floor = max(smallest_need(lines), disjoint_need(lines)) if name == "lines" else 0
+        bounds[name] = min(value, max(floor, math.ceil(bound - 1e-6)))
+        model.keep(name, value)
+        elapsed[name] = time.perf_counter() - began
+    return _Part(_line_set(lines, choice), bounds, spent, elapsed)
+
+
 def consolidate(pools: Sequence[Pool], in_stock: frozenset[Hashable] | None = None,
                 time_limit_s: float = 30.0, seed: int = 0,
-                work_limit: float = DEFAULT_WORK_LIMIT) -> Consolidation:
+                work_limit: float = DEFAULT_WORK_LIMIT, *, workers: int = 1,
+                presolved: bool = True) -> Consolidation:
     """Choose one candidate per network with the fewest distinct BOM lines.
 
     Parameters
@@ -254,6 +311,13 @@ def consolidate(pools: Sequence[Pool], in_stock: frozenset[Hashable] | None = No
     work_limit : float
         CP-SAT deterministic time for the whole solve, work units (the fewest lines
         take at most 60 % of it; what a stage leaves passes on).
+    workers : int
+        Threads solving the independent components of the board side by side (each
+        with one CP-SAT worker and its own share of the work limit, so the result
+        does not depend on it).
+    presolved : bool
+        Reduce the fewest-lines problem and split it into components first
+        (:func:`synth.bom.presolve.presolve`); False solves the board as one model.
 
     Returns
     -------
@@ -302,46 +366,65 @@ def consolidate(pools: Sequence[Pool], in_stock: frozenset[Hashable] | None = No
             lines_optimal=stages[0].proven, stages=tuple(stages), fallback=fallback,
             cut=cut)
 
-    cover = greedy_cover(lines, deadline)
-    if cover is None:
+    if presolved:
+        parts = presolve(lines, buy, deadline)
+    else:  # the whole board as one part, as solved before the reductions
+        parts = Presolved(frozenset(), (Component(tuple(range(len(lines))),
+                                                  tuple(tuple(pool) for pool in lines)),))
+    weights = [sum(map(len, part.lines)) if len(part.lines) > 1 else 0
+               for part in parts.components]
+    shares = [w / max(sum(weights), 1) for w in weights]
+    firsts = names[:-1]
+
+    def solve(numbered: tuple[int, Component]) -> _Part | None:
+        return _solve_part(numbered[1], buy, firsts, seed, shares[numbered[0]] * work_limit,
+                           deadline)
+
+    if workers > 1 and sum(w > 0 for w in weights) > 1:
+        with ThreadPoolExecutor(max_workers=workers) as pool:
+            solved = list(pool.map(solve, enumerate(parts.components)))
+    else:
+        solved = [solve(numbered) for numbered in enumerate(parts.components)]
+    if any(part is None for part in solved):
         stages = [Stage(name, count(name, own_best), False, smallest_need(lines) if
-                        name == "lines" else 0.0) for name in names[:-1]]
+                        name == "lines" else 0.0) for name in firsts]
         stages.append(Stage("error", _total(errors, own_best), False, 0.0))
         return result(own_best, stages, fallback=True, cut="time limit")
-    choice = best_within(lines, errors, cover)
-    if count("lines", own_best) <= count("lines", choice):
+    done = [part for part in solved if part is not None]
+    allowed = parts.forced.union(*(part.lines for part in done))
+    choice = best_within(lines, errors, allowed)
+    if [count(name, own_best) for name in firsts] <= [count(name, choice) for name in firsts]:
         choice = own_best
-    model = _Model(lines, errors, len(keys), buy, seed)
     stages = []
     cut = ""
     spent = 0.0
-    for name in names[:-1]:
-        began = time.perf_counter()
-        budget = work_limit - spent
-        budget = min(budget, _LINES_SHARE * work_limit) if name == "lines" else budget / 2
-        found, bound, work, _ = model.solve(name, choice, budget, deadline - began)
-        spent += work
-        if found is not None and count(name, found) <= count(name, choice):
-            choice = found
+    for name in firsts:
         value = count(name, choice)
-        floor = smallest_need(lines) if name == "lines" else 0
-        bound = max(floor, math.ceil(bound - 1e-6))
+        floor = len(parts.forced if name == "lines" else parts.forced & buy)
+        bound = floor + sum(part.bounds[name] for part in done)
+        if name == "lines":
+            bound = max(bound, smallest_need(lines))
+        bound = min(bound, value)
+        work = sum(part.work[name] for part in done)
+        spent += work
         proven = bound >= value
         if not proven and not cut:
             cut = "time limit" if time.perf_counter() >= deadline else "work limit"
-        stages.append(Stage(name, value, proven, value if proven else bound, work=work,
-                            elapsed_s=time.perf_counter() - began))
-        model.keep(name, value)
+        stages.append(Stage(name, value, proven, bound, work=work,
+                            elapsed_s=sum(part.elapsed_s[name] for part in done)))
+    model = _Model(lines, errors, buy, seed)
+    for stage in stages:
+        model.keep(stage.name, int(stage.value))
     began = time.perf_counter()
     choice = best_within(lines, errors, _line_set(lines, choice))
     scope, work = "chosen lines", 0.0
     if work_limit - spent > 0 and time.perf_counter() < deadline:
-        found, _, work, solved = model.solve("error", choice, work_limit - spent, deadline - began)
+        found, _, work, exact = model.solve("error", choice, work_limit - spent, deadline - began)
         if found is not None:
             better = best_within(lines, errors, _line_set(lines, found))
             if _total(errors, better) < _total(errors, choice):
                 choice = better
-            if solved:
+            if exact:
                 scope = "every choice"
     error = _total(errors, choice)
     stages.append(Stage("error", error, True, error, scope=scope, work=work,

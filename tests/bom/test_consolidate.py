@@ -116,3 +116,49 @@ def test_three_runs_give_the_same_choice_and_work():
     runs = [consolidate(pools, work_limit=0.5) for _ in range(3)]
     assert len({(r.choice, r.status, tuple((s.value, s.bound, s.work) for s in r.stages))
                 for r in runs}) == 1
+
+
+# -- reductions, components and workers --
+
+
+def apart_pools(rng, groups, networks, most):
+    """Groups of networks over value ranges apart from each other's: one component each."""
+    pools = []
+    for group in range(groups):
+        for pool in random_pools(rng, networks=networks, most=most, values=8):
+            pools.append(Pool([frozenset(v + 100 * group for v in s) for s in pool.lines],
+                              pool.errors))
+    return pools
+
+
+@pytest.mark.parametrize("presolved", [True, False])
+@pytest.mark.parametrize("seed", range(10))
+def test_with_and_without_reductions_the_exhaustive_optimum(seed, presolved):
+    rng = np.random.default_rng(900 + seed)
+    pools = (apart_pools(rng, groups=2, networks=2, most=5) if seed % 2
+             else random_pools(rng, networks=int(rng.integers(2, 6)), most=6))
+    in_stock = (frozenset(int(v) for v in rng.choice(12, size=4, replace=False))
+                if seed % 3 else None)
+    result = consolidate(pools, in_stock=in_stock, presolved=presolved)
+    lines, buy, error = lexicographic_best(pools, in_stock)
+    assert result.lines_optimal and (result.lines, result.lines_bound) == (lines, lines)
+    assert result.to_buy == (buy if in_stock else 0)
+    assert all(s.proven and s.bound == s.value for s in result.stages)
+    if result.stages[-1].scope == "every choice":
+        assert result.total_error == pytest.approx(error, abs=1e-8)
+
+
+def test_components_are_bounded_and_proven_apart_and_add_up():
+    pools = apart_pools(np.random.default_rng(11), groups=3, networks=3, most=4)
+    result = consolidate(pools)
+    lines, _, _ = lexicographic_best(pools)
+    first = result.stages[0]
+    assert first.proven and first.value == first.bound == lines
+
+
+def test_workers_give_the_same_bom():
+    pools = apart_pools(np.random.default_rng(12), groups=3, networks=8, most=20)
+    one, two = (consolidate(pools, workers=n, work_limit=0.01) for n in (1, 2))
+    assert (one.choice, one.status, one.cut) == (two.choice, two.status, two.cut)
+    assert ([(s.value, s.bound, s.work) for s in one.stages]
+            == [(s.value, s.bound, s.work) for s in two.stages])
