@@ -7,7 +7,12 @@ For ladder networks of 2, 3, 4 and 6 loops it prints
   forming the loop matrices included, node voltages and branch currents out);
 * the public MeshSolver.solve (candidate axis first, transposes included);
 * a per-candidate loop that forms Z and calls numpy.linalg.solve,
-and the ratio batched / loop, all measured in this one run on one core.
+and the ratio batched / loop; then Evaluator.evaluate on the same ladder with a voltage
+target on its last node and a limit on the supply current (targets, part stresses,
+supply current and noise floors out), next to the general path that solves the whole batch
+and measures it candidate-first (Evaluator.evaluate_general, the way evaluate worked
+before it measured block by block), each as a share of the block solve's rate; all
+measured in this one run on one core (best of several interleaved repeats).
 Then the peak traced memory of a 10^7-candidate run through iter_solve_views that
 keeps only the largest node voltage.
 """
@@ -25,6 +30,7 @@ os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 import numpy as np
 from ladders import ladder_tables
 
+from synth.circuit.measure import Evaluator
 from synth.circuit.mesh import MeshSolver
 from synth.circuit.network import build_network
 from synth.design.reader import design_from_dict
@@ -32,6 +38,14 @@ from synth.design.reader import design_from_dict
 
 def ladder(loops: int):
     return build_network(design_from_dict(ladder_tables(loops)))
+
+
+def targeted_ladder(loops: int):
+    """The ladder with a voltage target on its last node and a supply-current limit."""
+    tables = ladder_tables(loops)
+    tables["target"] = [{"voltage": f"n{loops}", "equals": "1 V"},
+                        {"current": "V1", "at_most": "10 mA"}]
+    return design_from_dict(tables)
 
 
 def best_of(fn, repeats=3):
@@ -76,6 +90,34 @@ def measure(loops: int, rng: np.random.Generator, n_batch: int, n_loop: int) -> 
     rate_loop = n_loop / t_loop
     print(f"{loops:>5} {rate_block:>15.3e} {n_batch / t_solve:>12.3e} {rate_loop:>14.3e} "
           f"{rate_block / rate_loop:>8.0f}x")
+    return rate_block
+
+
+def measure_evaluate(loops: int, rng: np.random.Generator, n_batch: int) -> None:
+    """Print one row: block solve, evaluate and the general path's rates, and their shares."""
+    ev = Evaluator(targeted_ladder(loops))
+    solver = ev.solver
+    r = 10 ** rng.uniform(2, 5, size=(n_batch, len(ev.design.resistors)))
+    chunk = solver.preferred_chunk
+    r_t = [np.ascontiguousarray(r[s:s + chunk].T) for s in range(0, n_batch, chunk)]
+    e_t = np.full((1, chunk), 5.0)
+    empty = np.zeros((0, chunk))
+
+    def blocks():
+        for block in r_t:
+            solver.solve_block(block, e_t, empty, empty)
+
+    src = ev.nominal_sources
+    best = {"block": np.inf, "evaluate": np.inf, "general": np.inf}
+    for _ in range(5):  # interleaved, so that a busy moment hits every figure alike
+        best["block"] = min(best["block"], best_of(blocks, repeats=1))
+        best["evaluate"] = min(best["evaluate"], best_of(lambda: ev.evaluate(r), repeats=1))
+        best["general"] = min(best["general"],
+                              best_of(lambda: ev.evaluate_general(r, src), repeats=1))
+    rate = {key: n_batch / seconds for key, seconds in best.items()}
+    print(f"{loops:>5} {rate['block']:>15.3e} {rate['evaluate']:>14.3e} "
+          f"{rate['general']:>13.3e} {rate['block'] / rate['evaluate']:>12.1f}x "
+          f"{rate['block'] / rate['general']:>11.1f}x")
 
 
 def main(quick: bool) -> None:
@@ -86,6 +128,10 @@ def main(quick: bool) -> None:
           f"{'ratio':>8}")
     for loops in (2, 3, 4, 6):
         measure(loops, rng, n_batch, n_loop)
+    print(f"\n{'loops':>5} {'block solves/s':>15} {'evaluate /s':>14} {'general /s':>13} "
+          f"{'block/evaluate':>13} {'block/general':>12}")
+    for loops in (2, 3, 4, 6):
+        measure_evaluate(loops, rng, n_batch // 4)
 
     n_big = 10**6 if quick else 10**7
     net = ladder(3)

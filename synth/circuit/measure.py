@@ -15,6 +15,8 @@ from dataclasses import dataclass, replace
 import numpy as np
 from numpy.typing import ArrayLike
 
+from synth.circuit.blocks import BlockMeasure
+from synth.circuit.mesh import MeshSolver
 from synth.circuit.network import Network, build_network
 from synth.circuit.solution import MeshSolution
 from synth.circuit.solvers import Solver, network_solver
@@ -108,6 +110,7 @@ class Evaluator:
             typical_resistances = [_typical(r) for r in design.resistors]
         self.weights = np.asarray(typical_resistances, dtype=float)
         self.solver: Solver = network_solver(self.network, self.weights)
+        self._blocks: BlockMeasure | None = None
         self._seen: dict[tuple[str, str], Solver] = {}
         self._without: dict[tuple[str, ...], tuple[Evaluator, np.ndarray]] = {}
         index = {n: i for i, n in enumerate(self.network.nodes)}
@@ -163,6 +166,10 @@ class Evaluator:
             self.supply_groups = [
                 np.array([k for k, ref in enumerate(supply_refs)
                           if ref.rpartition("@")[2] == name], dtype=int) for name in names]
+        if isinstance(self.solver, MeshSolver):
+            self._blocks = BlockMeasure(self.solver, design.targets, self.node_index,
+                                        self.branch_index, self.resistor_index,
+                                        self.supply_columns)
 
     def _seen_solver(self, plus: str, minus: str) -> Solver:
         key = (plus, minus)
@@ -246,7 +253,8 @@ class Evaluator:
                          [r.position.count for r in self.design.resistors])
 
     def evaluate(self, resistances: ArrayLike, sources: SourceValues | None = None,
-                 part_values: np.ndarray | None = None, *, parts: bool = True) -> Evaluation:
+                 part_values: np.ndarray | None = None, *, parts: bool = True,
+                 reuse: bool = False) -> Evaluation:
         """Solve a block of candidates and measure every target and part.
 
         Parameters
@@ -262,10 +270,17 @@ class Evaluator:
         parts : bool
             False skips dividing positions into their parts (the search's box
             bounds use positions only); the part arrays are then ``(N, 0)``.
+        reuse : bool
+            Let this call write into the arrays of the previous call with
+            ``reuse`` of the same size, overwriting that call's results (no
+            fresh memory per call: for a caller that reduces each result before
+            it asks for the next).
 
         Returns
         -------
         Evaluation
+            The arrays of a loop-solved network are candidate-first views of
+            entity-first arrays (:mod:`synth.circuit.blocks`).
         """
         r = np.atleast_2d(np.asarray(resistances, dtype=float))
         if len(self.copies):
@@ -273,6 +288,43 @@ class Evaluator:
             if part_values is not None:
                 part_values = self.follow_parts(part_values)
         src = sources or self.nominal_sources
+        if self._blocks is not None:
+            return self._evaluate_blocks(self._blocks, r, src, part_values, parts, reuse)
+        return self.evaluate_general(r, src, part_values, parts=parts)
+
+    def _evaluate_blocks(self, blocks: BlockMeasure, r: np.ndarray, src: SourceValues,
+                         part_values: np.ndarray | None, parts: bool, reuse: bool
+                         ) -> Evaluation:
+        got = blocks.measure(r, src.voltages, src.currents, src.setpoints, reuse=reuse)
+        sol = MeshSolution(node_voltages=got.voltages.T, branch_currents=got.currents.T,
+                           regulator_outputs=got.outputs.T,
+                           regulator_determinant=got.determinant)
+        for k in blocks.left:
+            target = self.design.targets[k]
+            got.targets[k] = self._target_values(target, r, sol, got.power.T, None)
+            if target.kind in ("gain", "offset"):
+                self._transfer_noise(target, sol, got.noise[k])
+        power, across = got.power.T, got.across.T
+        supply = self._grouped_supply(sol) if self.supply_groups else got.supply
+        if parts:
+            part_i, part_u, part_p = self._split(r, got.currents[:blocks.n_r].T, across, power,
+                                                 part_values)
+        else:
+            part_i = part_u = part_p = np.zeros((len(r), 0))
+        return Evaluation(solution=sol, targets=got.targets.T, resistor_power=power,
+                          resistor_voltage=across, supply_current=supply,
+                          part_current=part_i, part_voltage=part_u, part_power=part_p,
+                          target_noise=got.noise.T)
+
+    def evaluate_general(self, r: np.ndarray, src: SourceValues,
+                         part_values: np.ndarray | None = None, *, parts: bool = True
+                         ) -> Evaluation:
+        """:meth:`evaluate` for any solver: solve the whole block, then measure it.
+
+        The form every solver takes (sparse and controlled solves use it); a
+        loop-solved network goes through :class:`synth.circuit.blocks.BlockMeasure`
+        instead, whose values are the same.
+        """
         gains = src.gains if src.gains is not None else self.nominal_sources.gains
         sol = self._solve(self.solver, r, src.voltages, src.currents, src.setpoints, gains)
         n_r = len(self.network.resistor_refs)
@@ -283,12 +335,7 @@ class Evaluator:
         targets = np.column_stack(
             [self._target_values(t, r, sol, power, gains) for t in self.design.targets]
         ) if self.design.targets else np.zeros((len(r), 0))
-        delivered = np.clip(sol.branch_currents[:, self.supply_columns], 0.0, None)
-        if self.supply_groups:
-            supply = np.max([delivered[:, cols].sum(axis=1) for cols in self.supply_groups],
-                            axis=0)
-        else:
-            supply = delivered.sum(axis=1)
+        supply = self._grouped_supply(sol)
         if parts:
             part_i, part_u, part_p = self._split(r, i_r, across, power, part_values)
         else:
@@ -298,6 +345,23 @@ class Evaluator:
                           resistor_voltage=across, supply_current=supply,
                           part_current=part_i, part_voltage=part_u, part_power=part_p,
                           target_noise=noise)
+
+    def _grouped_supply(self, sol: MeshSolution) -> np.ndarray:
+        """``(N,)`` A: the delivered supply current (the largest operating point's)."""
+        delivered = np.clip(sol.branch_currents[:, self.supply_columns], 0.0, None)
+        if self.supply_groups:
+            return np.max([delivered[:, cols].sum(axis=1)  # type: ignore[no-any-return]  # numpy types this array expression as Any
+                           for cols in self.supply_groups], axis=0)
+        return delivered.sum(axis=1)  # type: ignore[no-any-return]  # numpy types this array expression as Any
+
+    def _transfer_noise(self, target: Target, sol: MeshSolution, row: np.ndarray) -> None:
+        """A gain's or offset's noise floor from the voltage scale ``row`` holds (in place)."""
+        _, _, in_a, in_b = self.transfer_terms(target, sol)
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            span = np.abs(in_b - in_a)
+            row[...] = (2 * row / span if target.kind == "gain"
+                        else row * (1 + 2 * np.abs(in_a) / span))
+        np.nan_to_num(row, copy=False, nan=0.0, posinf=0.0)
 
     def target_noise(self, sol: MeshSolution, power: np.ndarray) -> np.ndarray:
         """``(N, targets)`` the noise floor of each target value, in the target's unit.

@@ -178,7 +178,12 @@ class MeshSolver:
         self._map_u_t = SparseMap(self._b_u.T)
         self._map_k_t = SparseMap(self._b_k.T)
         self._work: dict[str, np.ndarray] = {}
+        self._capacity: dict[str, np.ndarray] = {}
         self._work_size = -1
+        self._work_views = -1
+        self.last_determinant = np.zeros(0)
+        """``(M,)`` the regulators' Schur determinant of the last block solved (a view of the
+        solver's work arrays, valid until the next block)."""
         self.last_regulator_system = np.zeros((0, self.n_g, self.n_g))
         """``(M, regulators, regulators)`` the regulators' Schur system of the last block
         solved (its rows are the regulators' constraints; singular where they depend)."""
@@ -397,13 +402,15 @@ class MeshSolver:
         """Scratch arrays for blocks of ``m`` candidates, kept between calls.
 
         Reusing them avoids fresh page-faulted memory on every block, which
-        otherwise costs more than the arithmetic.  (One solver object should
-        not be shared between threads.)
+        otherwise costs more than the arithmetic: the arrays are kept at the
+        largest block size seen and a smaller block works on the first ``m``
+        columns of each.  (One solver object should not be shared between
+        threads.)
         """
-        if self._work_size != m:
+        if self._work_size < m:
             columns = (1 + self.n_g,) if self.n_g else ()
             rhs_shape = (self.n_u, *columns, m)
-            self._work = {
+            self._capacity = {
                 "rhs": np.empty(rhs_shape),
                 "z": np.empty((len(self._pairs), m)),
                 "inverse": np.empty((self.n_u, m)),
@@ -417,6 +424,10 @@ class MeshSolver:
                 "determinant": np.empty(m),
             }
             self._work_size = m
+            self._work_views = -1
+        if self._work_views != m:
+            self._work = {key: array[..., :m] for key, array in self._capacity.items()}
+            self._work_views = m
         return self._work
 
     def _regulator_outputs(
@@ -433,6 +444,7 @@ class MeshSolver:
         if self.n_v:
             rhs = rhs + self._d_v @ e
         determinant = self._workspace(m)["determinant"]
+        self.last_determinant = determinant
         determinant[...] = lhs[0, 0] if self.n_g == 1 else np.linalg.det(lhs.transpose(2, 0, 1))
         if self.n_g == 1:
             with np.errstate(divide="ignore", invalid="ignore"):

@@ -91,8 +91,13 @@ class SearchProblem:
         self.n_r = len(design.resistors)
 
     def resistances(self, indices: np.ndarray) -> np.ndarray:
-        """``(M, resistors)`` ohm for ``(M, positions)`` choice indices."""
-        r = np.broadcast_to(self.base, (len(indices), self.n_r)).copy()
+        """``(M, resistors)`` ohm for ``(M, positions)`` choice indices.
+
+        Column-major (each resistor's values contiguous), the layout the block
+        measurement reads without a transposing copy.
+        """
+        r = np.empty((self.n_r, len(indices))).T
+        r[...] = self.base
         for p, choice in enumerate(self.choices):
             r[:, self.free[p]] = choice.values[indices[:, p]]
         return self.ev.follow(r) if len(self.ev.copies) else r
@@ -106,8 +111,9 @@ class SearchProblem:
 
     def evaluate(self, r: np.ndarray, part_values: np.ndarray | None = None, *,
                  parts: bool = True) -> Evaluation:
+        # each result is reduced before the next block is asked for: its arrays are reused
         with np.errstate(all="ignore"):
-            return self.ev.evaluate(r, part_values=part_values, parts=parts)
+            return self.ev.evaluate(r, part_values=part_values, parts=parts, reuse=True)
 
     # ----- exact measures of enumerated candidates -----
 
@@ -217,22 +223,27 @@ class SearchProblem:
         n_v = 2 ** k
         shape = (n_box, n_v)
 
-        def span(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-            v = values.reshape(*shape, -1)
-            return v.min(axis=1), v.max(axis=1)
+        def by_box(values: np.ndarray) -> np.ndarray:
+            """``(N, columns)`` as ``(columns, boxes, vertices)`` (a view when column-major)."""
+            return values.T.reshape(-1, n_box, n_v)
 
-        t_lo, t_hi = span(ev.targets)
+        def span(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+            v = by_box(values)
+            return v.min(axis=2).T, v.max(axis=2).T
+
+        targets = by_box(ev.targets)
+        t_lo, t_hi = targets.min(axis=2).T, targets.max(axis=2).T
         if len(self.unbounded):
             t_lo[:, self.unbounded], t_hi[:, self.unbounded] = -np.inf, np.inf
-        _, noise = span(ev.target_noise)  # the largest floor of any vertex
+        noise = by_box(ev.target_noise).max(axis=2).T  # the largest floor of any vertex
         current = ev.solution.branch_currents[:, : self.n_r]
         i_lo, i_hi = span(current)
         node_v = ev.solution.node_voltages
         ends = self.ev.network.resistor_ends
-        across = node_v[:, ends[:, 0]] - node_v[:, ends[:, 1]]
+        across = (node_v.T[ends[:, 0]] - node_v.T[ends[:, 1]]).T
         u_lo, u_hi = span(across)
-        valid = np.all(np.isfinite(ev.targets).reshape(*shape, -1), axis=(1, 2))
-        valid &= np.all(np.isfinite(current).reshape(*shape, -1), axis=(1, 2))
+        valid = np.all(np.isfinite(targets), axis=(0, 2))
+        valid &= np.all(np.isfinite(by_box(current)), axis=(0, 2))
         det = ev.solution.regulator_determinant
         if det is not None:
             d = det.reshape(shape)
@@ -278,7 +289,7 @@ class SearchProblem:
             # each delivering branch's current is monotone in every resistance, so its
             # least value over the box lies at a vertex: the sum of those is a lower bound
             delivered = ev.solution.branch_currents[:, self.supply_columns]
-            each = np.clip(delivered.reshape(*shape, -1).min(axis=1), 0.0, None)
+            each = np.clip(by_box(delivered).min(axis=2).T, 0.0, None)
             groups = self.ev.supply_groups  # operating points: the largest point's supply
             least = (np.max([each[:, cols].sum(axis=1) for cols in groups], axis=0)
                      if groups else each.sum(axis=1))
