@@ -214,9 +214,13 @@ class BlockMeasure:
             return
         targets, noise = out.targets[:, pick], out.noise[:, pick]
         # the ground row of the node voltages is zero: the largest starts after it
-        v_scale = _largest(v[1:], work[1], work[4:]) if self.need_v else None
-        i_scale = _largest(i, work[2], work[4:]) if self.need_i else None
-        p_scale = _largest(power, work[3], work[4:]) if self.need_p else None
+        v_scale, i_scale, p_scale = work[1], work[2], work[3]
+        if self.need_v:
+            _largest(v[1:], v_scale, work[4:])
+        if self.need_i:
+            _largest(i, i_scale, work[4:])
+        if self.need_p:
+            _largest(power, p_scale, work[4:])
         for k, (kind, rows) in enumerate(self.plan):
             row = targets[k]
             if kind == "voltage":
