@@ -194,9 +194,13 @@ def use_of(value: ArrayLike, allowed: ArrayLike) -> np.ndarray:
 
 def _slack(limit: np.ndarray, noise: ArrayLike) -> np.ndarray:
     """The larger of the relative slack of ``limit`` and the absolute ``noise`` floor."""
+    # NaN and +inf floors count zero; -inf (as nan_to_num's most negative float) is below
+    # any slack, so it changes nothing
+    floor = np.asarray(noise, dtype=float)
     with np.errstate(invalid="ignore"):
-        return np.maximum(LIMIT_SLACK * np.abs(limit), np.nan_to_num(  # type: ignore[no-any-return]  # numpy types this array expression as Any
-            np.asarray(noise, dtype=float), nan=0.0, posinf=0.0))
+        return np.maximum(LIMIT_SLACK * np.abs(limit),  # type: ignore[no-any-return]  # numpy types this array expression as Any
+                          np.where(floor < np.inf, floor, 0.0) if floor.ndim
+                          else (float(floor) if floor < np.inf else 0.0))
 
 
 def exceeds(value: ArrayLike, limit: ArrayLike, noise: ArrayLike = 0.0) -> np.ndarray:

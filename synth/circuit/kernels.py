@@ -178,6 +178,12 @@ that the smallest ones of a wide network stay normal floats, low enough that loo
 and products of two entries stay finite."""
 
 
+_ORDINARY_LOW = 2.0 ** (_SCALE_BELOW + 1)
+_ORDINARY_HIGH = 2.0 ** (_SCALE_ABOVE - 1)
+"""Every resistance of a block within these (ohm) leaves each column's largest exponent in
+:data:`_SCALE_BELOW` .. :data:`_SCALE_ABOVE`: no candidate is scaled."""
+
+
 def resistance_scale(r: np.ndarray) -> np.ndarray | None:
     """Per-candidate powers of two to divide resistances ``(resistors, M)`` by, or None.
 
@@ -196,8 +202,11 @@ def resistance_scale(r: np.ndarray) -> np.ndarray | None:
     """
     if r.size == 0:
         return None
+    magnitude = np.abs(r)
+    if _ORDINARY_LOW <= magnitude.min() and magnitude.max() <= _ORDINARY_HIGH:
+        return None  # the common case, settled by two reductions (NaN fails both tests)
     with np.errstate(invalid="ignore"):
-        top = np.max(np.abs(r), axis=0)
+        top = np.max(magnitude, axis=0)
     finite = np.isfinite(top) & (top > 0)
     if not finite.any():
         return None

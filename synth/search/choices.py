@@ -20,6 +20,7 @@ from __future__ import annotations
 
 __all__ = ["Choices", "choices_for", "combination_count", "part_range", "values_of_row"]
 
+import functools
 import math
 from dataclasses import dataclass
 
@@ -86,8 +87,20 @@ def part_range(combine: str, low: float, high: float) -> tuple[float, float]:
     return (low / 10, high) if combine == "series" else (low, high * 10)
 
 
-def _base_values(resistor: Resistor, origin: str) -> tuple[np.ndarray, str]:
-    """The catalogue values each physical part of the position may take."""
+@functools.lru_cache(maxsize=256)
+def _series_catalogue(name: str, low: float, high: float) -> tuple[np.ndarray, np.ndarray]:
+    """A series' values over a range and each one's series rank (read-only; kept, since a
+    design's positions often share a series and range and a run designs many networks)."""
+    values = series_values(name, low, high)
+    ranks = series_rank(values)
+    values.flags.writeable = False
+    ranks.flags.writeable = False
+    return values, ranks
+
+
+def _base_values(resistor: Resistor, origin: str) -> tuple[np.ndarray, np.ndarray, str]:
+    """The catalogue values each physical part of the position may take, their series
+    ranks, and the catalogue's label."""
     span = resistor.range
     if span is not None and resistor.combine is not None:
         span = part_range(resistor.combine, *span)
@@ -104,14 +117,15 @@ def _base_values(resistor: Resistor, origin: str) -> tuple[np.ndarray, str]:
             low, high = span
             values = values[(values >= low * (1 - _RANGE_SLACK))
                             & (values <= high * (1 + _RANGE_SLACK))]
+        ranks = series_rank(values)
     else:
         assert resistor.choose is not None and span is not None
-        values = series_values(resistor.choose, *span)
+        values, ranks = _series_catalogue(resistor.choose, *span)
         label = resistor.choose
     if len(values) == 0:
         raise DesignError(f"{origin}, resistor {resistor.ref}: no {label} value lies in its "
                           "range; widen the range")
-    return values, label
+    return values, ranks, label
 
 
 def _part_sets(values: np.ndarray, position: Position) -> np.ndarray:
@@ -146,8 +160,7 @@ def choices_for(resistor: Resistor, origin: str = "<design>") -> Choices:
     >>> [float(v) for v in c.values], c.parts[-1].tolist()
     ([11000.0, 12200.0, 14700.0, 20000.0], [10000.0, 10000.0])
     """
-    values, label = _base_values(resistor, origin)
-    ranks = series_rank(values)
+    values, ranks, label = _base_values(resistor, origin)
     position = resistor.position
     sets = _part_sets(values, position)
     parts = values[sets]
