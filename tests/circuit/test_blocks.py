@@ -98,3 +98,20 @@ def test_reuse_writes_into_the_previous_arrays_and_nothing_else():
     fresh = ev.evaluate(r)
     assert not np.shares_memory(fresh.targets, again.targets)
     np.testing.assert_array_equal(again.targets, ev.evaluate(r * 2).targets)
+
+
+def test_operating_points_and_transfer_targets_measure_alike():
+    # a gain and an offset between two operating points [HB-superposition], the supply
+    # current the largest point's
+    from tests.design.test_transfer import mapper
+
+    design = design_from_dict(mapper({"name": "t", "input": "VIN", "output": "out",
+                                      "ends": ["0.1 V", "3.2 V"], "within": "1%",
+                                      "gain": 0.155, "offset": "1.65 V"}))
+    ev = Evaluator(design)
+    assert ev.supply_groups and {t.kind for t in design.targets} >= {"gain", "offset"}
+    rng = np.random.default_rng(1)
+    r = ev.weights * 10 ** rng.uniform(-1, 1, (300, len(design.resistors)))
+    r[0, 0] = np.inf
+    with np.errstate(all="ignore"):
+        compare(ev, ev.follow(r))
