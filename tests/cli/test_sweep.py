@@ -180,3 +180,18 @@ def test_bad_input_is_one_line_and_exit_2(divider, extra, fragment):
 def test_a_missing_file_is_bad_input(tmp_path):
     result = run("sweep", str(tmp_path / "none.toml"), "--over", "source.V1.value=1V:2V:2")
     assert result.exit_code == 2 and "none.toml" in result.stderr
+
+
+def test_sweep_help_loads_no_heavy_library():
+    import subprocess
+    import sys
+
+    probe = ("import json, sys\nfrom synth.cli import main\n"
+             "sys.argv = ['rnsynth', 'sweep', '--help']\n"
+             "try:\n    main()\nexcept SystemExit:\n    pass\n"
+             "print(json.dumps(sorted({m.split('.')[0] for m in sys.modules})), file=sys.stderr)")
+    done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
+                          check=False, stdin=subprocess.DEVNULL)
+    loaded = set(json.loads(done.stderr.strip().splitlines()[-1]))
+    assert "KEY=LOW:HIGH:STEPS" in done.stdout
+    assert not loaded & {"numpy", "scipy", "matplotlib", "ortools", "distributed", "tabulate"}
