@@ -1,11 +1,11 @@
-"""The quick commands: divider, regulator, led, pad, bias and gain.
+"""The quick commands: divider, regulator, led, pad, bias, gain and map-range.
 """
 
 from __future__ import annotations
 
 __all__ = [
     "bias_command", "divider_command", "gain_command", "given_text", "led_command",
-    "pad_command", "regulator_command",
+    "map_range_command", "pad_command", "regulator_command",
 ]
 
 import functools
@@ -187,3 +187,30 @@ def gain_command(wanted: str, inverting: bool, input_resistance: Given | None,
                          input_resistance=given_text(input_resistance),
                          open_loop_gain=open_loop_gain)
     quick_run(tables, "rnsynth gain options", quick, search, spread)
+
+
+@cli.command("map-range")
+@click.option("--input", "input_range", required=True,
+              help='Input range low:high, a voltage ("-10 V:10 V") or a loop current '
+                   '("4 mA:20 mA").')
+@click.option("--output", "output_range", required=True,
+              help='Output at the input\'s low and high end, e.g. "0.1 V:3.2 V".')
+@click.option("--reference", type=VOLTAGE, default=None,
+              help="Reference voltage the offset is drawn from (not needed for an output "
+                   "proportional to the input).")
+@quick_options("V")
+@friendly
+def map_range_command(input_range: str, output_range: str, reference: Given | None,
+                      quick: QuickOptions, search: SearchOptions,
+                      spread: SpreadOptions) -> None:
+    """Offset-and-scale network mapping one signal range onto another.
+
+    A voltage input reaches OUT through R1, the reference through R2, and R3
+    ties OUT to ground; a loop current flows into the burden RB first.  The
+    output is held at each end of the input's range (two operating points).
+    """
+    from synth.templates.ranges import map_range_tables
+
+    tables = map_range_tables(input_range=input_range, output_range=output_range,
+                              settings=quick.settings(), reference=given_text(reference))
+    quick_run(tables, "rnsynth map-range options", quick, search, spread)
