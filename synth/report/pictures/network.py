@@ -24,11 +24,11 @@ notation, each rail with its node's name and voltage.
 
 from __future__ import annotations
 
-__all__ = ["network_drawing"]
+__all__ = ["first_point_view", "network_drawing"]
 
 import itertools
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 from matplotlib.axes import Axes
@@ -181,6 +181,26 @@ def _symbol(ax: Axes, kind: str, x: float, y: float, up: int) -> None:
                              **style))
 
 
+def first_point_view(result: CheckResult) -> CheckResult:
+    """A design of operating points' check seen as its single network at the first point.
+
+    The single design with the first point's source (and resistor) values, and
+    the node voltages of that point's copy.
+    """
+    single = result.design.single
+    assert single is not None
+    point = result.design.points[0]
+    mark = f"@{point.name}"
+    sources = tuple(replace(s, value=point.sources.get(s.ref, s.value)) for s in single.sources)
+    resistors = tuple(replace(r, value=point.resistors.get(r.ref, r.value))
+                      for r in single.resistors)
+    nodes = {name.removesuffix(mark): v for name, v in result.nodes.items()
+             if name.endswith(mark) or name == single.ground}
+    positions = {**result.positions, **point.resistors}
+    return replace(result, design=replace(single, sources=sources, resistors=resistors),
+                   nodes=nodes, positions=positions)
+
+
 def network_drawing(result: CheckResult, *, ax: Axes | None = None,
                     title: str | None = None) -> Figure:
     """Draw a checked design's network with its values.
@@ -213,7 +233,15 @@ def network_drawing(result: CheckResult, *, ax: Axes | None = None,
     >>> figure = network_drawing(check(d))
     >>> sorted(t.get_text() for t in figure.axes[0].texts if t.get_text().startswith("R"))
     ['R1\\n20 kΩ', 'R2\\n10 kΩ']
+
+    Notes
+    -----
+    A design of operating points is drawn once, at its first point (its
+    source values and node voltages there); the title names the point.
     """
+    if result.design.points:
+        result, point = first_point_view(result), result.design.points[0].name
+        title = f"{title or result.design.title or ''} (at {point})".strip()
     design = result.design
     branches = _branches(result)
     names = design.node_names

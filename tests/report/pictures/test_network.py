@@ -12,7 +12,7 @@ from matplotlib.figure import Figure
 from synth.checking import check
 from synth.design.load import load_design
 from synth.design.reader import design_from_dict
-from synth.report.pictures.network import network_drawing
+from synth.report.pictures.network import first_point_view, network_drawing
 from synth.synthesis import synthesize
 from synth.units import format_eng
 
@@ -39,6 +39,9 @@ def test_every_designator_value_and_node_is_drawn(path):
     figure = network_drawing(result)
     assert isinstance(figure, Figure)
     drawn = texts(figure)
+    if result.design.points:  # drawn once, at the first point
+        result = first_point_view(result)
+        assert result.design.points == () and "(at " in figure.axes[0].get_title()
     design = result.design
     for resistor in design.resistors:
         assert resistor.ref in drawn
