@@ -122,8 +122,10 @@ def check_command(design_file: str, as_json: bool, verify: bool, spread: SpreadO
     written = []
     if spread.plots:
         from synth.report.plots import check_pictures
+        from synth.spread.range_curve import range_curves
 
-        plots = plot_files(check_pictures(result), spread.plots)
+        curves = range_curves(result.design, result.positions, result.values)
+        plots = plot_files(check_pictures(result, curves), spread.plots)
         written = write_files(plots, force=force, folder=spread.plots if plots else None)
     if as_json:
         emit_json(check_json(result))

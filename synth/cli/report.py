@@ -80,15 +80,19 @@ def _pictures(result: CheckResult | SynthesisResult, search: SearchOptions
     from synth.front import error_front
     from synth.report.plots import check_pictures, design_pictures
     from synth.results import CheckResult
+    from synth.spread.range_curve import range_curves
 
     if isinstance(result, CheckResult):
-        return check_pictures(result)
+        return check_pictures(result, range_curves(result.design, result.positions,
+                                                   result.values))
     if not result.candidates:
         return []
     limit = (_FRONT_SECONDS if search.time_limit is None
              else min(search.time_limit, _FRONT_SECONDS))
     front = error_front(result.design, time_limit_s=limit, require=result.require)
-    return design_pictures(result, cost=search.plot_axis, front=front)
+    best = result.candidates[0].check
+    return design_pictures(result, cost=search.plot_axis, front=front,
+                           curves=range_curves(result.design, best.positions, best.values))
 
 
 @cli.command("report")

@@ -69,8 +69,12 @@ def _plots(design: Design, result: SynthesisResult, search: SearchOptions,
     front = error_front(design, time_limit_s=_FRONT_SECONDS if budget is None
                         else max(min(budget, _FRONT_SECONDS), 0.01),
                         require=result.require)
-    return plot_files(design_pictures(result, cost=search.plot_axis, front=front),
-                      spread.plots)
+    from synth.spread.range_curve import range_curves
+
+    best = result.candidates[0].check
+    curves = range_curves(result.design, best.positions, best.values)
+    return plot_files(design_pictures(result, cost=search.plot_axis, front=front,
+                                      curves=curves), spread.plots)
 
 
 def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,

@@ -15,6 +15,7 @@ __all__ = ["COSTS", "Picture", "candidate_scatter", "check_pictures", "design_pi
            "target_histogram", "target_histograms"]
 
 import re
+from collections.abc import Sequence
 
 import numpy as np
 from matplotlib.axes import Axes
@@ -28,7 +29,9 @@ from synth.report.pictures.contributions import contribution_bars
 from synth.report.pictures.derating import derating_curve, packages_used
 from synth.report.pictures.network import network_drawing
 from synth.report.pictures.supply_front import front_plot
+from synth.report.pictures.transfer_curve import transfer_curve
 from synth.results import Candidate, CheckResult, SynthesisResult
+from synth.spread.range_curve import RangeCurve
 from synth.spread.records import SpreadResult
 
 COSTS = ("supply", "hottest", "distinct")
@@ -156,10 +159,14 @@ def candidate_scatter(result: SynthesisResult, cost: str = "supply", *,
     return figure
 
 
-def _checked_pictures(checked: CheckResult, spread: SpreadResult | None) -> list[Picture]:
-    """Network, derating of each package and, with a spread, contributions and histograms."""
+def _checked_pictures(checked: CheckResult, spread: SpreadResult | None,
+                      curves: Sequence[RangeCurve] = ()) -> list[Picture]:
+    """Network, derating of each package, each transfer curve over a source's range and,
+    with a spread, contributions and histograms."""
     design = checked.design
     pictures: list[Picture] = [("network", network_drawing(checked))]
+    pictures += [(f"range-{k}-{_slug(c.label)}", transfer_curve(c))
+                 for k, c in enumerate(curves, 1)]
     pictures += [(f"derating-{_slug(package)}",
                   derating_curve(design, checked.parts, package, spread=spread))
                  for package in packages_used(checked.parts)]
@@ -171,24 +178,27 @@ def _checked_pictures(checked: CheckResult, spread: SpreadResult | None) -> list
     return pictures
 
 
-def check_pictures(result: CheckResult) -> list[Picture]:
+def check_pictures(result: CheckResult, curves: Sequence[RangeCurve] = ()) -> list[Picture]:
     """Every picture of a checked design, named by file stem.
 
-    The network with its values (``network``), the derating curve of each
+    The network with its values (``network``), each target across a source's
+    range when ``curves`` are given (``range-1-output``, from
+    :func:`synth.spread.range_curve.range_curves`), the derating curve of each
     package used (``derating-0603``) and, when the spread was analysed, each
     target's contribution bars (``contributions-1-output``) and Monte Carlo
     histogram (``spread-1-output``).
     """
-    return _checked_pictures(result, result.spread)
+    return _checked_pictures(result, result.spread, curves)
 
 
 def design_pictures(result: SynthesisResult, cost: str = "supply",
-                    front: ErrorFront | None = None) -> list[Picture]:
+                    front: ErrorFront | None = None,
+                    curves: Sequence[RangeCurve] = ()) -> list[Picture]:
     """Every picture of a synthesis, named by file stem.
 
     The candidate scatter (``candidates``), the error-against-supply front
     when given (``front``), then the pictures of :func:`check_pictures` for
-    the best candidate.
+    the best candidate (``curves`` its range curves).
     """
     pictures: list[Picture] = [("candidates", candidate_scatter(result, cost=cost))]
     if front is not None:
@@ -196,5 +206,5 @@ def design_pictures(result: SynthesisResult, cost: str = "supply",
                                              title=result.design.title or None)))
     if result.candidates:
         best = result.candidates[0]
-        pictures += _checked_pictures(best.check, best.spread)
+        pictures += _checked_pictures(best.check, best.spread, curves)
     return pictures
