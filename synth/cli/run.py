@@ -73,8 +73,9 @@ def _plots(design: Design, result: SynthesisResult, search: SearchOptions,
 
     best = result.candidates[0].check
     curves = range_curves(result.design, best.positions, best.values)
-    return plot_files(design_pictures(result, cost=search.plot_axis, front=front,
-                                      curves=curves), spread.plots)
+    extra = {"curves": curves} if curves else {}  # only designs of operating points have them
+    return plot_files(design_pictures(result, cost=search.plot_axis, front=front, **extra),
+                      spread.plots)
 
 
 def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
