@@ -10,8 +10,25 @@ from typing import Any
 from tabulate import tabulate
 
 from synth.report.numbers import json_number
-from synth.spread.records import SpreadResult
+from synth.spread.monte_carlo import SHARD_SIZE
+from synth.spread.records import SampleHistogram, SpreadResult
 from synth.units import format_eng
+
+QUANTILES = (0.001, 0.01, 0.05, 0.5, 0.95, 0.99, 0.999)
+"""Shares of the samples whose quantiles the JSON gives (read from each target's histogram)."""
+
+MC_METHOD = {
+    "statistics": "mean, standard deviation and extremes streamed block by block over every "
+                  "sample (pairwise merge of Chan, Golub and LeVeque), in seeded shards merged "
+                  "in shard order",
+    "yield": "samples meeting every window and limit, counted over every sample; 95 % "
+             "Clopper-Pearson interval",
+    "quantiles": "read from each target's histogram of every sample (equal bins over its "
+                 "worst-case range, 2 % wider at each end), linear within a bin: within one "
+                 "bin width (mc_quantile_error) of the samples' own quantiles; null where the "
+                 "share falls outside the range",
+}
+"""How the JSON's Monte Carlo figures are computed (the ``mc_method`` field)."""
 
 
 def _corner(corner: dict[str, str]) -> str:
@@ -61,6 +78,12 @@ def spread_text(spread: SpreadResult, units: list[str]) -> str:
                                              "in window"], disable_numparse=True))
     if spread.yield_fraction is not None:
         lines.append(f"yield (every window and limit met): {spread.yield_fraction * 100:.4g}%")
+        shards = spread.shards or 0
+        lines.append(f"Monte Carlo figures streamed over every sample in {shards:,} seeded "
+                     f"shard{'s' if shards != 1 else ''} of up to {SHARD_SIZE:,} samples"
+                     + (f"; {spread.samples_kept:,} samples per target kept"
+                        if spread.samples_kept else "; no samples kept")
+                     + "; quantiles (JSON) from each target's histogram, within one bin width")
     if spread.variables and spread.targets:
         lines.append("")
         lines.append("sensitivities (% change of the target per % change of each quantity)")
@@ -94,6 +117,10 @@ def spread_json(spread: SpreadResult) -> dict[str, Any]:
         "temperature": list(spread.temperature_c),
         "samples": s.samples, "distribution": s.distribution, "seed": s.seed,
         "samples_run": spread.samples_run,
+        "shards": spread.shards,
+        "shard_size": None if spread.shards is None else SHARD_SIZE,
+        "samples_kept": spread.samples_kept,
+        "mc_method": None if spread.samples_run is None else dict(MC_METHOD),
         "samples_cut": spread.samples_cut,
         "yield": json_number(spread.yield_fraction),
         "yield_interval": (None if spread.yield_interval is None
@@ -109,6 +136,8 @@ def spread_json(spread: SpreadResult) -> dict[str, Any]:
             "sensitivities": {k: json_number(v) for k, v in t.sensitivities.items()},
             "mc_mean": json_number(t.mc_mean), "mc_std": json_number(t.mc_std),
             "inside": json_number(t.inside),
+            "mc_min": json_number(t.mc_min), "mc_max": json_number(t.mc_max),
+            **_histogram_json(t.mc_histogram),
         } for t in spread.targets],
         "parts": [{
             "ref": p.ref, "nominal_power": json_number(p.nominal_power),
@@ -120,4 +149,17 @@ def spread_json(spread: SpreadResult) -> dict[str, Any]:
             **({"point": p.point} if p.point is not None else {}),
             "allowed_voltage": json_number(p.allowed_voltage),
         } for p in spread.parts],
+    }
+
+
+def _histogram_json(histogram: SampleHistogram | None) -> dict[str, Any]:
+    """A target's quantiles, their error bound and its histogram (all null without samples)."""
+    if histogram is None:
+        return {"mc_quantiles": None, "mc_quantile_error": None, "mc_histogram": None}
+    return {
+        "mc_quantiles": {f"{p:g}": json_number(histogram.quantile(p)) for p in QUANTILES},
+        "mc_quantile_error": json_number(histogram.bin_width),
+        "mc_histogram": {"low": json_number(histogram.low), "high": json_number(histogram.high),
+                         "counts": list(histogram.counts), "below": histogram.below,
+                         "above": histogram.above, "undefined": histogram.undefined},
     }

@@ -56,7 +56,8 @@ class SampleTally:
     bins : int
         Equal bins per histogram.
     keep : int
-        Leading rows (sample numbers ``0 .. keep - 1`` of the whole run) whose values are kept.
+        How many of the first samples given (by :meth:`add` or :meth:`merge`, in order)
+        are kept; their buffer is taken at the first one kept.
 
     Notes
     -----
@@ -85,12 +86,12 @@ class SampleTally:
         self.undefined = np.zeros(columns, dtype=np.int64)
         self.inside = np.zeros(columns, dtype=np.int64)
         self.passed = 0
-        self.kept = np.empty((0, columns))
+        self._kept = np.empty((0, columns))
+        self._kept_rows = 0
         self._binned = [c for c, r in enumerate(ranges) if r is not None]
         self._edges = [np.linspace(r[0], r[1], bins + 1) for r in ranges if r is not None]
 
-    def add(self, values: np.ndarray, inside: np.ndarray, good: np.ndarray,
-            first_row: int = 0) -> None:
+    def add(self, values: np.ndarray, inside: np.ndarray, good: np.ndarray) -> None:
         """Take a block of samples.
 
         Parameters
@@ -101,8 +102,6 @@ class SampleTally:
             ``(M, targets)`` booleans: the sample inside the target's window.
         good : numpy.ndarray
             ``(M,)`` booleans: the sample meets every window and limit.
-        first_row : int
-            The run's number of the block's first sample (which rows are kept).
         """
         m = len(values)
         if m == 0:
@@ -116,8 +115,7 @@ class SampleTally:
         self._bin(values)
         self.inside += inside.sum(axis=0)
         self.passed += int(np.count_nonzero(good))
-        if first_row < self.keep:
-            self.kept = np.concatenate([self.kept, values[:self.keep - first_row]])
+        self._keep(values)
 
     def merge(self, other: SampleTally) -> None:
         """Add another tally's samples (taken after this one's: kept rows follow in order)."""
@@ -132,14 +130,26 @@ class SampleTally:
         self.undefined += other.undefined
         self.inside += other.inside
         self.passed += other.passed
-        room = self.keep - len(self.kept)
-        if room > 0 and len(other.kept):
-            self.kept = np.concatenate([self.kept, other.kept[:room]])
+        self._keep(other.kept)
+
+    @property
+    def kept(self) -> np.ndarray:
+        """``(rows, targets)``: the kept samples, in the order they were given."""
+        return self._kept[:self._kept_rows]
 
     @property
     def std(self) -> np.ndarray:
         """Population standard deviation (as numpy.std)."""
         return np.sqrt(self.m2 / max(self.count, 1))
+
+    def _keep(self, block: np.ndarray) -> None:
+        room = min(self.keep - self._kept_rows, len(block))
+        if room <= 0:
+            return
+        if len(self._kept) < self.keep:
+            self._kept = np.empty((self.keep, block.shape[1]))
+        self._kept[self._kept_rows:self._kept_rows + room] = block[:room]
+        self._kept_rows += room
 
     def _combine(self, m: int, mean: np.ndarray, m2: np.ndarray) -> None:
         total = self.count + m
@@ -151,16 +161,13 @@ class SampleTally:
 
     def _bin(self, values: np.ndarray) -> None:
         """Histogram counts of a block, as numpy.histogram(values, bins, range) counts them."""
-        finite = np.isfinite(values)
-        self.undefined += len(values) - finite.sum(axis=0)
+        self.undefined += len(values) - np.isfinite(values).sum(axis=0)
         for column, edges in zip(self._binned, self._edges, strict=True):
-            x = values[finite[:, column], column]
+            x = np.ascontiguousarray(values[:, column])
             first, last = edges[0], edges[-1]
-            below = x < first
-            above = x > last
-            self.below[column] += int(np.count_nonzero(below))
-            self.above[column] += int(np.count_nonzero(above))
-            x = x[~(below | above)]
+            self.below[column] += int(np.count_nonzero(x < first))
+            self.above[column] += int(np.count_nonzero(x > last))
+            x = x[(x >= first) & (x <= last)]  # NaN falls out here
             at = ((x - first) * (self.bins / (last - first))).astype(np.intp)
             np.clip(at, 0, self.bins - 1, out=at)
             # the scaled index may be one off at an edge: compare with the edges themselves

@@ -142,3 +142,18 @@ def test_design_pictures_add_the_scatter_and_the_front(result):
     assert {"candidates", "front", "network", "derating-0603",
             "contributions-1-voltage-at-out", "spread-1-voltage-at-out"} == set(pictures)
     assert "hottest part's use (%)" in svg_text(pictures["candidates"])
+
+
+def test_histogram_of_kept_samples_says_how_many_of_how_many():
+    design = divider({"voltage": "out", "at_most": "4.2 V"})
+    kept = analyse_spread(design, {"R1": 20e3},
+                          SpreadSettings(samples=2000, seed=3, keep_samples=True,
+                                         kept_samples=300))
+    assert len(kept.targets[0].mc_values) == 300
+    assert "Monte Carlo, first 300 of 2,000 samples" in svg_text(target_histogram(design, kept))
+    every = analyse_spread(design, {"R1": 20e3},
+                           SpreadSettings(samples=2000, seed=3, keep_samples=True))
+    assert "Monte Carlo, 2,000 samples" in svg_text(target_histogram(design, every))
+    streamed = analyse_spread(design, {"R1": 20e3}, SpreadSettings(samples=2000, seed=3))
+    assert "Monte Carlo, 2,000 samples in 256 bins" in svg_text(
+        target_histogram(design, streamed))

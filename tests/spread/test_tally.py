@@ -18,7 +18,7 @@ def _tally_of(values: np.ndarray, ranges, block: int, keep: int = 0) -> SampleTa
     inside = values > MIDDLES
     for start in range(0, len(values), block):
         rows = slice(start, start + block)
-        tally.add(values[rows], inside[rows], inside[rows].all(axis=1), first_row=start)
+        tally.add(values[rows], inside[rows], inside[rows].all(axis=1))
     return tally
 
 
@@ -57,7 +57,8 @@ def test_merged_tallies_equal_one_pass():
     whole = _tally_of(values, RANGES, 6000, keep=2500)
     merged = SampleTally(RANGES, bins=16, keep=2500)
     for start in range(0, 6000, 1700):
-        part = _tally_of(values[start:start + 1700], RANGES, 500, keep=max(0, 2500 - start))
+        keep = max(0, min(2500 - start, 1700))  # this part's share of the first 2,500
+        part = _tally_of(values[start:start + 1700], RANGES, 500, keep=keep)
         merged.merge(part)
     assert merged.count == whole.count
     np.testing.assert_allclose(merged.mean, whole.mean, rtol=1e-13)

@@ -290,7 +290,8 @@ def _targets(targets: tuple[TargetReport, ...], spread: SpreadResult | None) -> 
                         f"{spread.yield_interval[1] * 100:.4g} %)")
             out.append(element("p", element("b", "Yield: "),
                                f"{spread.yield_fraction * 100:.4g} % of "
-                               f"{spread.settings.samples:,} Monte Carlo samples meet every "
+                               f"{spread.samples_run or spread.settings.samples:,} Monte "
+                               "Carlo samples run meet every "
                                f"window and every part's power and voltage allowance{interval}."))
     return out
 
