@@ -12,6 +12,7 @@ __all__ = ["design_section", "passes", "shown_check", "verdict_lines"]
 import math
 
 from synth.design.model import Design, Resistor
+from synth.report.points import points_lines
 from synth.report.review.figures import ReviewFigure
 from synth.report.review.markup import Cell, Markup, element, table
 from synth.report.verdict import check_verdict_text, error_text, status_text, verdict_text
@@ -118,8 +119,12 @@ def _inputs(design: Design, spread: SpreadResult | None) -> list[Markup]:
                          if s.samples else "no Monte Carlo (0 samples)")))
     else:
         facts.append(("spread", "not analysed"))
+    # a design of operating points lists its parts as written, once, and names its points
+    written = design.single or design
+    facts += [("operating points", line.removeprefix("operating points: "))
+              for line in points_lines(design)[:1]]
     out = [element("h3", "Inputs and assumptions"), _facts(facts)]
-    if design.sources:
+    if written.sources:
         out.append(table(
             ["source", "kind", "between", "value", "tolerance"],
             [[s.ref, s.kind, f"{s.pos} (+) and {s.neg}" if s.kind == "voltage"
@@ -127,29 +132,29 @@ def _inputs(design: Design, spread: SpreadResult | None) -> list[Markup]:
               _quantity(s.value, "V" if s.kind == "voltage" else "A", 6),
               _quantity(s.tolerance_abs, "V" if s.kind == "voltage" else "A")
               if s.tolerance_abs is not None else _percent(s.tolerance)]
-             for s in design.sources], caption="Sources"))
+             for s in written.sources], caption="Sources"))
     if design.regulators:
         out.append(table(
             ["regulator", "drives", "holds", "set-point", "tolerance"],
             [[g.ref, g.output, f"{g.sense} above {g.reference}", _quantity(g.setpoint, "V", 6),
               _percent(g.tolerance)] for g in design.regulators], caption="Regulators"))
-    if design.controlled:
+    if written.controlled:
         out.append(table(
             ["controlled source", "kind", "output", "gain (low .. high)"],
             [[c.ref, c.kind, f"{c.pos}, {c.neg}",
               f"{c.gain:.6g} ({c.gain_low:.6g} .. {c.gain_high:.6g})"]
-             for c in design.controlled], caption="Controlled sources"))
-    if design.transistors:
+             for c in written.controlled], caption="Controlled sources"))
+    if written.transistors:
         out.append(table(
             ["transistor", "type", "C, B, E", "VBE", "β (low .. high)"],
             [[t.ref, t.polarity, f"{t.collector}, {t.base}, {t.emitter}",
               _quantity(t.vbe, "V", 4), f"{t.beta:g} ({t.beta_low:g} .. {t.beta_high:g})"]
-             for t in design.transistors], caption="Transistors"))
+             for t in written.transistors], caption="Transistors"))
     out.append(table(
         ["position", "between", "value", "parts", "tolerance", "TCR", "package", "on the BOM"],
         [[r.ref, f"{r.nodes[0]}, {r.nodes[1]}", _value_spec(r), _arrangement(r),
           _percent(r.tolerance), f"{r.tcr * 1e6:g} ppm/°C", r.package or "none (unrated)",
-          "yes" if r.bom else "no (a model)"] for r in design.resistors],
+          "yes" if r.bom else "no (a model)"] for r in written.resistors],
         caption="Resistor positions"))
     out.append(table(
         ["target", "quantity", "goal", "hard window"],

@@ -148,3 +148,22 @@ def test_without_figures_and_titles(review):
     assert "<svg" not in page and "Bill of materials" not in words
     assert "Design review: fixed divider" in words
     assert "network lamp, 2 copies on the board" in words
+
+
+def test_a_design_of_operating_points_lists_each_part_once(review):
+    """The positions table holds the design as written; the points are named."""
+    from synth.checking import check
+    from synth.design.reader import design_from_dict
+
+    _, _, _, digest = review
+    design = design_from_dict({
+        "source": [{"ref": "VB", "kind": "voltage", "plus": "bat", "minus": "gnd",
+                    "range": ["3 V", "4.2 V"]}],
+        "resistor": [{"ref": "RA", "nodes": ["bat", "out"], "value": "20k"},
+                     {"ref": "RB", "nodes": ["out", "gnd"], "value": "10k"}],
+        "target": [{"voltage": "out", "at_most": "1.5 V"}]})
+    page = review_html([ReviewedDesign(result=check(design), name="sense")], bom=None,
+                       digest=digest, version="1")
+    assert "RA@" not in page and "VB@VB high (+)" not in page
+    assert "VB low (VB = 3 V); VB high (VB = 4.2 V)" in page
+    assert "voltage at out @ VB high" in page
