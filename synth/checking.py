@@ -26,6 +26,7 @@ from synth.circuit.solution import solution_difference
 from synth.design.model import Design
 from synth.design.points import point_label
 from synth.errors import DesignError, name_list, nearest_name
+from synth.linearity import check_linearity
 from synth.rating import exceeds, falls_short, use_of
 from synth.results import CheckResult, PartReport, Problem, TargetReport
 from synth.search.ideal import ideal_values
@@ -61,6 +62,7 @@ def target_reports(design: Design, values: np.ndarray, noise: np.ndarray | None 
             label=target.label, kind=target.kind, unit=target.unit, value=float(value),
             goal=target.equals, low=low, high=high, error=error, met=met,
             relative=target.relative, status=status,
+            error_unit=target.reading[0] if target.reading else None,
         ))
     return tuple(rows)
 
@@ -293,14 +295,24 @@ def check_block(design: Design, evaluator: Evaluator, positions: np.ndarray,
     parts = np.atleast_2d(np.asarray(parts, dtype=float))
     result = evaluator.evaluate(positions, part_values=parts)
     physical = {ref for r in design.physical_resistors for ref in r.part_refs}
+    # linearity is judged on the single network, its sensor at every temperature of the range
+    single = design.single or design
+    single_ev = (evaluator if single is design else Evaluator(single)) \
+        if design.linearities else None
+    column = {r.ref: k for k, r in enumerate(design.resistors)}
+    single_columns = np.array([column[r.ref] for r in single.resistors], dtype=int)
     out = []
     for row in range(len(positions)):
+        lines = tuple(check_linearity(single, lin, positions[row, single_columns], single_ev)
+                      for lin in design.linearities)
         v = result.solution.node_voltages[row]
         reports = _part_reports(design, evaluator, row, result, parts[row])
         targets = target_reports(design, result.targets[row], result.target_noise[row])
         problems = [p for part in reports if part.kind == "resistor"
                     for p in _point_problems(design, part)]
         problems += [_window_problem(t) for t in targets if not t.met]
+        problems += [Problem("linearity", f"{c.label} at {c.worst_c:.4g} °C", c.worst_error_c,
+                             c.within_c, "°C") for c in lines if not c.met]
         max_voltage = float(v.max() - v.min())
         cautions = tuple(_cautions(design, reports, max_voltage))
         if design.points:
@@ -316,6 +328,7 @@ def check_block(design: Design, evaluator: Evaluator, positions: np.ndarray,
             verify_difference=None,
             positions={r.ref: float(positions[row, k]) for k, r in enumerate(design.resistors)
                        if r.copy_of is None},
+            linearity=lines,
         ))
     return out
 

@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 
 from synth.deadline import Cut
 from synth.design.model import Design
+from synth.linearity import LinearityCheck
 from synth.spread.records import SpreadResult
 from synth.units import format_eng, format_window
 
@@ -21,9 +22,10 @@ def _edge(value: float | None, side: int) -> float:
     return side * math.inf if value is None else value
 
 
-PROBLEM_KINDS = ("power", "voltage", "window", "yield")
+PROBLEM_KINDS = ("power", "voltage", "window", "yield", "linearity")
 """A part over its power allowance, over its voltage allowance, a target out of its window,
-a Monte Carlo yield short of ``min_yield``."""
+a Monte Carlo yield short of ``min_yield``, an output off its linearity target's line by more
+than allowed (°C)."""
 
 
 @dataclass(frozen=True)
@@ -66,6 +68,9 @@ class Problem:
         if self.kind == "yield":
             return (f"the Monte Carlo yield's 95 % lower bound {self.value * 100:.4g} % is short "
                     f"of min_yield {self.limit * 100:g} %")
+        if self.kind == "linearity":
+            return (f"{self.subject} is {self.value:+.3g} °C off its line, beyond the "
+                    f"±{self.limit:g} °C allowed")
         if self.kind == "power":
             return (f"{self.subject} dissipates {format_eng(self.value, 'W')}, over its allowed "
                     f"{format_eng(self.limit, 'W')}")
@@ -163,6 +168,9 @@ class TargetReport:
         For ``"goal missed"``: the limit that costs the accuracy.
     unlimited_error : float or None
         For ``"goal missed"``: the error the catalogue reaches without that limit.
+    error_unit : str or None
+        The unit of ``error`` when the target is judged in another quantity (``"°C"``
+        for a point of a linearity target); None otherwise.
     """
 
     label: str
@@ -178,6 +186,7 @@ class TargetReport:
     status: str = "met"
     binding: str | None = None
     unlimited_error: float | None = None
+    error_unit: str | None = None
 
 
 @dataclass(frozen=True)
@@ -212,6 +221,8 @@ class CheckResult:
         Tolerance, temperature and supply spread, when asked for.
     positions : dict of str to float
         Effective resistance of every position, ohm.
+    linearity : tuple of LinearityCheck
+        Each linearity target's errors in °C on its grid and refined.
     """
 
     design: Design
@@ -227,6 +238,7 @@ class CheckResult:
     filled: dict[str, float] = field(default_factory=dict)
     spread: SpreadResult | None = None
     positions: dict[str, float] = field(default_factory=dict)
+    linearity: tuple[LinearityCheck, ...] = ()
 
     @property
     def ok(self) -> bool:

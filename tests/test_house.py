@@ -23,7 +23,7 @@ LAYERS = (
     ("sweep",),
     ("checking", "synthesis", "front"),
     ("binding",),
-    ("results", "cautions"),
+    ("results", "cautions", "linearity"),
     ("search",),
     ("spread",),
     ("circuit",),

@@ -115,6 +115,8 @@ class Window(click.ParamType[str]):
                 parse_fraction(text)
             elif self.unit == "Ω":
                 parse_resistance(text)
+            elif self.unit == "°C":
+                _temperature(text)
             elif self.unit:
                 parse_quantity(text, self.unit)
             else:

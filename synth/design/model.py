@@ -14,11 +14,16 @@ __all__ = [
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from synth.catalog.packages import PackageRating
 from synth.design.position import Position
 from synth.design.target import Target
 from synth.rating import Allowance, allowance
+
+if TYPE_CHECKING:  # the sensor records import this module's Resistor
+    from synth.design.linearity import Linearity
+    from synth.design.sensor import Sensor
 
 
 @dataclass(frozen=True)
@@ -297,6 +302,11 @@ class Design:
         Monte Carlo samples (95 % lower confidence bound).
     min_yield : float or None
         The least yield (fraction) with ``require = "yield"``.
+    sensors : tuple of Sensor
+        The temperature sensors (``[[sensor]]``); each is also in ``resistors``,
+        at its model's value at ``ambient``, left off the BOM.
+    linearities : tuple of Linearity
+        The linearity targets (``[[linearity]]``).
     deprecations : tuple of str
         One note per old key name the file used (still read for one version).
     packages_path : Path or None
@@ -329,6 +339,8 @@ class Design:
     packages_path: Path | None = None
     points: tuple[OperatingPoint, ...] = ()
     single: Design | None = field(default=None, repr=False)
+    sensors: tuple[Sensor, ...] = ()
+    linearities: tuple[Linearity, ...] = ()
 
     @property
     def physical_resistors(self) -> tuple[Resistor, ...]:

@@ -31,12 +31,15 @@ from synth.design.fields import (
     table_array,
     temperature_end,
 )
+from synth.design.linearity import read_linearity
 from synth.design.model import REQUIREMENTS, Design, Regulator, Source
 from synth.design.points import expand_points
 from synth.design.read_point import read_points, source_range
 from synth.design.read_resistor import read_resistor
 from synth.design.read_target import read_target
 from synth.design.read_transfer import read_transfer
+from synth.design.sensor import read_sensor, sensor_resistor
+from synth.design.sensor_points import sensor_points
 from synth.design.transfer import transfer_targets
 from synth.errors import DesignError, name_list, nearest_name
 from synth.inputs import present, require_suffix
@@ -47,7 +50,7 @@ from synth.units import (
 )
 
 _TOP_KEYS = ("design", "source", "resistor", "regulator", "controlled", "transistor",
-             "amplifier", "target", "point", "transfer")
+             "amplifier", "target", "point", "transfer", "sensor", "linearity")
 
 
 _DESIGN_KEYS = (
@@ -265,6 +268,12 @@ def _design(data: Mapping[str, Any], origin: str) -> Design:
                     for i, s in enumerate(table_array(origin, data, "source"), 1))
     resistors = tuple(read_resistor(origin, i, r, settings, packages)
                       for i, r in enumerate(table_array(origin, data, "resistor"), 1))
+    sensors = tuple(read_sensor(origin, i, t)
+                    for i, t in enumerate(table_array(origin, data, "sensor"), 1))
+    resistors += tuple(sensor_resistor(origin, s, settings["ambient_c"]) for s in sensors)
+    by_ref = {s.ref: s for s in sensors}
+    linearities = tuple(read_linearity(origin, i, t, settings["ground"], by_ref)
+                        for i, t in enumerate(table_array(origin, data, "linearity"), 1))
     regulators = tuple(_read_regulator(origin, i, g)
                        for i, g in enumerate(table_array(origin, data, "regulator"), 1))
     targets = tuple(read_target(origin, i, t, settings["ground"])
@@ -282,9 +291,13 @@ def _design(data: Mapping[str, Any], origin: str) -> Design:
         controlled=active.controlled, transistors=active.transistors,
         require=settings["require"], min_yield=settings["min_yield"],
         deprecations=settings["deprecations"], packages_path=packages_path,
+        sensors=sensors, linearities=linearities,
     )
     check_references(design)
     points, base_names = read_points(origin, data, design.sources, ranges)
+    points, grid_targets = sensor_points(origin, points, sensors, linearities)
+    if grid_targets:
+        design = replace(design, targets=design.targets + grid_targets)
     transfers = table_array(origin, data, "transfer")
     if points:
         expanded = expand_points(design, points, base_names=base_names)

@@ -55,6 +55,12 @@ class Target:
         For a ``gain`` or ``offset`` (:mod:`synth.design.transfer`) whose input
         is a current source: its copies at the two points (their currents are
         the input); empty otherwise.
+    reading : tuple of (str, float), or None
+        For a target judged in another quantity (a linearity grid point, judged
+        in °C): that quantity's unit and how much of the target's unit one of
+        it is (V per °C, the line's slope).  Its error is then ``(value -
+        goal) / per`` in that unit, never relative, and one unit of its
+        objective is its half window (an absolute ``within`` is required).
 
     Notes
     -----
@@ -78,6 +84,7 @@ class Target:
     at: tuple[str, ...] | None = None
     point: str | None = None
     input_refs: tuple[str, ...] = ()
+    reading: tuple[str, float] | None = None
 
     @property
     def bounds(self) -> tuple[float, float]:
@@ -99,8 +106,8 @@ class Target:
 
     @property
     def relative(self) -> bool:
-        """True when the error is relative: the target has a non-zero goal."""
-        return self.equals is not None and self.equals != 0
+        """True when the error is relative: the target has a non-zero goal (and no ``reading``)."""
+        return self.equals is not None and self.equals != 0 and self.reading is None
 
     @property
     def scale(self) -> float:
@@ -111,8 +118,8 @@ class Target:
         ``within``); for bound-only targets the largest finite bound (or 1),
         used to rank violations.
         """
-        if self.equals is not None and self.equals != 0:
-            return abs(self.equals)
+        if self.relative:
+            return abs(self.equals or 0.0)
         if self.within_abs is not None:
             return self.within_abs
         low, high = self.bounds
@@ -135,6 +142,8 @@ class Target:
         value = np.asarray(value, dtype=float)
         if self.equals is None:
             return np.full(value.shape, np.nan)
+        if self.reading is not None:
+            return (value - self.equals) / self.reading[1]
         if self.equals == 0:
             return value - 0.0
         return (value - self.equals) / abs(self.equals)

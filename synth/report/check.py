@@ -15,6 +15,7 @@ from typing import Any
 
 from tabulate import tabulate
 
+from synth.report.linearity import linearity_json, linearity_text
 from synth.report.numbers import NOISE_FRACTION, json_number
 from synth.report.points import points_json, points_lines
 from synth.report.spread import spread_json, spread_text
@@ -103,6 +104,9 @@ def check_text(result: CheckResult) -> str:
         lines.append(tabulate(_target_rows(result.targets),
                               headers=["target", "value", "goal", "error", "window", "met"],
                               disable_numparse=True))
+    if result.linearity:
+        lines.append("")
+        lines.append(linearity_text(result.design.linearities, result.linearity))
     lines.append("")
     at_points = bool(design.points)
     lines.append(tabulate(
@@ -137,7 +141,8 @@ def target_json(target: TargetReport) -> dict[str, Any]:
         "value": json_number(target.value), "goal": json_number(target.goal),
         "low": json_number(target.low), "high": json_number(target.high),
         "error": json_number(target.error), "met": target.met,
-        "error_unit": "" if target.relative else target.unit, "status": target.status,
+        "error_unit": target.error_unit or ("" if target.relative else target.unit),
+        "status": target.status,
         "binding": target.binding, "unlimited_error": json_number(target.unlimited_error),
     }
 
@@ -192,6 +197,9 @@ def check_json(result: CheckResult) -> dict[str, Any]:
     }
     if result.design.points:
         doc["points"] = points_json(result.design)
+    if result.linearity:
+        doc["linearity"] = [linearity_json(lin, c) for lin, c in
+                            zip(result.design.linearities, result.linearity, strict=True)]
     if result.verify_difference is not None:
         doc["verify"] = {"max_difference": result.verify_difference}
     if result.spread is not None:

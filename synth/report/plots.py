@@ -27,6 +27,7 @@ from synth.front import ErrorFront
 from synth.report.pictures.axes import eng_axis, figure_for, plain_axis
 from synth.report.pictures.contributions import contribution_bars
 from synth.report.pictures.derating import derating_curve, packages_used
+from synth.report.pictures.linearity import linearity_plot
 from synth.report.pictures.network import network_drawing
 from synth.report.pictures.supply_front import front_plot
 from synth.report.pictures.transfer_curve import transfer_curve
@@ -167,6 +168,8 @@ def _checked_pictures(checked: CheckResult, spread: SpreadResult | None,
     pictures: list[Picture] = [("network", network_drawing(checked))]
     pictures += [(f"range-{k}-{_slug(c.label)}", transfer_curve(c))
                  for k, c in enumerate(curves, 1)]
+    pictures += [(f"linearity-{k}-{_slug(c.label)}", linearity_plot(c))
+                 for k, c in enumerate(checked.linearity, 1)]
     pictures += [(f"derating-{_slug(package)}",
                   derating_curve(design, checked.parts, package, spread=spread))
                  for package in packages_used(checked.parts)]
@@ -181,7 +184,8 @@ def _checked_pictures(checked: CheckResult, spread: SpreadResult | None,
 def check_pictures(result: CheckResult, curves: Sequence[RangeCurve] = ()) -> list[Picture]:
     """Every picture of a checked design, named by file stem.
 
-    The network with its values (``network``), each target across a source's
+    The network with its values (``network``), each linearity target's error
+    in °C against temperature (``linearity-1-out``), each target across a source's
     range when ``curves`` are given (``range-1-output``, from
     :func:`synth.spread.range_curve.range_curves`), the derating curve of each
     package used (``derating-0603``) and, when the spread was analysed, each

@@ -8,7 +8,10 @@ from typing import Any
 
 from tabulate import tabulate
 
+from synth.design.model import Design
+from synth.design.points import COPY_MARK
 from synth.report.check import part_json, problem_json, target_json
+from synth.report.linearity import linearity_json, linearity_text
 from synth.report.numbers import json_number
 from synth.report.points import points_json, points_lines
 from synth.report.spread import spread_json, spread_text
@@ -30,6 +33,32 @@ def _target_cell(t: TargetReport) -> str:
     return value
 
 
+def _columns(design: Design) -> list[tuple[str, list[int]]]:
+    """The ranked table's target columns: one per target, except that the grid points of a
+    linearity target (judged in °C) share one column, headed by its label."""
+    columns: list[tuple[str, list[int]]] = []
+    grouped: dict[str, list[int]] = {}
+    for k, t in enumerate(design.targets):
+        if t.reading is None:
+            columns.append((t.label, [k]))
+            continue
+        base = t.label.rsplit(f" {COPY_MARK} ", 1)[0]
+        if base not in grouped:
+            grouped[base] = []
+            columns.append((f"{base} (largest on grid)", grouped[base]))
+        grouped[base].append(k)
+    return columns
+
+
+def _group_cell(targets: list[TargetReport]) -> str:
+    if len(targets) == 1 and targets[0].error_unit is None:
+        return _target_cell(targets[0])
+    worst = max(targets, key=lambda t: abs(t.error or 0.0))
+    where = worst.label.rsplit(f" {COPY_MARK} ", 1)[-1]
+    cell = f"{error_text(worst)} at {where}"
+    return cell + (" OUT" if not all(t.met for t in targets) else "")
+
+
 def _worst_term(candidate: Candidate) -> TargetReport | None:
     """The goal target whose error sets the candidate's objective."""
     goals = [t for t in candidate.targets if t.goal is not None and t.error is not None]
@@ -37,7 +66,8 @@ def _worst_term(candidate: Candidate) -> TargetReport | None:
         return None
 
     def term(t: TargetReport) -> float:
-        scale = abs(t.goal or 0.0) or max(abs(t.high - (t.goal or 0.0)), 1e-300)
+        half = max(abs(t.high - (t.goal or 0.0)), 1e-300)
+        scale = half if t.error_unit else abs(t.goal or 0.0) or half
         return abs(t.value - (t.goal or 0.0)) / scale
 
     return max(goals, key=term)
@@ -54,18 +84,24 @@ def _error_cells(candidate: Candidate) -> list[str]:
     if worst.relative:
         wc = max(abs(spread.worst_low - goal), abs(spread.worst_high - goal)) / abs(goal)
         return [error_text(worst), f"{wc * 100:.3g}%", f"{spread.rss * 100:.3g}%"]
+    target = next((t for t in candidate.check.design.targets if t.label == worst.label), None)
+    if target is not None and target.reading is not None:  # judged in °C: V over the slope
+        unit, per = target.reading
+        wc = max(abs(spread.worst_low - goal), abs(spread.worst_high - goal)) / abs(per)
+        return [error_text(worst), f"{wc:.3g} {unit}", f"{spread.rss_abs / abs(per):.3g} {unit}"]
     wc = max(abs(spread.worst_low - goal), abs(spread.worst_high - goal))
     return [error_text(worst), format_eng(wc, worst.unit, 4), format_eng(spread.rss_abs,
                                                                          worst.unit, 4)]
 
 
-def _row(candidate: Candidate, refs: list[str]) -> list[str]:
+def _row(candidate: Candidate, refs: list[str],
+         columns: list[tuple[str, list[int]]]) -> list[str]:
     cells = [str(candidate.rank)]
     for ref in refs:
         value = candidate.values.get(ref)
         cells.append("-" if value is None else
                      f"{format_eng(value, 'Ω', 4)} {candidate.series.get(ref, '')}".strip())
-    cells += [_target_cell(t) for t in candidate.targets]
+    cells += [_group_cell([candidate.targets[k] for k in ks]) for _, ks in columns]
     hot = candidate.hottest
     cells.append("-" if hot is None or hot.utilization is None
                  else f"{hot.ref} {hot.utilization * 100:.3g}%")
@@ -97,13 +133,14 @@ def design_text(result: SynthesisResult) -> str:
         lines.append("no candidate could be evaluated")
         return "\n".join(lines)
     refs = list(result.candidates[0].values)
-    headers = ["rank", *refs, *[t.label for t in design.targets], "hottest", "supply"]
+    columns = _columns(design)
+    headers = ["rank", *refs, *[label for label, _ in columns], "hottest", "supply"]
     if result.candidates[0].spread is not None:
         headers += ["nominal error", "worst-case error", "RSS", "yield"]
         phrase = {"nominal": "nominal error", "yield": "Monte Carlo yield",
                   "worst-case": "worst-case error over the tolerance box"}[result.rank_by]
         lines.append(f"ranked by {phrase}")
-    lines.append(tabulate([_row(c, refs) for c in result.candidates], headers=headers,
+    lines.append(tabulate([_row(c, refs, columns) for c in result.candidates], headers=headers,
                           disable_numparse=True))
     lines.append("")
     best = result.candidates[0]
@@ -117,6 +154,9 @@ def design_text(result: SynthesisResult) -> str:
         lines.append(f"hottest part of the best design: {hot.ref} at "
                      f"{format_eng(hot.power, 'W')}, {hot.utilization * 100:.3g}% of its "
                      f"allowed {format_eng(hot.allowed_power or 0.0, 'W')}")
+    if best.check.linearity:
+        lines.append("")
+        lines.append(linearity_text(best.check.design.linearities, best.check.linearity))
     if best.spread is not None:
         lines.append("")
         lines.append("spread of the best design:")
@@ -139,6 +179,9 @@ def _candidate_json(candidate: Candidate) -> dict[str, Any]:
         "problems": [str(p) for p in candidate.problems],
         "problem_details": [problem_json(p) for p in candidate.problems],
         **({"spread": spread_json(candidate.spread)} if candidate.spread is not None else {}),
+        **({"linearity": [linearity_json(lin, c) for lin, c in
+                          zip(candidate.check.design.linearities, candidate.check.linearity,
+                              strict=True)]} if candidate.check.linearity else {}),
     }
 
 

@@ -24,6 +24,8 @@ def error_text(target: TargetReport) -> str:
     """A goal's error: per cent for a non-zero goal, the target's unit for a zero goal."""
     if target.error is None:
         return "-"
+    if target.error_unit:
+        return f"{target.error:+.3g} {target.error_unit}"
     if target.relative:
         if abs(target.error) < NOISE_FRACTION:
             return "0%"  # float noise of an exact result is not data

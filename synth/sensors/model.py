@@ -22,8 +22,10 @@ class SensorModel(Protocol):
     in °C, resistances in ohm.
     """
 
-    kind: str
-    """``"rtd"`` or ``"ntc"``."""
+    @property
+    def kind(self) -> str:
+        """``"rtd"`` or ``"ntc"``."""
+        ...
 
     @property
     def valid_c(self) -> tuple[float, float]:
