@@ -27,10 +27,11 @@ from synth.deadline import Deadline
 from synth.design.model import REQUIREMENTS, Design
 from synth.errors import DesignError
 from synth.results import Candidate, Problem, SynthesisResult, TargetReport
-from synth.search.branch_and_bound import SearchOutcome, search
+from synth.search.branch_and_bound import SearchOutcome
 from synth.search.choices import Choices, choices_for, combination_count, values_of_row
 from synth.search.ideal import ideal_values
 from synth.search.local import local_seeds
+from synth.search.parallel import search
 from synth.search.problem import SearchProblem
 from synth.search.ranking import TIE_TOLERANCE
 from synth.spread.analyse import analyse_spread
@@ -149,8 +150,8 @@ YIELD_POOL = 50
 
 
 def _limit_cost(design: Design, evaluator: Evaluator, choices: list[Choices],
-                seeds: np.ndarray | None, best: Candidate | None, deadline: Deadline
-                ) -> tuple[tuple[Problem, ...], Candidate | None]:
+                seeds: np.ndarray | None, best: Candidate | None, deadline: Deadline,
+                jobs: int = 1) -> tuple[tuple[Problem, ...], Candidate | None]:
     """The part limits that cost the best design accuracy, and the limit-free best.
 
     Searches again with every part's power and voltage limit dropped (windows
@@ -166,7 +167,7 @@ def _limit_cost(design: Design, evaluator: Evaluator, choices: list[Choices],
                      "known")
         return (), None
     free = search(design, evaluator, choices, top=1, time_limit_s=deadline.budget(0.8),
-                  seeds=seeds, part_limits=False)
+                  seeds=seeds, part_limits=False, jobs=jobs)
     if not free.proven:
         deadline.cut("limit-cost search", f"stopped after {free.elapsed_s:.2g} s, unfinished: "
                      "a part limit that costs accuracy may go unnamed")
@@ -276,6 +277,7 @@ def synthesize(
     require: str | None = None,
     min_yield: float | None = None,
     deadline: Deadline | None = None,
+    jobs: int = 1,
 ) -> SynthesisResult:
     """Choose standard values for a design's free parts.
 
@@ -314,6 +316,9 @@ def synthesize(
     deadline : Deadline, optional
         A deadline already running (a command's, started before this call);
         built from ``time_limit_s`` when not given.  Its cuts are the result's.
+    jobs : int
+        Most processes the search may use (:mod:`synth.search.parallel`); 1 (the
+        default) runs everything in this process.  The result does not depend on it.
 
     Returns
     -------
@@ -359,7 +364,8 @@ def synthesize(
         design, evaluator, choices, top=max(top, YIELD_POOL) if by_yield else top,
         time_limit_s=deadline.budget(_SEARCH_SHARE), seeds=seeds, progress=progress,
         target_ranges=worst.ranges if worst is not None and rank_by == "worst-case" else None,
-        robust=worst.holds if worst is not None and require == "worst-case" else None)
+        robust=worst.holds if worst is not None and require == "worst-case" else None,
+        jobs=jobs)
     if not outcome.proven:
         deadline.cut("search", f"stopped at the time limit after {outcome.elapsed_s:.2g} s "
                      f"with {outcome.settled * 100:.3g} % of the combinations settled: the "
@@ -371,7 +377,7 @@ def synthesize(
     if not feasible:
         relaxed = search(design, evaluator, choices, top=min(top, 5),
                          time_limit_s=deadline.budget(_SEARCH_SHARE), seeds=seeds,
-                         relaxed=True)
+                         relaxed=True, jobs=jobs)
         if not relaxed.proven:
             deadline.cut("relaxed search", f"stopped after {relaxed.elapsed_s:.2g} s: the "
                          "designs shown are the nearest found, not proven nearest")
@@ -402,7 +408,7 @@ def synthesize(
     if candidates and (not feasible or any(t.status == "soft goal"
                                            for t in candidates[0].targets)):
         limits, unlimited = _limit_cost(design, evaluator, choices, seeds,
-                                        candidates[0] if feasible else None, deadline)
+                                        candidates[0] if feasible else None, deadline, jobs)
     binding = _binding(design, candidates, limits, feasible, considered,
                        min_yield if yield_short else None)
     if feasible and binding is not None:

@@ -31,7 +31,7 @@ LAYERS = (
     ("rating",),
     ("sensors",),
     ("catalog",),
-    ("units", "inputs", "digest", "cluster"),
+    ("units", "inputs", "digest", "cluster", "parallel"),
     ("errors", "schemas", "deadline"),
 )
 """Each module's layer is named by its first dotted part below ``synth``."""

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 __all__ = ["bom_of_values", "bom_parts", "build_bom", "renumber"]
 
+import time
 from collections import defaultdict
 from collections.abc import Callable, Mapping, Sequence
 from typing import cast
@@ -34,6 +35,7 @@ from synth.deadline import Deadline
 from synth.design.board import Board
 from synth.design.model import Design, Resistor
 from synth.errors import DesignError, InfeasibleError
+from synth.parallel import check_jobs, ordered_map
 from synth.results import Candidate, CheckResult
 from synth.synthesis import synthesize
 
@@ -145,7 +147,7 @@ _LEAST_DESIGN_S = 0.01
 def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0,
               progress: Callable[[str], None] | None = None,
               renumber_all: bool = False,
-              work_limit: float = DEFAULT_WORK_LIMIT) -> BomResult:
+              work_limit: float = DEFAULT_WORK_LIMIT, jobs: int = 1) -> BomResult:
     """Design every network of a board, consolidate values and list the parts.
 
     Parameters
@@ -166,6 +168,10 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
     renumber_all : bool
         Number every part afresh in board order (see :func:`renumber`); by default the
         designators of the design files are kept, repeats only renumbered.
+    jobs : int
+        Most processes to use: the networks are designed in parallel (one network's
+        search on them all when it is the only one with free parts); 1 (the default)
+        runs everything in this process.  The BOM does not depend on it.
 
     Returns
     -------
@@ -181,31 +187,11 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
     deadline = Deadline(time_limit_s)
     stock = load_stock(board.stock_path) if board.stock_path else []
     pools, options, notes = [], [], []
-    for number, net in enumerate(board.networks):
-        if progress is not None:
-            progress(net.name)
+    jobs = check_jobs(jobs)
+    designed = _designed_networks(board, progress, jobs, deadline)
+    for net, (candidates, network_notes) in zip(board.networks, designed, strict=True):
         design = net.design
-        if design.free_resistors:
-            # the networks left share the designs' part of the time left evenly
-            left = sum(1 for n in board.networks[number:] if n.design.free_resistors)
-            result = synthesize(design, top=board.pool,
-                                time_limit_s=max(deadline.remaining() * _DESIGN_SHARE / left,
-                                                 _LEAST_DESIGN_S))
-            notes += [f"network {net.name}: cut by the time limit: {cut}" for cut in result.cuts]
-            if not result.feasible:
-                raise InfeasibleError(f"{design.origin}: network {net.name!r} has no standard "
-                                      f"values meeting every window and limit; binding: "
-                                      f"{result.binding}")
-            candidates = [(c.rank, dict(c.check.values), c.objective)
-                          for c in result.candidates]
-            if not result.proven_optimal:
-                notes.append(f"network {net.name}: search not proven optimal")
-        else:
-            checked = check(design)
-            if not checked.ok:
-                raise InfeasibleError(f"{design.origin}: network {net.name!r} fails: "
-                                      + "; ".join(map(str, checked.problems)))
-            candidates = [(1, dict(checked.values), _objective(checked))]
+        notes += network_notes
         if stock_only and stock:
             def from_stock(values: dict[str, float], d: Design = design) -> bool:
                 return all(_stock_match(key, stock, d.packages) for ref, key in
@@ -235,6 +221,69 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
     before = len(set().union(*(p.lines[0] for p in pools)))
     return _listing(board, options, outcome, before, table_of, stock, notes,
                     stock_only=stock_only, renumber_all=renumber_all)
+
+
+_Designed = tuple[list[tuple[int, dict[str, float], float]], list[str]]
+"""A network's candidates (rank, physical part values, objective), and its notes."""
+
+
+def _design_network(work: tuple[str, Design, int, int, float]) -> _Designed:
+    """Design one network (name, design, pool, processes, time limit in s): its best
+    ``pool`` candidates, or its own values checked."""
+    name, design, pool, jobs, time_limit_s = work
+    if design.free_resistors:
+        result = synthesize(design, top=pool, time_limit_s=time_limit_s, jobs=jobs)
+        notes = [f"network {name}: cut by the time limit: {cut}" for cut in result.cuts]
+        if not result.feasible:
+            raise InfeasibleError(f"{design.origin}: network {name!r} has no standard "
+                                  f"values meeting every window and limit; binding: "
+                                  f"{result.binding}")
+        if not result.proven_optimal:
+            notes.append(f"network {name}: search not proven optimal")
+        return [(c.rank, dict(c.check.values), c.objective) for c in result.candidates], notes
+    checked = check(design)
+    if not checked.ok:
+        raise InfeasibleError(f"{design.origin}: network {name!r} fails: "
+                              + "; ".join(map(str, checked.problems)))
+    return [(1, dict(checked.values), _objective(checked))], []
+
+
+_HERE_S = 0.5
+"""Seconds of designing a board spends in this process before the networks left go to
+worker processes (a board designed within them would lose more to starting workers)."""
+
+
+def _designed_networks(board: Board, progress: Callable[[str], None] | None, jobs: int,
+                       deadline: Deadline) -> list[_Designed]:
+    """Every network designed, in board order: the first ones here, while they take less
+    than :data:`_HERE_S` together, then the rest on ``jobs`` processes, one network each.
+
+    The networks left share :data:`_DESIGN_SHARE` of the time left evenly (those on the
+    workers as many at a time as there are workers)."""
+    searched = sum(1 for net in board.networks if net.design.free_resistors)
+    inner = jobs if searched <= 1 else 1  # a lone search gets every process itself
+    designed: list[_Designed] = []
+    start = time.perf_counter()
+    for number, net in enumerate(board.networks):
+        if jobs > 1 and searched > 1 and time.perf_counter() - start > _HERE_S:
+            break
+        if progress is not None:
+            progress(net.name)
+        left = max(sum(1 for n in board.networks[number:] if n.design.free_resistors), 1)
+        limit = max(deadline.remaining() * _DESIGN_SHARE / left, _LEAST_DESIGN_S)
+        designed.append(_design_network((net.name, net.design, board.pool, inner, limit)))
+    rest = board.networks[len(designed):]
+    if not rest:
+        return designed
+    left = max(sum(1 for n in rest if n.design.free_resistors), 1)
+    limit = max(deadline.remaining() * _DESIGN_SHARE * min(jobs, left) / left,
+                _LEAST_DESIGN_S)
+    if progress is not None:
+        for net in rest:
+            progress(net.name)
+    return designed + ordered_map(
+        _design_network, [(net.name, net.design, board.pool, inner, limit) for net in rest],
+        jobs)
 
 
 def bom_of_values(board: Board, picks: Sequence[CheckResult | Candidate],

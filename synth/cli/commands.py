@@ -28,6 +28,7 @@ from synth.cli.options import (
     check_time_limit,
     emit_json,
     friendly,
+    jobs_option,
     search_options,
     series_name_choices,
     spread_options,
@@ -141,9 +142,10 @@ def check_command(design_file: str, as_json: bool, verify: bool, spread: SpreadO
 @click.argument("design_file", type=_DESIGN_FILE)
 @search_options
 @_FORCE_PLOTS
+@jobs_option
 @friendly
 def design_command(design_file: str, search: SearchOptions, spread: SpreadOptions,
-                   force: bool) -> None:
+                   force: bool, jobs: int) -> None:
     """Choose standard values for the free parts of a design.
 
     Shows the ideal continuous values, then the best candidates, each
@@ -153,7 +155,7 @@ def design_command(design_file: str, search: SearchOptions, spread: SpreadOption
     target or limit named).  A DESIGN_FILE of - reads the design from standard
     input.
     """
-    run_design(read_design(design_file), search, spread, force=force)
+    run_design(read_design(design_file), search, spread, force=force, jobs=jobs)
 
 
 
@@ -191,11 +193,13 @@ def design_command(design_file: str, search: SearchOptions, spread: SpreadOption
               help="Work limit of the consolidation in solver work units (about a second "
                    "each); the same board and limit give the same BOM.")
 @click.option("--quiet", is_flag=True, help="No summary and no progress lines.")
+@jobs_option
 @friendly
 def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, pool: int | None,
                 form: str, encoding: str | None, renumber: bool, ranges: bool,
                 output: str | None,
-                force: bool, time_limit: float, work_limit: float, quiet: bool) -> None:
+                force: bool, time_limit: float, work_limit: float, quiet: bool,
+                jobs: int) -> None:
     """Bill of materials for a board: design files and/or board files.
 
     Designs every network, then chooses one design per network so that the
@@ -224,7 +228,7 @@ def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, poo
             click.echo(f"designing {name} ...", err=True)
 
     result = build_bom(board, stock_only=stock_only, time_limit_s=time_limit, progress=note,
-                       renumber_all=renumber, work_limit=work_limit)
+                       renumber_all=renumber, work_limit=work_limit, jobs=jobs)
     text = render_bom(result, form, ranges=ranges, encoding=encoding)
     to_file = write_output(STREAM if output is None else output, text, force=force)
     if not quiet:

@@ -9,7 +9,7 @@ __all__ = [
     "RESISTANCE_RANGE", "TEMPERATURE", "VOLTAGE", "BadInput", "CatalogueChoice", "Given",
     "Measured", "OneLineGroup", "Progress", "QuickOptions", "Range", "SearchOptions",
     "SpreadOptions", "Window",
-    "check_time_limit", "emit_json", "friendly", "option_group", "option_name",
+    "check_time_limit", "emit_json", "friendly", "jobs_option", "option_group", "option_name",
     "page_search_options", "quick_options", "ranking_choices", "search_options",
     "series_name_choices", "spread_options",
 ]
@@ -150,6 +150,32 @@ def option_group(record: type, options: Sequence[Callable[[F], F]],
 MAX_SAMPLES = 10_000_000  # Monte Carlo samples a run may ask for
 
 
+def _processes(ctx: click.Context, param: click.Parameter, value: str | None) -> int:
+    """``--jobs``: a whole number of processes, 1 or more; every available core by default."""
+    from synth.parallel import available_cores
+
+    if value is None:
+        return available_cores()
+    text = value.strip()
+    if not (text.isascii() and text.isdigit()) or int(text) < 1:
+        raise BadInput(f"--jobs {value!r} must be a whole number of processes, 1 or more "
+                       "(1 runs everything in this process)")
+    return int(text)
+
+
+_JOBS = click.option(
+    "--jobs", callback=_processes, default=None, metavar="N",
+    help="Processes to use: the search and a board's networks are spread over them, with "
+         "the same results for any N (1: this process only) [default: every core "
+         "available].")
+
+
+def jobs_option(command: F) -> F:
+    """``--jobs N``: the most processes a command's work may use (the result is the same for
+    every N); the command receives ``jobs``, an int."""
+    return _JOBS(command)
+
+
 def check_time_limit(seconds: float | None, option: str = "--time-limit") -> None:
     """Refuse a time limit that is not a positive, finite number of seconds."""
     if seconds is not None and not (math.isfinite(seconds) and seconds > 0):
@@ -265,6 +291,7 @@ class QuickOptions:
     margin: Given
     save: str | None
     force: bool
+    jobs: int
 
     def settings(self) -> QuickSettings:
         """The library's quick settings (the options' text as typed)."""
@@ -308,6 +335,7 @@ def quick_options(main_unit: str, package: str = "0603") -> Callable[[F], F]:
                           "output, the report then on stderr)."),
         click.option("--force", is_flag=True,
                      help="Let --save and --plots replace existing files."),
+        _JOBS,
     ])
 
     def decorate(command: F) -> F:

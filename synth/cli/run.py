@@ -81,14 +81,14 @@ def _plots(design: Design, result: SynthesisResult, search: SearchOptions,
 def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
                rules: Rules | None = None, prepared: SynthesisResult | None = None, *,
                force: bool = False, save: tuple[str, str] | None = None,
-               deadline: Deadline | None = None) -> None:
+               deadline: Deadline | None = None, jobs: int = 1) -> None:
     """Search ``design``, write its output files, print its report, exit 1 when it fails.
 
     ``save`` is a design file to write with the plots (its name and TOML text; ``-``
     puts it on standard output and the report on stderr); ``force`` lets them replace
     existing files.  Nothing is written when an option or a write is refused.
     ``deadline`` is the command's (``--time-limit``), started with it; one is started
-    here when not given.
+    here when not given.  ``jobs`` is the most processes the search may use.
     """
     from synth.deadline import Deadline
     from synth.report.synthesis import design_json, design_text
@@ -109,7 +109,7 @@ def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
             design, top=search.top, time_limit_s=search.time_limit, progress=progress,
             spread=settings, rank_by=search.rank_by, require=search.require,
             min_yield=None if search.min_yield is None else search.min_yield.value,
-            deadline=deadline))
+            deadline=deadline, jobs=jobs))
     finally:
         progress.close()
     # the files first, all of them or none; then what is printed
@@ -166,7 +166,8 @@ def quick_run(tables: dict[str, Any], origin: str, quick: QuickOptions, search: 
                               spread=spread.settings(), rank_by=search.rank_by,
                               require=search.require,
                               min_yield=None if search.min_yield is None
-                              else search.min_yield.value, deadline=deadline)
+                              else search.min_yield.value, deadline=deadline,
+                              jobs=quick.jobs)
 
         tables, design, prepared, chosen = synthesize_auto(tables, origin, run, options=names)
         if not search.as_json:
@@ -180,4 +181,4 @@ def quick_run(tables: dict[str, Any], origin: str, quick: QuickOptions, search: 
 
         save = (quick.save, tomli_w.dumps(tables))
     run_design(design, search, spread, rules, prepared, force=quick.force, save=save,
-               deadline=deadline)
+               deadline=deadline, jobs=quick.jobs)

@@ -118,6 +118,8 @@ def search(
     max_supply_a: float | None = None,
     supply_first: bool = False,
     chains: bool = True,
+    bar: float = math.inf,
+    shared_bar: Callable[[np.ndarray], float] | None = None,
 ) -> SearchOutcome:
     """Find the ``top`` best candidates by branch and bound.
 
@@ -163,6 +165,13 @@ def search(
         (:mod:`synth.search.chains`); False bounds every position apart.  The
         result is the same either way; chains make under-determined designs
         fast.
+    bar : float
+        An objective known to be reached by ``top`` candidates elsewhere (another
+        slice of the space): boxes that cannot reach it are dropped from the start,
+        so candidates beyond it may be missing from the result.
+    shared_bar : callable, optional
+        Called every round with this search's best objectives so far (ascending);
+        returns such an objective known across every slice of the space at that time.
 
     Returns
     -------
@@ -183,7 +192,6 @@ def search(
     total = math.prod(int(s) for s in sizes)
     ranked = RankedCandidates.empty(k)
     evaluated = 0
-    bar = math.inf
     if seeds is not None and len(seeds):
         # each seed once: the ranking's merge expects distinct rows within each side
         seeds = np.asarray(seeds, dtype=np.int64)
@@ -192,7 +200,7 @@ def search(
         evaluated += n
         ranked = ranked.merged(seeded, top, supply_first)
         if len(ranked.objective) >= top:
-            bar = float(ranked.objective[-1])
+            bar = min(bar, float(ranked.objective[-1]))
     if k == 0 or total <= max(_LEAF_MIN, _LEAF_PER_VERTEX * 2 ** k):
         found, n = problem.score(_enumerate(np.zeros(k, np.int64), sizes - 1))
         return SearchOutcome(ranked.merged(found, top, supply_first), True, n + evaluated, total,
@@ -218,6 +226,8 @@ def search(
         rounds += 1
         current_bar = min(bar, float(ranked.objective[-1]) if len(ranked.objective) >= top
                           else math.inf)
+        if shared_bar is not None:
+            current_bar = min(current_bar, shared_bar(ranked.objective))
         keep = open_bound <= current_bar + TIE_TOLERANCE
         if not keep.all():
             volume = space.volume(open_lo[~keep], open_hi[~keep])

@@ -11,6 +11,7 @@ from click.testing import CliRunner
 
 from synth.bom.lines import collapse_references
 from synth.cli import cli
+from synth.errors import InfeasibleError
 
 from conftest import ROOT
 
@@ -283,3 +284,37 @@ def test_the_command_default_work_limit_is_the_librarys():
     from synth.cli.commands import BOM_WORK_LIMIT
 
     assert BOM_WORK_LIMIT == DEFAULT_WORK_LIMIT
+
+
+def test_the_bom_is_the_same_on_two_processes(board, monkeypatch):
+    from synth.bom import build
+    from synth.design.board import load_board
+    from synth.report.bom import render_bom
+
+    loaded = load_board([str(board / "board.toml")])
+    one = build.build_bom(loaded, jobs=1)
+    monkeypatch.setattr(build, "_HERE_S", -1.0)  # every network on the workers
+    named = []
+    two = build.build_bom(loaded, jobs=2, progress=named.append)
+    assert named == ["a", "b", "input"]
+    for form in ("csv", "per-designator", "markdown"):
+        assert render_bom(one, form) == render_bom(two, form)
+    assert one.consolidation.choice == two.consolidation.choice
+    # the first network that fails is named, as one process names it
+    (board / "b.toml").write_text(DIVIDER.format(name="b", vin="1 V", vout="3.3 V"),
+                                  encoding="utf-8")
+    failing = load_board([str(board / "board.toml")])
+    with pytest.raises(InfeasibleError) as on_two:
+        build.build_bom(failing, jobs=2)
+    with pytest.raises(InfeasibleError) as on_one:
+        build.build_bom(failing, jobs=1)
+    assert str(on_two.value) == str(on_one.value) and "'b'" in str(on_one.value)
+
+
+@pytest.mark.parametrize("jobs", ["0", "-1", "1.5", "all"])
+def test_bom_refuses_a_bad_process_count(board, jobs):
+    result = run("bom", board / "board.toml", "--jobs", jobs)
+    assert result.exit_code == 2
+    assert result.stderr.strip().splitlines() == [
+        f"rnsynth: --jobs '{jobs}' must be a whole number of processes, 1 or more (1 runs "
+        "everything in this process)"]

@@ -92,3 +92,33 @@ def test_a_solver_failure_is_one_line_and_exit_two(monkeypatch, error):
     assert result.exit_code == 2 and "Traceback" not in result.output
     assert result.stderr.startswith("rnsynth: the calculation could not be completed (")
     assert str(error) in result.stderr and len(result.stderr.strip().splitlines()) == 1
+
+
+@pytest.mark.parametrize("command", [DIVIDER, ["design", "examples/greenhouse_probe.toml"]],
+                         ids=["quick", "design"])
+@pytest.mark.parametrize("jobs", ["0", "-2", "2.5", "two", " "])
+def test_a_bad_process_count_is_one_line_and_exit_two(command, jobs):
+    result = run(*command, "--jobs", jobs)
+    assert result.exit_code == 2, result.output
+    assert result.stderr.strip().splitlines() == [
+        f"rnsynth: --jobs {jobs!r} must be a whole number of processes, 1 or more (1 runs "
+        "everything in this process)"]
+
+
+@pytest.mark.parametrize("command", [DIVIDER, ["design", "examples/greenhouse_probe.toml",
+                                               "--samples", "0"]], ids=["quick", "design"])
+def test_the_process_count_reaches_the_search(command, monkeypatch):
+    import synth.synthesis
+    from synth.parallel import available_cores
+
+    asked = []
+    real = synth.synthesis.synthesize
+
+    def counting(*args, **kwargs):
+        asked.append(kwargs["jobs"])
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(synth.synthesis, "synthesize", counting)
+    assert run(*command, "--jobs", "3").exit_code == 0
+    assert run(*command).exit_code == 0
+    assert asked == [3, available_cores()]
