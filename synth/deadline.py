@@ -12,9 +12,10 @@ before it loads numpy.
 
 from __future__ import annotations
 
-__all__ = ["Cut", "Deadline"]
+__all__ = ["Cut", "Deadline", "command_start", "process_age_s"]
 
 import math
+import os
 import time
 from collections.abc import Callable
 from dataclasses import dataclass
@@ -113,3 +114,39 @@ class Deadline:
     def cuts(self) -> tuple[Cut, ...]:
         """Every cut recorded, in order."""
         return tuple(self._cuts)
+
+
+def process_age_s() -> float:
+    """Seconds since this process started (0 where the system does not say).
+
+    A command's time limit counts from the moment the user started it, the
+    interpreter's start-up and imports included.  Linux gives the start in
+    ``/proc/self/stat`` (field 22, clock ticks after boot) beside the time
+    since boot in ``/proc/uptime`` (proc(5)).
+
+    Examples
+    --------
+    >>> 0.0 <= process_age_s() < 3600.0
+    True
+    """
+    try:
+        with open("/proc/self/stat", encoding="ascii") as stat:
+            fields = stat.read().rsplit(")", 1)[1].split()
+        with open("/proc/uptime", encoding="ascii") as uptime:
+            since_boot = float(uptime.read().split()[0])
+        started = int(fields[19]) / os.sysconf("SC_CLK_TCK")
+    except (OSError, ValueError, IndexError):
+        return 0.0
+    return max(since_boot - started, 0.0)
+
+
+FRESH_PROCESS_S = 5.0
+"""A process younger than this is taken to be the command itself (its start-up counts)."""
+
+
+def command_start(clock: Callable[[], float] = time.perf_counter) -> float:
+    """When the running command started, on ``clock``'s scale: the process's start for a
+    process younger than :data:`FRESH_PROCESS_S` (a command run from a shell), else now (a
+    command run inside a longer-lived process, such as a test or a notebook)."""
+    age = process_age_s()
+    return clock() - (age if age < FRESH_PROCESS_S else 0.0)

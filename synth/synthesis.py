@@ -367,9 +367,11 @@ def synthesize(
         robust=worst.holds if worst is not None and require == "worst-case" else None,
         jobs=jobs)
     if not outcome.proven:
-        deadline.cut("search", f"stopped at the time limit after {outcome.elapsed_s:.2g} s "
-                     f"with {outcome.settled * 100:.3g} % of the combinations settled: the "
-                     "best found, not proven best")
+        why = ("at the time limit" if outcome.stopped != "memory" else
+               "when its open boxes filled the memory allowed them")
+        deadline.cut("search", f"stopped {why} after {outcome.elapsed_s:.2g} s with "
+                     f"{outcome.settled * 100:.3g} % of the combinations settled: the best "
+                     "found, not proven best")
     feasible = len(outcome.ranked.objective) > 0
     evaluated, elapsed, proven = outcome.evaluated, outcome.elapsed_s, outcome.proven
 

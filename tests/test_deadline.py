@@ -7,7 +7,8 @@ from __future__ import annotations
 
 import math
 
-from synth.deadline import Cut, Deadline
+import synth.deadline as deadline_module
+from synth.deadline import Cut, Deadline, command_start, process_age_s
 
 
 class Clock:
@@ -52,3 +53,16 @@ def test_cuts_are_kept_in_order_with_their_counts():
     assert d.cuts == (Cut("search", "stopped"),
                       Cut("Monte Carlo", "100,000 samples asked, 4,000 run", 100_000, 4_000))
     assert str(d.cuts[1]) == "Monte Carlo: 100,000 samples asked, 4,000 run"
+
+
+def test_a_young_process_counts_its_start_up_an_old_one_counts_from_now(monkeypatch):
+    clock = Clock(50.0)
+    monkeypatch.setattr(deadline_module, "process_age_s", lambda: 1.5)
+    assert command_start(clock) == 48.5
+    monkeypatch.setattr(deadline_module, "process_age_s", lambda: 600.0)
+    assert command_start(clock) == 50.0
+
+
+def test_the_process_age_is_a_plain_number_of_seconds():
+    age = process_age_s()
+    assert math.isfinite(age) and age >= 0.0

@@ -72,9 +72,9 @@ def test_a_cut_run_keeps_the_unlimited_best_on_a_small_space():
     assert cut.candidates[0].objective == free.candidates[0].objective
 
 
-def test_a_limited_run_on_sixteen_free_parts_returns_feasible_candidates():
-    design = string(16)
-    result = synthesize(design, top=3, time_limit_s=0.05)
+def test_a_limited_run_on_twenty_free_parts_returns_feasible_candidates():
+    design = string(20)
+    result = synthesize(design, top=3, deadline=expired())
     assert result.candidates and result.feasible
     assert all(c.feasible for c in result.candidates)
     assert not result.proven_optimal and result.cuts[0].stage == "search"

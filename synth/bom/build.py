@@ -147,7 +147,8 @@ _LEAST_DESIGN_S = 0.01
 def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0,
               progress: Callable[[str], None] | None = None,
               renumber_all: bool = False,
-              work_limit: float = DEFAULT_WORK_LIMIT, jobs: int = 1) -> BomResult:
+              work_limit: float = DEFAULT_WORK_LIMIT, jobs: int = 1,
+              deadline: Deadline | None = None) -> BomResult:
     """Design every network of a board, consolidate values and list the parts.
 
     Parameters
@@ -165,6 +166,9 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
         second each); the same board with the same limit gives the same BOM.
     progress : callable, optional
         Called with each network's name as it is designed.
+    deadline : Deadline, optional
+        The command's deadline, already running (one of ``time_limit_s`` is
+        started here when not given).
     renumber_all : bool
         Number every part afresh in board order (see :func:`renumber`); by default the
         designators of the design files are kept, repeats only renumbered.
@@ -184,7 +188,7 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
     DesignError
         On a malformed stock list.
     """
-    deadline = Deadline(time_limit_s)
+    deadline = deadline or Deadline(time_limit_s)
     stock = load_stock(board.stock_path) if board.stock_path else []
     pools, options, notes = [], [], []
     jobs = check_jobs(jobs)

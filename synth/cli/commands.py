@@ -208,6 +208,7 @@ def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, poo
     board or design file from standard input.
     """
     from synth.bom.build import build_bom
+    from synth.deadline import Deadline, command_start
     from synth.design.board import load_board
     from synth.report.bom import bom_summary, render_bom, resolve_encoding
 
@@ -228,7 +229,8 @@ def bom_command(files: tuple[str, ...], stock: str | None, stock_only: bool, poo
             click.echo(f"designing {name} ...", err=True)
 
     result = build_bom(board, stock_only=stock_only, time_limit_s=time_limit, progress=note,
-                       renumber_all=renumber, work_limit=work_limit, jobs=jobs)
+                       renumber_all=renumber, work_limit=work_limit, jobs=jobs,
+                       deadline=Deadline(time_limit, start=command_start()))
     text = render_bom(result, form, ranges=ranges, encoding=encoding)
     to_file = write_output(STREAM if output is None else output, text, force=force)
     if not quiet:

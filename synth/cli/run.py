@@ -90,11 +90,11 @@ def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
     ``deadline`` is the command's (``--time-limit``), started with it; one is started
     here when not given.  ``jobs`` is the most processes the search may use.
     """
-    from synth.deadline import Deadline
+    from synth.deadline import Deadline, command_start
     from synth.report.synthesis import design_json, design_text
     from synth.synthesis import synthesize
 
-    deadline = deadline or Deadline(search.time_limit)
+    deadline = deadline or Deadline(search.time_limit, start=command_start())
 
     if not design.free_resistors:
         raise DesignError(f"{design.origin}: no resistor has choose = ...; mark the parts "
@@ -153,9 +153,10 @@ def quick_run(tables: dict[str, Any], origin: str, quick: QuickOptions, search: 
         raise DesignError("--save - and --json would both write to standard output; name a "
                           "file for --save")
     _checked_settings(search, spread)
-    from synth.deadline import Deadline
+    from synth.deadline import Deadline, command_start
 
-    deadline = Deadline(search.time_limit)  # the whole command's, every package tried
+    # the whole command's, every package tried
+    deadline = Deadline(search.time_limit, start=command_start())
     prepared = None
     if quick.package.lower() == "auto":
         from synth.synthesis import synthesize

@@ -119,11 +119,13 @@ def design_text(result: SynthesisResult) -> str:
     where = "built from" if design.origin.startswith("rnsynth ") else "file"
     lines = [design.title or "(untitled design)", f"{where}: {design.origin}",
              *points_lines(design)]
-    state = "proven optimal" if result.proven_optimal else "NOT proven optimal (time limit)"
+    state = ("proven optimal" if result.proven_optimal else "NOT proven optimal (time limit)"
+             if result.time_limit_s is not None else "NOT proven optimal (search cut short)")
     lines.append(f"search: {result.combinations:,} combinations, {result.evaluated:,} "
                  f"solved, {result.elapsed_s:.2f} s, {state}")
     if result.cuts:
-        lines.append(f"cut to fit the time limit of {result.time_limit_s:g} s:")
+        lines.append("cut short:" if result.time_limit_s is None else
+                     f"cut to fit the time limit of {result.time_limit_s:g} s:")
         lines.extend(f"  {cut}" for cut in result.cuts)
     if result.ideal:
         ideal = ", ".join(f"{ref} = {format_eng(v, 'Ω', 6)}" for ref, v in result.ideal.items())

@@ -37,7 +37,13 @@ from synth.circuit.measure import Evaluator
 from synth.design.model import Design
 from synth.search.chains import SearchSpace
 from synth.search.choices import Choices
-from synth.search.problem import RobustCheck, SearchProblem, TargetRanges
+from synth.search.problem import (
+    SOLVE_ROWS,
+    RobustCheck,
+    SearchProblem,
+    SearchStopped,
+    TargetRanges,
+)
 from synth.search.ranking import TIE_TOLERANCE, RankedCandidates
 
 _LEAF_PER_VERTEX = 4  # enumerate a box outright once it holds at most 4 x 2^k candidates
@@ -71,6 +77,9 @@ class SearchOutcome:
         Wall time, s.
     settled : float
         Share of the search space settled (1 when proven).
+    stopped : str or None
+        Why an unproven search stopped: ``"time limit"``, or ``"memory"`` (the
+        open boxes reached :data:`_OPEN_BYTES`); None when it finished.
     """
 
     ranked: RankedCandidates
@@ -79,28 +88,53 @@ class SearchOutcome:
     combinations: int
     elapsed_s: float
     settled: float = 1.0
+    stopped: str | None = None
 
 
-def _enumerate(lo: np.ndarray, hi: np.ndarray) -> np.ndarray:
-    """Every index vector inside the box ``lo..hi`` (inclusive)."""
-    return _enumerate_boxes(lo[None, :], hi[None, :])
+def _enumerate_boxes(lo: np.ndarray, hi: np.ndarray, first: int = 0,
+                     count: int | None = None) -> np.ndarray:
+    """Index vectors inside the boxes ``lo[b]..hi[b]``, box after box: rows ``first`` to
+    ``first + count`` of that list (all of it by default).
 
-
-def _enumerate_boxes(lo: np.ndarray, hi: np.ndarray) -> np.ndarray:
-    """Every index vector inside each of the boxes ``lo[b]..hi[b]``, box after box.
-
-    Vectorised: row ``t`` of the output belongs to box ``b`` at offset ``o``
-    and its index along each axis is a mixed-radix digit of ``o``.
+    Vectorised: row ``t`` of the list belongs to box ``b`` at offset ``o`` and
+    its index along each axis is a mixed-radix digit of ``o``.
     """
     counts = (hi - lo + 1).astype(np.int64)
     volume = np.prod(counts, axis=1)
-    box = np.repeat(np.arange(len(lo)), volume)
-    offset = np.arange(int(volume.sum()), dtype=np.int64) - np.repeat(
-        np.cumsum(volume) - volume, volume)
+    ends = np.cumsum(volume)
+    total = int(ends[-1]) if len(ends) else 0
+    stop = total if count is None else min(total, first + count)
+    rows = np.arange(first, stop, dtype=np.int64)
+    box = np.searchsorted(ends, rows, side="right")
+    offset = rows - (ends - volume)[box]
     # C order: the last axis varies fastest
     strides = np.cumprod(counts[:, ::-1], axis=1)[:, ::-1]
     strides = np.concatenate([strides[:, 1:], np.ones((len(lo), 1), np.int64)], axis=1)
     return lo[box] + (offset[:, None] // strides[box]) % counts[box]  # type: ignore[no-any-return]  # numpy types this array expression as Any
+
+
+def _scored(problem: SearchProblem, space: SearchSpace | None, lo: np.ndarray,
+            hi: np.ndarray, ranked: RankedCandidates, top: int, supply_first: bool,
+            stop: Callable[[], bool]) -> tuple[RankedCandidates, int]:
+    """Every candidate of the boxes ``lo..hi`` (over places) scored and merged into ``ranked``,
+    :data:`SOLVE_ROWS` at a time; :class:`SearchStopped` when ``stop`` asks between runs."""
+    total = int(np.prod((hi - lo + 1).astype(np.int64), axis=1).sum())
+    evaluated = 0
+    for first in range(0, total, SOLVE_ROWS):
+        if first and stop():
+            raise SearchStopped
+        places = _enumerate_boxes(lo, hi, first, SOLVE_ROWS)
+        batch = places if space is None else space.candidates(places)
+        found, n = problem.score(batch, worst=float(ranked.objective[-1])
+                                 if len(ranked.objective) >= top else math.inf)
+        evaluated += n
+        ranked = ranked.merged(found, top, supply_first)
+    return ranked, evaluated
+
+
+_OPEN_BYTES = 256 << 20
+"""Most memory the open boxes may hold, bytes: past it the search stops, unproven (no open
+box is ever dropped unexplored)."""
 
 
 def search(
@@ -201,27 +235,48 @@ def search(
         ranked = ranked.merged(seeded, top, supply_first)
         if len(ranked.objective) >= top:
             bar = min(bar, float(ranked.objective[-1]))
+
+    def stop() -> bool:
+        return time_limit_s is not None and time.perf_counter() - start > time_limit_s
+
+    def outcome(proven: bool, settled: float, stopped: str | None = None) -> SearchOutcome:
+        return SearchOutcome(ranked, proven, evaluated, total, time.perf_counter() - start,
+                             1.0 if proven else min(settled / total, 1.0), stopped)
+
     if k == 0 or total <= max(_LEAF_MIN, _LEAF_PER_VERTEX * 2 ** k):
-        found, n = problem.score(_enumerate(np.zeros(k, np.int64), sizes - 1))
-        return SearchOutcome(ranked.merged(found, top, supply_first), True, n + evaluated, total,
-                             time.perf_counter() - start)
+        whole = np.zeros((1, k), np.int64), (sizes - 1)[None, :]
+        try:
+            ranked, n = _scored(problem, None, *whole, ranked, top, supply_first, stop)
+        except SearchStopped:
+            return outcome(False, 0, "time limit")
+        evaluated += n
+        return outcome(True, total)
     # boxes span the space's axes (a chain of positions is one axis of sums)
     space = SearchSpace(problem, chains)
     bounds = space.bounds
     k = len(space.sizes)
     leaf_size = max(_LEAF_MIN, _LEAF_PER_VERTEX * 2 ** k)
+    most_open = max(_OPEN_BYTES // ((2 * k + 1) * 8), 4 * _BATCH_BOXES)
     lo = np.zeros((1, k), dtype=np.int64)
     hi = (space.sizes - 1)[None, :]
-    bound, feasible = bounds.box_bounds(lo, hi)
+    try:
+        bound, feasible = bounds.box_bounds(lo, hi, stop)
+    except SearchStopped:
+        return outcome(False, 0, "time limit")
     evaluated += 2 ** k
     open_lo, open_hi, open_bound = lo[feasible], hi[feasible], bound[feasible]
     settled = 0 if feasible[0] else total
     proven = True
+    stopped: str | None = None
     rounds = 0
     while len(open_bound):
         # the first round always runs: a limit already spent still gives some candidates
-        if rounds and time_limit_s is not None and time.perf_counter() - start > time_limit_s:
-            proven = False
+        if rounds and stop():
+            proven, stopped = False, "time limit"
+            break
+        if len(open_bound) > most_open:
+            # never drop an open box unexplored: stop, unproven, with the store full
+            proven, stopped = False, "memory"
             break
         rounds += 1
         current_bar = min(bar, float(ranked.objective[-1]) if len(ranked.objective) >= top
@@ -249,31 +304,36 @@ def search(
         rest = np.ones(len(open_bound), dtype=bool)
         rest[pick] = False
         b_lo, b_hi = open_lo[pick], open_hi[pick]
-        open_lo, open_hi, open_bound = open_lo[rest], open_hi[rest], open_bound[rest]
         counts = b_hi - b_lo + 1
         volume = space.volume(b_lo, b_hi)
         # a box of one sum per chain cannot be split further, however many candidates
         leaf = (volume <= leaf_size) | np.all(counts == 1, axis=1)
+        try:
+            if leaf.any():
+                ranked, n = _scored(problem, space, *space.places(b_lo[leaf], b_hi[leaf]),
+                                    ranked, top, supply_first, stop)
+                evaluated += n
+            if (~leaf).any():
+                s_lo, s_hi, s_counts = b_lo[~leaf], b_hi[~leaf], counts[~leaf]
+                axis = np.argmax(s_counts, axis=1)
+                rows = np.arange(len(axis))
+                middle = s_lo[rows, axis] + s_counts[rows, axis] // 2 - 1
+                left_hi = s_hi.copy()
+                left_hi[rows, axis] = middle
+                right_lo = s_lo.copy()
+                right_lo[rows, axis] = middle + 1
+                c_lo = np.concatenate([s_lo, right_lo])
+                c_hi = np.concatenate([left_hi, s_hi])
+                c_bound, c_feasible = bounds.box_bounds(c_lo, c_hi, stop)
+                evaluated += len(c_lo) * 2 ** k
+        except SearchStopped:
+            # the batch's boxes stay unsettled (the candidates scored so far are kept)
+            proven, stopped = False, "time limit"
+            break
+        open_lo, open_hi, open_bound = open_lo[rest], open_hi[rest], open_bound[rest]
         if leaf.any():
-            batch = space.candidates(_enumerate_boxes(*space.places(b_lo[leaf], b_hi[leaf])))
-            found, n = problem.score(batch, worst=float(ranked.objective[-1])
-                                     if len(ranked.objective) >= top else math.inf)
-            evaluated += n
-            ranked = ranked.merged(found, top, supply_first)
             settled += int(volume[leaf].sum())
         if (~leaf).any():
-            s_lo, s_hi, s_counts = b_lo[~leaf], b_hi[~leaf], counts[~leaf]
-            axis = np.argmax(s_counts, axis=1)
-            rows = np.arange(len(axis))
-            middle = s_lo[rows, axis] + s_counts[rows, axis] // 2 - 1
-            left_hi = s_hi.copy()
-            left_hi[rows, axis] = middle
-            right_lo = s_lo.copy()
-            right_lo[rows, axis] = middle + 1
-            c_lo = np.concatenate([s_lo, right_lo])
-            c_hi = np.concatenate([left_hi, s_hi])
-            c_bound, c_feasible = bounds.box_bounds(c_lo, c_hi)
-            evaluated += len(c_lo) * 2 ** k
             dropped = ~c_feasible
             if dropped.any():
                 settled += int(space.volume(c_lo[dropped], c_hi[dropped]).sum())
@@ -284,5 +344,4 @@ def search(
             progress(min(settled / total, 1.0))
     if progress is not None and proven:
         progress(1.0)
-    return SearchOutcome(ranked, proven, evaluated, total, time.perf_counter() - start,
-                         1.0 if proven else min(settled / total, 1.0))
+    return outcome(proven, settled, stopped)

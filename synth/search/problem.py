@@ -4,9 +4,11 @@ over boxes.
 
 from __future__ import annotations
 
-__all__ = ["RobustCheck", "SearchProblem", "TargetRanges", "distinct_values"]
+__all__ = ["SOLVE_ROWS", "RobustCheck", "SearchProblem", "SearchStopped", "TargetRanges",
+           "distinct_values"]
 
 from collections.abc import Callable
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -29,6 +31,47 @@ candidates, True where every window and limit also holds on the basis the design
 
 _FAR_OVER = 1e12
 """Largest share over an allowance the nearest-design ranking counts (a part allowed 0 W)."""
+
+
+SOLVE_ROWS = 32_768
+"""Most candidate rows (box vertices or enumerated candidates) solved at once: the search's
+memory stays bounded whatever the number of free positions."""
+
+
+class SearchStopped(Exception):
+    """Raised inside a bounding or scoring run when its ``stop`` asks (the time is up)."""
+
+
+@dataclass(frozen=True)
+class _Spans:
+    """Extremes over the vertices of each box: per box, per target, branch or resistor."""
+
+    t_lo: np.ndarray
+    t_hi: np.ndarray
+    noise: np.ndarray
+    i_lo: np.ndarray
+    i_hi: np.ndarray
+    u_lo: np.ndarray
+    u_hi: np.ndarray
+    valid: np.ndarray
+    positive: np.ndarray | None
+    negative: np.ndarray | None
+    least: np.ndarray | None
+
+    def joined(self, other: _Spans) -> _Spans:
+        """The extremes over the vertices of both runs (of the same boxes)."""
+        def both(a: np.ndarray | None, b: np.ndarray | None, how: Callable[..., np.ndarray]
+                 ) -> np.ndarray | None:
+            return None if a is None or b is None else how(a, b)
+
+        return _Spans(np.minimum(self.t_lo, other.t_lo), np.maximum(self.t_hi, other.t_hi),
+                      np.maximum(self.noise, other.noise),
+                      np.minimum(self.i_lo, other.i_lo), np.maximum(self.i_hi, other.i_hi),
+                      np.minimum(self.u_lo, other.u_lo), np.maximum(self.u_hi, other.u_hi),
+                      self.valid & other.valid,
+                      both(self.positive, other.positive, np.logical_and),
+                      both(self.negative, other.negative, np.logical_and),
+                      both(self.least, other.least, np.minimum))
 
 
 class SearchProblem:
@@ -210,18 +253,53 @@ class SearchProblem:
 
     # ----- sound bounds over boxes -----
 
-    def box_bounds(self, lo: np.ndarray, hi: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    def box_bounds(self, lo: np.ndarray, hi: np.ndarray,
+                   stop: Callable[[], bool] | None = None) -> tuple[np.ndarray, np.ndarray]:
         """Lower bound of the objective over each box, and whether the box can be feasible.
 
-        ``lo``/``hi`` are ``(B, positions)`` inclusive index bounds.
+        ``lo``/``hi`` are ``(B, positions)`` inclusive index bounds.  The
+        vertices are solved at most :data:`SOLVE_ROWS` at a time (boxes in
+        groups, or one box's vertices in runs), so memory stays bounded
+        whatever the number of positions; ``stop`` is asked between solves and
+        :class:`SearchStopped` raised when it returns True.
         """
         n_box, k = lo.shape
-        bits = ((np.arange(2 ** k)[:, None] >> np.arange(k)[None, :]) & 1).astype(bool)
-        vertex = np.where(bits[None, :, :], hi[:, None, :], lo[:, None, :]).reshape(-1, k)
+        per = max(1, SOLVE_ROWS >> k)  # boxes per solve
+        if n_box > per:
+            bounds, feasible = [], []
+            for first in range(0, n_box, per):
+                if first and stop is not None and stop():
+                    raise SearchStopped
+                b, f = self.box_bounds(lo[first:first + per], hi[first:first + per], stop)
+                bounds.append(b)
+                feasible.append(f)
+            return np.concatenate(bounds), np.concatenate(feasible)
+        spans = self._vertex_spans(lo, hi, stop)
+        return self._bounds_from(lo, hi, spans)
+
+    def _vertex_spans(self, lo: np.ndarray, hi: np.ndarray, stop: Callable[[], bool] | None
+                      ) -> _Spans:
+        """The extremes over each box's vertices, solved in runs of at most SOLVE_ROWS."""
+        n_box, k = lo.shape
+        n_v = 2 ** k
+        run = max(1, min(n_v, SOLVE_ROWS // max(n_box, 1)))
+        spans: _Spans | None = None
+        for v0 in range(0, n_v, run):
+            if v0 and stop is not None and stop():
+                raise SearchStopped
+            v = np.arange(v0, min(v0 + run, n_v), dtype=np.int64)
+            bits = ((v[:, None] >> np.arange(k)[None, :]) & 1).astype(bool)
+            vertex = np.where(bits[None, :, :], hi[:, None, :], lo[:, None, :]).reshape(-1, k)
+            part = self._spans_of(vertex, (n_box, len(v)))
+            spans = part if spans is None else spans.joined(part)
+        assert spans is not None
+        return spans
+
+    def _spans_of(self, vertex: np.ndarray, shape: tuple[int, int]) -> _Spans:
+        """Extremes over ``shape[1]`` vertices of each of ``shape[0]`` boxes (rows box-major)."""
+        n_box, n_v = shape
         r = self.resistances(vertex)
         ev = self.evaluate(r, parts=False)  # the bounds use positions only
-        n_v = 2 ** k
-        shape = (n_box, n_v)
 
         def by_box(values: np.ndarray) -> np.ndarray:
             """``(N, columns)`` as ``(columns, boxes, vertices)`` (a view when column-major)."""
@@ -244,16 +322,33 @@ class SearchProblem:
         u_lo, u_hi = span(across)
         valid = np.all(np.isfinite(targets), axis=(0, 2))
         valid &= np.all(np.isfinite(by_box(current)), axis=(0, 2))
+        signs = []  # each quantity that must keep one sign over a box's vertices
         det = ev.solution.regulator_determinant
         if det is not None:
-            d = det.reshape(shape)
-            valid &= np.all(d > 0, axis=1) | np.all(d < 0, axis=1)
+            signs.append(det.reshape(shape))
         for c, d_ in self.ratio_den.values():
-            den = (node_v[:, c] - node_v[:, d_]).reshape(shape)
-            valid &= np.all(den > 0, axis=1) | np.all(den < 0, axis=1)
+            signs.append((node_v[:, c] - node_v[:, d_]).reshape(shape))
         for a_, b_, c, d_ in self.gain_den.values():
-            den = (node_v[:, c] - node_v[:, d_] - node_v[:, a_] + node_v[:, b_]).reshape(shape)
-            valid &= np.all(den > 0, axis=1) | np.all(den < 0, axis=1)
+            signs.append((node_v[:, c] - node_v[:, d_] - node_v[:, a_]
+                          + node_v[:, b_]).reshape(shape))
+        positive = np.stack([np.all(d > 0, axis=1) for d in signs], axis=1) if signs else None
+        negative = np.stack([np.all(d < 0, axis=1) for d in signs], axis=1) if signs else None
+        least = None
+        if self.max_supply_a is not None and not self.relaxed:
+            delivered = ev.solution.branch_currents[:, self.supply_columns]
+            least = by_box(delivered).min(axis=2).T
+        return _Spans(t_lo, t_hi, noise, i_lo, i_hi, u_lo, u_hi, valid, positive, negative,
+                      least)
+
+    def _bounds_from(self, lo: np.ndarray, hi: np.ndarray, spans: _Spans
+                     ) -> tuple[np.ndarray, np.ndarray]:
+        """The objective bound and feasibility of each box from its vertex extremes."""
+        n_box = len(lo)
+        t_lo, t_hi, noise = spans.t_lo.copy(), spans.t_hi.copy(), spans.noise
+        i_lo, i_hi, u_lo, u_hi = spans.i_lo, spans.i_hi, spans.u_lo, spans.u_hi
+        valid = spans.valid.copy()
+        if spans.positive is not None and spans.negative is not None:
+            valid &= np.all(spans.positive | spans.negative, axis=1)
         # resistance span of each resistor over the box
         r_lo = np.broadcast_to(self.base, (n_box, self.n_r)).copy()
         r_hi = r_lo.copy()
@@ -285,11 +380,10 @@ class SearchProblem:
                          axis=1)
                   | np.any(exceeds(part_p_lo, self.position_allowed_p)
                            | exceeds(part_u_lo, self.position_allowed_v), axis=1))
-        if self.max_supply_a is not None and not self.relaxed:
+        if spans.least is not None and self.max_supply_a is not None:
             # each delivering branch's current is monotone in every resistance, so its
             # least value over the box lies at a vertex: the sum of those is a lower bound
-            delivered = ev.solution.branch_currents[:, self.supply_columns]
-            each = np.clip(by_box(delivered).min(axis=2).T, 0.0, None)
+            each = np.clip(spans.least, 0.0, None)
             groups = self.ev.supply_groups  # operating points: the largest point's supply
             least = (np.max([each[:, cols].sum(axis=1) for cols in groups], axis=0)
                      if groups else each.sum(axis=1))

@@ -156,3 +156,61 @@ def test_tie_break_prefers_fewer_values_then_coarser_series_then_lower_supply_cu
         {"R1": 10e3, "R2": 10e3}, {"R1": 4.7e3, "R2": 4.7e3}, {"R1": 2.2e3, "R2": 2.2e3},
         {"R1": 1e3, "R2": 1e3}]
     assert all(c.objective == pytest.approx(0, abs=1e-15) for c in ranked)
+
+
+def test_bounds_solved_in_small_runs_equal_those_solved_at_once(monkeypatch):
+    # the vertex extremes are joined run by run: any run length gives the same bounds
+    import synth.search.problem as problem_module
+    from synth.circuit.measure import Evaluator
+    from synth.search.choices import choices_for
+    from synth.search.problem import SearchProblem
+
+    design = design_from_dict(ALL["five-resistor bridge"], origin="bridge")
+    choices = [choices_for(r, design.origin) for r in design.free_resistors]
+    problem = SearchProblem(design, Evaluator(design), choices, relaxed=False)
+    rng = np.random.default_rng(3)
+    sizes = np.array([len(c) for c in choices])
+    a, b = (rng.integers(0, sizes, size=(40, len(sizes))) for _ in range(2))
+    lo, hi = np.minimum(a, b), np.maximum(a, b)
+    whole = problem.box_bounds(lo, hi)
+    monkeypatch.setattr(problem_module, "SOLVE_ROWS", 8)  # 32 vertices a box: runs of 8
+    runs = problem.box_bounds(lo, hi)
+    np.testing.assert_array_equal(whole[0], runs[0])
+    np.testing.assert_array_equal(whole[1], runs[1])
+
+
+def test_candidates_scored_in_small_runs_give_the_same_optimum(monkeypatch):
+    import synth.search.branch_and_bound as bb
+
+    design = design_from_dict(ALL["two-tap chain with a current budget"], origin="chain")
+    want = synthesize(design, top=5)
+    monkeypatch.setattr(bb, "SOLVE_ROWS", 7)
+    got = synthesize(design, top=5)
+    assert got.proven_optimal
+    assert [c.values for c in got.candidates] == [c.values for c in want.candidates]
+
+
+def test_a_full_store_of_open_boxes_stops_the_search_unproven(monkeypatch):
+    import synth.search.branch_and_bound as bb
+    from synth.circuit.measure import Evaluator
+    from synth.search.branch_and_bound import search
+    from synth.search.choices import choices_for
+
+    design = design_from_dict(ALL["five-resistor bridge"], origin="bridge")
+    choices = [choices_for(r, design.origin) for r in design.free_resistors]
+    monkeypatch.setattr(bb, "_OPEN_BYTES", 0)
+    monkeypatch.setattr(bb, "_BATCH_BOXES", 2)  # at most 4 x 2 open boxes
+    outcome = search(design, Evaluator(design), choices, top=3)
+    assert not outcome.proven and outcome.stopped == "memory"
+    assert outcome.settled < 1.0
+
+
+def test_a_search_out_of_time_inside_its_first_box_is_unproven():
+    from synth.circuit.measure import Evaluator
+    from synth.search.branch_and_bound import search
+    from synth.search.choices import choices_for
+
+    design = design_from_dict(ALL["five-resistor bridge"], origin="bridge")
+    choices = [choices_for(r, design.origin) for r in design.free_resistors]
+    outcome = search(design, Evaluator(design), choices, top=3, time_limit_s=0.0)
+    assert not outcome.proven and outcome.stopped == "time limit"
