@@ -31,15 +31,13 @@ from synth.search.branch_and_bound import SearchOutcome
 from synth.search.choices import Choices, choices_for, combination_count, values_of_row
 from synth.search.ideal import ideal_values
 from synth.search.local import local_seeds
+from synth.search.orders import RANKINGS
 from synth.search.parallel import search
 from synth.search.problem import SearchProblem
 from synth.search.ranking import TIE_TOLERANCE
 from synth.spread.analyse import analyse_spread
 from synth.spread.records import SpreadSettings
 from synth.spread.worst_case import WorstCase
-
-RANKINGS = ("nominal", "worst-case", "yield")
-
 
 _GRID_UP_TO = 12
 """Up to this many free positions, every rounding up or down of the ideal values is a seed."""

@@ -78,3 +78,24 @@ def test_unknown_attribute_is_refused():
 
 def test_version_is_the_installed_distribution():
     assert synth.__version__ == importlib.metadata.version("rnsynth")
+
+
+def _commands():
+    from synth.cli import cli
+
+    return sorted(cli.commands)
+
+
+@pytest.mark.parametrize("command", _commands())
+def test_every_command_help_loads_no_numeric_library(command):
+    # option choices (series names, rankings) come from light modules, not the search
+    imported = _imported_by([command, "--help"])
+    assert "synth" in imported
+    assert not imported & {*HEAVY, "numpy"}, command
+
+
+def test_the_light_series_names_are_those_of_the_catalogue():
+    from synth.catalog.names import series_names
+    from synth.catalog.series import series_names as loaded_names
+
+    assert series_names() == loaded_names()

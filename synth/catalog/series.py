@@ -13,29 +13,14 @@ import math
 import tomllib
 from dataclasses import dataclass
 from decimal import Decimal
-from pathlib import Path
 
 import numpy as np
 
+from synth.catalog.names import catalog_dir
 from synth.errors import DesignError, nearest_name
 from synth.units import parse_fraction
 
 _RANGE_SLACK = 1e-9  # a range end written as "1k" includes the catalogue value 1000 ohm
-
-
-def catalog_dir() -> Path:
-    """Return the folder holding the bundled catalogues.
-
-    An installed package carries them in ``synth/catalogs``; a source checkout
-    has them in the top-level ``catalogs/`` folder beside ``synth/``.
-    """
-    package = Path(__file__).resolve().parent.parent
-    for candidate in (package / "catalogs", package.parent / "catalogs"):
-        if (candidate / "e_series.toml").is_file():
-            return candidate
-    raise DesignError(
-        f"the catalogue folder was not found beside {package}; reinstall rnsynth with pip install ."
-    )
 
 
 @dataclass(frozen=True)

@@ -32,6 +32,7 @@ from synth.cli.streams import (
 from synth.errors import DesignError
 
 if TYPE_CHECKING:
+    from synth.deadline import Deadline
     from synth.design.board import Board
     from synth.design.model import Design
     from synth.results import CheckResult, SynthesisResult
@@ -52,8 +53,8 @@ def _input_files(files: tuple[str, ...], board: Board) -> list[str | Path]:
     return paths
 
 
-def _analyse(design: Design, search: SearchOptions, spread: SpreadOptions
-             ) -> CheckResult | SynthesisResult:
+def _analyse(design: Design, search: SearchOptions, spread: SpreadOptions,
+             deadline: Deadline) -> CheckResult | SynthesisResult:
     from synth.checking import check
     from synth.synthesis import synthesize
 
@@ -66,7 +67,8 @@ def _analyse(design: Design, search: SearchOptions, spread: SpreadOptions
         return synthesize(design, top=search.top, time_limit_s=search.time_limit,
                           progress=progress, spread=settings, rank_by=search.rank_by,
                           require=search.require,
-                          min_yield=None if search.min_yield is None else search.min_yield.value)
+                          min_yield=None if search.min_yield is None else search.min_yield.value,
+                          deadline=deadline)
     finally:
         progress.close()
 
@@ -74,8 +76,8 @@ def _analyse(design: Design, search: SearchOptions, spread: SpreadOptions
 _FRONT_SECONDS = 30.0  # the most the error-supply front may take (its plot says if cut short)
 
 
-def _pictures(result: CheckResult | SynthesisResult, search: SearchOptions
-              ) -> list[tuple[str, Any]]:
+def _pictures(result: CheckResult | SynthesisResult, search: SearchOptions,
+              deadline: Deadline) -> list[tuple[str, Any]]:
     """Every picture of a design's section (those ``--plots`` writes), by file stem."""
     from synth.front import error_front
     from synth.report.plots import check_pictures, design_pictures
@@ -87,8 +89,8 @@ def _pictures(result: CheckResult | SynthesisResult, search: SearchOptions
                                                    result.values))
     if not result.candidates:
         return []
-    limit = (_FRONT_SECONDS if search.time_limit is None
-             else min(search.time_limit, _FRONT_SECONDS))
+    budget = deadline.budget(0.5)  # the front takes at most half the time left
+    limit = _FRONT_SECONDS if budget is None else max(min(budget, _FRONT_SECONDS), 0.01)
     front = error_front(result.design, time_limit_s=limit, require=result.require)
     best = result.candidates[0].check
     return design_pictures(result, cost=search.plot_axis, front=front,
@@ -117,6 +119,7 @@ def report_command(files: tuple[str, ...], output: str, force: bool, search: Sea
     """
     from synth import __version__
     from synth.bom.build import bom_of_values
+    from synth.deadline import Deadline, command_start
     from synth.design.board import load_board
     from synth.digest import input_digest
     from synth.report.review import ReviewedDesign, review_html
@@ -136,8 +139,9 @@ def report_command(files: tuple[str, ...], output: str, force: bool, search: Sea
     for net in board.networks:
         for note in net.design.deprecations:
             click.echo(f"rnsynth: note: {note}", err=True)
-    results = [_analyse(net.design, search, spread) for net in board.networks]
-    pictures = [_pictures(result, search) for result in results]
+    deadline = Deadline(search.time_limit, start=command_start())  # the whole page's
+    results = [_analyse(net.design, search, spread, deadline) for net in board.networks]
+    pictures = [_pictures(result, search, deadline) for result in results]
     options: dict[str, object] = {
         "samples": spread.samples, "distribution": spread.distribution, "seed": spread.seed,
         "top": search.top, "rank_by": search.rank_by, "require": search.require or "design",

@@ -182,12 +182,12 @@ class CatalogueChoice(click.Choice[str]):
 
 
 def series_name_choices() -> Sequence[str]:
-    from synth.catalog.series import series_names
+    from synth.catalog.names import series_names
 
     return series_names()
 
 
 def ranking_choices() -> Sequence[str]:
-    from synth.synthesis import RANKINGS
+    from synth.search.orders import RANKINGS
 
     return RANKINGS
