@@ -133,11 +133,29 @@ def test_the_cli_reports_the_cuts_in_text_and_json():
     assert "Monte Carlo: skipped: 0 of 100,000 samples run" in text.stdout
 
 
-def test_bom_hands_its_time_limit_to_every_network():
+def test_bom_hands_its_time_limit_to_every_network(monkeypatch):
+    # every network's synthesis gets a share of the board's limit, and the cuts it
+    # reports reach the BOM's notes (recorded, not timed: a small network may finish
+    # within any share on a fast or warmed-up machine)
+    from dataclasses import replace
+
+    import synth.bom.build as build
+    from synth.deadline import Cut
+
+    limits: list[float | None] = []
+    real = build.synthesize
+
+    def recording(design, **options):  # type: ignore[no-untyped-def]
+        limits.append(options.get("time_limit_s"))
+        result = real(design, **options)
+        return replace(result, cuts=(Cut("search", "stopped after 1 of 2 rounds"),))
+
+    monkeypatch.setattr(build, "synthesize", recording)
     board = ROOT / "examples" / "greenhouse_board.toml"
     done = CliRunner().invoke(cli, ["bom", str(board), "--format", "json", "--quiet",
-                                    "--time-limit", "1e-9"])
+                                    "--time-limit", "2", "--jobs", "1"])
     assert done.exit_code == 0, done.output
+    assert limits and all(limit is not None and 0 < limit <= 2 for limit in limits), limits
     notes = json.loads(done.stdout)["notes"]
     assert any("cut by the time limit: search:" in n for n in notes), notes
 
