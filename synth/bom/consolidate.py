@@ -43,11 +43,12 @@ from typing import Any
 from ortools.sat.python import cp_model
 
 from synth.bom.cover import best_within, greedy_cover, smallest_need
-from synth.bom.presolve import Component, Presolved, disjoint_need, presolve
+from synth.bom.presolve import Component, Presolved, disjoint_need, presolve, subsets
 
 _ERROR_UNIT = 1e-9  # errors enter the model as integers of this size (fractions)
 DEFAULT_WORK_LIMIT = 20.0
 """CP-SAT deterministic time allowed to the consolidation by default, work units."""
+_SUBSETS_UP_TO = 10  # larger candidates are compared by scanning, not by their subsets
 _LINES_SHARE = 0.6  # of the work limit, at most, for the fewest lines (the rest follows)
 
 
@@ -291,6 +292,25 @@ def _solve_part(part: Component, buy: frozenset[int], names: Sequence[str], seed
     return _Part(_line_set(lines, choice), bounds, spent, elapsed)
 
 
+def _undominated(pool: Sequence[frozenset[int]], errors: Sequence[float]) -> list[int]:
+    """A network's candidates that no other beats in lines and error alike, in order.
+
+    A candidate goes when another needs only some of its lines and has no larger error
+    (of equal lines and errors, the later one goes): it is then never needed for the
+    fewest lines, the fewest to buy nor the least total error.
+    """
+    seen: set[frozenset[int]] = set()
+    kept = []
+    for c in sorted(range(len(pool)), key=lambda c: (errors[c], c)):
+        needed = pool[c]
+        beaten = (any(s in seen for s in subsets(needed)) if len(needed) <= _SUBSETS_UP_TO
+                  else any(s <= needed for s in seen))
+        if not beaten:
+            kept.append(c)
+        seen.add(needed)
+    return sorted(kept)
+
+
 def consolidate(pools: Sequence[Pool], in_stock: frozenset[Hashable] | None = None,
                 time_limit_s: float = 30.0, seed: int = 0,
                 work_limit: float = DEFAULT_WORK_LIMIT, *, workers: int = 1,
@@ -412,16 +432,22 @@ def consolidate(pools: Sequence[Pool], in_stock: frozenset[Hashable] | None = No
             cut = "time limit" if time.perf_counter() >= deadline else "work limit"
         stages.append(Stage(name, value, proven, bound, work=work,
                             elapsed_s=sum(part.elapsed_s[name] for part in done)))
-    model = _Model(lines, errors, buy, seed)
-    for stage in stages:
-        model.keep(stage.name, int(stage.value))
     began = time.perf_counter()
     choice = best_within(lines, errors, _line_set(lines, choice))
     scope, work = "chosen lines", 0.0
     if work_limit - spent > 0 and time.perf_counter() < deadline:
-        found, _, work, exact = model.solve("error", choice, work_limit - spent, deadline - began)
+        kept = [_undominated(pool, pool_errors) for pool, pool_errors in zip(lines, errors,
+                                                                           strict=True)]
+        short = [[lines[i][c] for c in row] for i, row in enumerate(kept)]
+        short_errors = [[errors[i][c] for c in row] for i, row in enumerate(kept)]
+        model = _Model(short, short_errors, buy, seed)
+        for stage in stages:
+            model.keep(stage.name, int(stage.value))
+        hint = best_within(short, short_errors, _line_set(lines, choice))
+        found, _, work, exact = model.solve("error", hint, work_limit - spent,
+                                            deadline - time.perf_counter())
         if found is not None:
-            better = best_within(lines, errors, _line_set(lines, found))
+            better = best_within(lines, errors, _line_set(short, found))
             if _total(errors, better) < _total(errors, choice):
                 choice = better
             if exact:

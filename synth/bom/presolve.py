@@ -30,7 +30,7 @@ its own (networks that share no candidate line need their lines apart).
 
 from __future__ import annotations
 
-__all__ = ["Component", "Presolved", "disjoint_need", "presolve"]
+__all__ = ["Component", "Presolved", "disjoint_need", "presolve", "subsets"]
 
 import itertools
 import time
@@ -73,7 +73,14 @@ class Presolved:
     components: tuple[Component, ...]
 
 
-def _subsets(candidate: frozenset[int]) -> Iterable[frozenset[int]]:
+def subsets(candidate: frozenset[int]) -> Iterable[frozenset[int]]:
+    """Every subset of a candidate's lines, the smallest first.
+
+    Examples
+    --------
+    >>> [sorted(s) for s in subsets(frozenset({2, 1}))]
+    [[], [1], [2], [1, 2]]
+    """
     items = sorted(candidate)
     for size in range(len(items) + 1):
         for subset in itertools.combinations(items, size):
@@ -83,7 +90,7 @@ def _subsets(candidate: frozenset[int]) -> Iterable[frozenset[int]]:
 def _includes_one(pool: frozenset[frozenset[int]], lines: frozenset[int]) -> bool:
     """Some candidate of ``pool`` needs only lines of ``lines``."""
     if len(lines) <= _SUBSETS_UP_TO:
-        return any(s in pool for s in _subsets(lines))
+        return any(s in pool for s in subsets(lines))
     return any(c <= lines for c in pool)
 
 
@@ -91,7 +98,7 @@ def _minimal(pool: Iterable[frozenset[int]]) -> frozenset[frozenset[int]]:
     """The candidates of a pool that include no other candidate's lines."""
     distinct = frozenset(pool)
     return frozenset(c for c in distinct
-                     if not any(o != c and o in distinct for o in _subsets(c))
+                     if not any(o != c and o in distinct for o in subsets(c))
                      ) if all(len(c) <= _SUBSETS_UP_TO for c in distinct) else frozenset(
         c for c in distinct if not any(o < c for o in distinct))
 
@@ -145,7 +152,7 @@ def _dominated_line(pools: list[tuple[int, frozenset[frozenset[int]]]],
             if len(rest) >= _SUBSETS_UP_TO:
                 return False
             fits: set[int] = set()
-            for subset in _subsets(rest):
+            for subset in subsets(rest):
                 fits |= completing.get(subset, set())
             others &= fits
             if not others:

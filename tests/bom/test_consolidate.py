@@ -162,3 +162,25 @@ def test_workers_give_the_same_bom():
     assert (one.choice, one.status, one.cut) == (two.choice, two.status, two.cut)
     assert ([(s.value, s.bound, s.work) for s in one.stages]
             == [(s.value, s.bound, s.work) for s in two.stages])
+
+
+def test_the_error_model_keeps_only_candidates_unbeaten_in_lines_and_error():
+    from synth.bom.consolidate import _undominated
+
+    pool = [frozenset({0, 1}), frozenset({0}), frozenset({0}), frozenset({0, 1}),
+            frozenset({2})]
+    # {0, 1} at 0.0 beats {0, 1} at 0.01; {0} at 0.01 beats {0} at 0.02; {2} is apart
+    assert _undominated(pool, [0.01, 0.02, 0.01, 0.0, 0.05]) == [2, 3, 4]
+
+
+# boards where a candidate needs only some of another's lines at a larger error, so that
+# dropping the wrong one of the two loses the least error over every choice
+@pytest.mark.parametrize(("seed", "values"), [(43, 8), (44, 5), (48, 8), (73, 8), (91, 8),
+                                              (99, 6), (110, 6), (152, 5), (153, 6)])
+def test_least_error_over_every_choice_on_crowded_values(seed, values):
+    rng = np.random.default_rng(seed)
+    pools = random_pools(rng, networks=int(rng.integers(2, 5)), most=6, values=values)
+    result = consolidate(pools)
+    lines, _, error = lexicographic_best(pools)
+    assert result.lines == lines and result.stages[-1].scope == "every choice"
+    assert result.total_error == pytest.approx(error, abs=1e-8)
