@@ -22,7 +22,6 @@ __all__ = [
 import copy
 import itertools
 import math
-import os
 import re
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
@@ -34,6 +33,7 @@ from synth.design.model import Design
 from synth.design.reader import design_from_dict
 from synth.errors import DesignError, InfeasibleError, RnsynthError, excerpt, nearest_name
 from synth.inputs import read_toml, require_suffix
+from synth.parallel import available_cores, ordered_map
 from synth.units import (
     parse_fraction,
     parse_quantity,
@@ -472,14 +472,6 @@ class SweepResult:
         return all(p.ok for p in self.points)
 
 
-def available_cores() -> int:
-    """The cores this process may run on (its affinity where the system tells it)."""
-    try:
-        return max(1, len(os.sched_getaffinity(0)))
-    except AttributeError:  # not on every system
-        return max(1, os.cpu_count() or 1)
-
-
 def _tables_of(design: str | Path | Mapping[str, Any], origin: str | None
                ) -> tuple[dict[str, Any], str]:
     if isinstance(design, Mapping):
@@ -565,14 +557,6 @@ def sweep(design: str | Path | Mapping[str, Any], over: Sequence[SweepAxis | str
 
 
 def _run_local(tasks: Sequence[_Task], workers: int) -> tuple[list[SweepPoint], str]:
-    if workers <= 1:
-        return [run_point(t) for t in tasks], "in-process"
-    import multiprocessing
-    from concurrent.futures import ProcessPoolExecutor
-
-    # a fresh interpreter per worker (not a fork of this one, whose threads a fork
-    # would leave in an unknown state); map keeps the grid's order
-    context = multiprocessing.get_context(
-        "forkserver" if "forkserver" in multiprocessing.get_all_start_methods() else "spawn")
-    with ProcessPoolExecutor(max_workers=workers, mp_context=context) as pool:
-        return list(pool.map(run_point, tasks)), "local processes"
+    """Every point in grid order: here with one worker, else on ``workers`` processes."""
+    return (ordered_map(run_point, tasks, workers),
+            "in-process" if workers <= 1 else "local processes")
