@@ -65,6 +65,18 @@ class ItemReader:
     def fail(self, problem: str) -> NoReturn:
         fail_item(self.origin, self.item, problem)
 
+    def node_pair(self) -> tuple[str, str]:
+        """``nodes``: two distinct printable node names, stripped (a two-terminal part)."""
+        nodes = self.table.get("nodes")
+        if not (isinstance(nodes, list) and len(nodes) == 2
+                and all(isinstance(n, str) and n.strip() and n.strip().isprintable()
+                        for n in nodes)):
+            self.fail('nodes must be a pair of node names such as ["in", "out"]')
+        a, b = nodes[0].strip(), nodes[1].strip()
+        if a == b:
+            self.fail(f"both ends are on node {a!r}; connect it between two nodes")
+        return a, b
+
     def has(self, key: str) -> bool:
         return key in self.table
 

@@ -47,14 +47,7 @@ def read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
                    packages: Mapping[str, PackageRating]) -> Resistor:
     reader = ItemReader(origin, item_label("resistor", index, raw), raw, _RESISTOR_KEYS)
     ref = reader.text("ref")
-    nodes = raw.get("nodes")
-    if not (isinstance(nodes, list) and len(nodes) == 2
-            and all(isinstance(n, str) and n.strip() and n.strip().isprintable()
-                    for n in nodes)):
-        reader.fail('nodes must be a pair of node names such as ["in", "out"]')
-    a, b = nodes[0].strip(), nodes[1].strip()
-    if a == b:
-        reader.fail(f"both ends are on node {a!r}; connect it between two nodes")
+    a, b = reader.node_pair()
     part_values: tuple[float, ...] | None = None
     raw_value = raw.get("value")
     if isinstance(raw_value, list):

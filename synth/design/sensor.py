@@ -146,14 +146,7 @@ def read_sensor(origin: str, index: int, raw: Any) -> Sensor:
         for key in keys:
             if other != kind and key in raw and key not in _KIND_KEYS[kind]:
                 reader.fail(f"{key} applies to an {other}, not an {kind}; drop it")
-    nodes = raw.get("nodes")
-    if not (isinstance(nodes, list) and len(nodes) == 2
-            and all(isinstance(n, str) and n.strip() and n.strip().isprintable()
-                    for n in nodes)):
-        reader.fail('nodes must be a pair of node names such as ["in", "out"]')
-    a, b = nodes[0].strip(), nodes[1].strip()
-    if a == b:
-        reader.fail(f"both ends are on node {a!r}; connect it between two nodes")
+    a, b = reader.node_pair()
     model = _rtd(reader) if kind == "rtd" else _ntc(reader)
     return Sensor(ref=ref, nodes=(a, b), model=model)
 
