@@ -27,11 +27,13 @@ from synth.design.model import Design
 from synth.design.points import point_label
 from synth.errors import DesignError, name_list, nearest_name
 from synth.linearity import check_linearity
+from synth.parallel import check_jobs
 from synth.rating import exceeds, falls_short, use_of
 from synth.results import CheckResult, PartReport, Problem, TargetReport
 from synth.search.ideal import ideal_values
 from synth.spread.analyse import analyse_spread
 from synth.spread.records import SpreadResult, SpreadSettings
+from synth.spread.shard_map import process_shards
 
 
 def target_reports(design: Design, values: np.ndarray, noise: np.ndarray | None = None
@@ -335,7 +337,7 @@ def check_block(design: Design, evaluator: Evaluator, positions: np.ndarray,
 
 def check(design: Design, *, values: Mapping[str, float] | None = None,
           verify: bool = False, fill_ideal: bool = True,
-          spread: SpreadSettings | None = None) -> CheckResult:
+          spread: SpreadSettings | None = None, jobs: int = 1) -> CheckResult:
     """Analyse a design whose resistor values are all known.
 
     Parameters
@@ -355,6 +357,10 @@ def check(design: Design, *, values: Mapping[str, float] | None = None,
     spread : SpreadSettings, optional
         Also analyse the spread over tolerance, temperature and supply
         (:func:`synth.spread.analyse.analyse_spread`).
+    jobs : int
+        Most processes the Monte Carlo's seeded shards may use
+        (:func:`synth.spread.shard_map.process_shards`); 1 (the default) runs them
+        in this process.  The figures do not depend on it.
 
     Returns
     -------
@@ -385,6 +391,7 @@ def check(design: Design, *, values: Mapping[str, float] | None = None,
     power use limit (50 % by default; common practice), and its limiting
     element voltage times the voltage use limit (80 %); see :mod:`synth.rating`.
     """
+    check_jobs(jobs)
     given = dict(values or {})
     filled: dict[str, float] = {}
     missing = [p.ref for p in design.resistors
@@ -411,7 +418,8 @@ def check(design: Design, *, values: Mapping[str, float] | None = None,
         spread = SpreadSettings(samples=0) if design.require == "worst-case" else SpreadSettings()
     if spread is not None:
         spread_result = analyse_spread(design, result.positions, spread, ev,
-                                       part_values=parts)
+                                       part_values=parts,
+                                       map_shards=process_shards(jobs) if jobs > 1 else None)
     problems = result.problems + required_problems(design, spread_result)
     return CheckResult(**{**result.__dict__, "verify_difference": difference,
                           "filled": filled, "spread": spread_result, "problems": problems})

@@ -37,6 +37,7 @@ from synth.search.problem import SearchProblem
 from synth.search.ranking import TIE_TOLERANCE
 from synth.spread.analyse import analyse_spread
 from synth.spread.records import SpreadSettings
+from synth.spread.shard_map import process_shards
 from synth.spread.worst_case import WorstCase
 
 _GRID_UP_TO = 12
@@ -193,7 +194,7 @@ def _with_goal_status(candidate: Candidate, binding: str | None,
 
 
 def _spread_of(design: Design, evaluator: Evaluator, candidate: Candidate,
-               settings: SpreadSettings) -> Candidate:
+               settings: SpreadSettings, jobs: int = 1) -> Candidate:
     values = candidate.check.values
     if design.points:  # the copies at later points: their leader's or their point's values
         r0 = evaluator.follow(np.array([candidate.positions.get(
@@ -204,8 +205,9 @@ def _spread_of(design: Design, evaluator: Evaluator, candidate: Candidate,
         parts = evaluator.follow_parts(parts)[0]
     else:
         parts = np.array([values[ref] for ref in design.part_refs])
-    return replace(candidate, spread=analyse_spread(design, candidate.positions, settings,
-                                                    evaluator, part_values=parts))
+    return replace(candidate, spread=analyse_spread(
+        design, candidate.positions, settings, evaluator, part_values=parts,
+        map_shards=process_shards(jobs) if jobs > 1 else None))
 
 
 PILOT_SAMPLES = 1000
@@ -213,18 +215,21 @@ PILOT_SAMPLES = 1000
 
 
 def _fitted_spread(design: Design, evaluator: Evaluator, candidate: Candidate,
-                   settings: SpreadSettings, seconds: float, deadline: Deadline) -> Candidate:
+                   settings: SpreadSettings, seconds: float, deadline: Deadline,
+                   jobs: int = 1) -> Candidate:
     """The candidate's spread with its Monte Carlo shrunk to fit ``seconds``.
 
     A pilot of :data:`PILOT_SAMPLES` samples measures the cost of a sample
     (the pilot's whole time over its samples: an overestimate, as it also
     holds the worst case); the samples that fit are run, at most those
     asked.  A shortened run keeps the asked count in its settings and says
-    how many ran; the cut is recorded on ``deadline``.
+    how many ran; the cut is recorded on ``deadline``.  The pilot runs in this
+    process; the run fitted after it may spread its shards over ``jobs`` processes
+    (:func:`synth.spread.shard_map.process_shards`), which only makes it end sooner.
     """
     asked = settings.samples
     if asked <= PILOT_SAMPLES or not deadline.limited:
-        return _spread_of(design, evaluator, candidate, settings)
+        return _spread_of(design, evaluator, candidate, settings, jobs)
     if seconds <= 0:
         spread = _spread_of(design, evaluator, candidate, replace(settings, samples=0))
         deadline.cut("Monte Carlo", f"skipped: 0 of {asked:,} samples run", asked=asked,
@@ -235,9 +240,9 @@ def _fitted_spread(design: Design, evaluator: Evaluator, candidate: Candidate,
     per_sample = max(deadline.elapsed() - began, 1e-9) / PILOT_SAMPLES
     fit = int(max(seconds - (deadline.elapsed() - began), 0.0) / per_sample)
     if fit >= asked:
-        return _spread_of(design, evaluator, candidate, settings)
+        return _spread_of(design, evaluator, candidate, settings, jobs)
     kept = pilot if fit <= PILOT_SAMPLES else _spread_of(design, evaluator, candidate,
-                                                         replace(settings, samples=fit))
+                                                         replace(settings, samples=fit), jobs)
     assert kept.spread is not None
     run = kept.spread.samples_run or 0
     deadline.cut("Monte Carlo", f"{asked:,} samples asked, {run:,} run to fit the time "
@@ -315,8 +320,9 @@ def synthesize(
         A deadline already running (a command's, started before this call);
         built from ``time_limit_s`` when not given.  Its cuts are the result's.
     jobs : int
-        Most processes the search may use (:mod:`synth.search.parallel`); 1 (the
-        default) runs everything in this process.  The result does not depend on it.
+        Most processes the search (:mod:`synth.search.parallel`) and each Monte Carlo
+        (its seeded shards, :mod:`synth.spread.shard_map`) may use; 1 (the default)
+        runs everything in this process.  The result does not depend on it.
 
     Returns
     -------
@@ -388,7 +394,7 @@ def synthesize(
     candidates = _candidates(design, evaluator, choices, ranked.indices, deadline)
     follows = bool(candidates) and any(r.package for r in design.resistors)
     candidates = _with_spreads(design, evaluator, candidates, spread, by_yield, require,
-                               deadline, _SPREAD_SHARE if follows else 1.0)
+                               deadline, _SPREAD_SHARE if follows else 1.0, jobs)
     if require == "worst-case" and not feasible:
         # the nearest designs, judged on the required basis, nearest first
         candidates = sorted((_on_basis(replace(design, require=require), c)
@@ -451,7 +457,7 @@ def _basis(design: Design, rank_by: str, require: str | None, min_yield: float |
 
 def _with_spreads(design: Design, evaluator: Evaluator, candidates: list[Candidate],
                   spread: SpreadSettings | None, by_yield: bool, require: str,
-                  deadline: Deadline, share: float) -> list[Candidate]:
+                  deadline: Deadline, share: float, jobs: int = 1) -> list[Candidate]:
     """Each candidate's spread: Monte Carlo for all when yield ranks or filters, else the best.
 
     Under a time limit the spreads take at most ``share`` of the time left:
@@ -478,7 +484,7 @@ def _with_spreads(design: Design, evaluator: Evaluator, candidates: list[Candida
         # the candidates that still run Monte Carlo share the time left evenly
         sharing = len(candidates) - k if by_yield else 1
         out.append(_fitted_spread(design, evaluator, candidate, chosen, left / sharing,
-                                  deadline))
+                                  deadline, jobs))
     return out
 
 

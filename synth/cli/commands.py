@@ -103,9 +103,10 @@ def series_command(name: str, span: Range, nearest: Given | None, as_json: bool)
               help="Also solve by nodal analysis and report the largest difference.")
 @spread_options
 @_FORCE_PLOTS
+@jobs_option
 @friendly
 def check_command(design_file: str, as_json: bool, verify: bool, spread: SpreadOptions,
-                  force: bool) -> None:
+                  force: bool, jobs: int) -> None:
     """Analyse a design whose values are all given.
 
     Prints node voltages, each part's current, dissipation and use of its
@@ -119,7 +120,7 @@ def check_command(design_file: str, as_json: bool, verify: bool, spread: SpreadO
     check_plot_folder(spread.plots)
     settings = spread.settings()
     design = read_design(design_file)
-    result = check(design, verify=verify, spread=settings)
+    result = check(design, verify=verify, spread=settings, jobs=jobs)
     written = []
     if spread.plots:
         from synth.report.plots import check_pictures

@@ -165,9 +165,9 @@ def _processes(ctx: click.Context, param: click.Parameter, value: str | None) ->
 
 _JOBS = click.option(
     "--jobs", callback=_processes, default=None, metavar="N",
-    help="Processes to use: the search and a board's networks are spread over them, with "
-         "the same results for any N (1: this process only) [default: every core "
-         "available].")
+    help="Processes to use: the search, the Monte Carlo's seeded shards and a board's "
+         "networks are spread over them, with the same results for any N (1: this process "
+         "only) [default: every core available].")
 
 
 def jobs_option(command: F) -> F:

@@ -94,8 +94,9 @@ def test_a_solver_failure_is_one_line_and_exit_two(monkeypatch, error):
     assert str(error) in result.stderr and len(result.stderr.strip().splitlines()) == 1
 
 
-@pytest.mark.parametrize("command", [DIVIDER, ["design", "examples/greenhouse_probe.toml"]],
-                         ids=["quick", "design"])
+@pytest.mark.parametrize("command", [DIVIDER, ["design", "examples/greenhouse_probe.toml"],
+                                     ["check", "examples/greenhouse_probe.toml"]],
+                         ids=["quick", "design", "check"])
 @pytest.mark.parametrize("jobs", ["0", "-2", "2.5", "two", " "])
 def test_a_bad_process_count_is_one_line_and_exit_two(command, jobs):
     result = run(*command, "--jobs", jobs)
@@ -122,3 +123,39 @@ def test_the_process_count_reaches_the_search(command, monkeypatch):
     assert run(*command, "--jobs", "3").exit_code == 0
     assert run(*command).exit_code == 0
     assert asked == [3, available_cores()]
+
+
+@pytest.mark.parametrize("command", [
+    ["check", "examples/greenhouse_probe.toml"],
+    ["design", "examples/greenhouse_probe.toml", "--top", "1"],
+    ["divider", "--input", "12 V", "--output", "3.3 V", "--top", "1"],
+], ids=["check", "design", "quick"])
+def test_monte_carlo_figures_do_not_depend_on_the_process_count(command, monkeypatch):
+    # 3 seeded shards (the last one short), the two after the first run on worker
+    # processes with --jobs 2: the JSON spread figures are those of --jobs 1, bit for bit
+    import json
+
+    import synth.spread.shard_map as shard_map
+    from synth.spread.monte_carlo import SHARD_SIZE
+
+    monkeypatch.setattr(shard_map, "PARALLEL_FROM_S", 0.0)
+    sent = []
+    real = shard_map.ordered_map
+
+    def counting(function, items, jobs=1, **kwargs):
+        sent.append(jobs)
+        return real(function, items, jobs, **kwargs)
+
+    monkeypatch.setattr(shard_map, "ordered_map", counting)
+    spreads = []
+    for jobs in ("1", "2"):
+        result = run(*command, "--json", "--seed", "7", "--samples",
+                     str(2 * SHARD_SIZE + 999), "--jobs", jobs)
+        assert result.exit_code in (0, 1), result.output
+        document = json.loads(result.stdout)
+        spread = (document["spread"] if command[0] == "check"
+                  else document["candidates"][0]["spread"])
+        assert spread["shards"] == 3 and spread["samples_run"] == 2 * SHARD_SIZE + 999
+        spreads.append(spread)
+    assert sent == [2]  # the run with --jobs 2 sent its shards to the workers
+    assert spreads[0] == spreads[1]
