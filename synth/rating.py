@@ -8,6 +8,20 @@ thick-film chips).  A design then lets a part use only a share of that
 (``max_power_use``, 50 % by default) and of its limiting element voltage
 (``max_voltage_use``, 80 % by default).
 
+Self-heating
+------------
+A package with a thermal resistance Rθ (K/W, the package table's
+``thermal_resistance_k_per_w``) runs at its own temperature, the ambient plus
+P·Rθ.  The element may not pass the zero-power temperature, so the allowed
+dissipation is also at most (zero-power temperature − ambient) / Rθ; the
+allowance is the lesser of that and the derating line.  The line is drawn for
+a part on its rating's standard mounting and already holds that part's own
+rise (at rated power and rated ambient its element reaches the zero-power
+temperature, Rθ = 85 K / P70 on a 70 → 155 °C line), so the part's own
+temperature is not fed into the line again: for the bundled table, whose Rθ
+is that slope, the two limits agree; a table with a larger Rθ (a part on less
+copper) lowers the allowance, a smaller one does not raise it above the rating.
+
 The temperature rule
 --------------------
 One physical quantity, one rule: a part's allowance is taken at the hottest
@@ -31,7 +45,7 @@ from __future__ import annotations
 
 __all__ = [
     "LIMIT_SLACK", "NOISE_FRACTION", "Allowance", "allowance", "allowed_power", "allowed_voltage",
-    "derating_factor", "exceeds", "falls_short", "use_of",
+    "derated_power", "derating_factor", "exceeds", "falls_short", "temperature_rise", "use_of",
 ]
 
 from dataclasses import dataclass
@@ -85,8 +99,68 @@ def derating_factor(
     return np.clip((zero_power_c - ambient) / span, 0.0, 1.0)
 
 
+def temperature_rise(rating: PackageRating | None, power_w: ArrayLike) -> np.ndarray:
+    """Rise of a part's own temperature over the ambient, K: ΔT = P·Rθ.
+
+    Parameters
+    ----------
+    rating : PackageRating or None
+        The part's package (None: an unrated part, which is taken not to heat itself).
+    power_w : float or array
+        The part's dissipation, W.
+
+    Returns
+    -------
+    numpy.ndarray
+        K; zero when the package has no thermal resistance.
+
+    Examples
+    --------
+    >>> from synth.catalog.packages import load_package_table
+    >>> float(temperature_rise(load_package_table()["0603"], 0.05))
+    42.5
+
+    Notes
+    -----
+    Steady-state conduction through a thermal resistance, the thermal analogue of
+    Ohm's law (ΔT = P·Rθ, heat-transfer handbooks).
+    """
+    power = np.abs(np.asarray(power_w, dtype=float))
+    theta = rating.thermal_resistance_k_per_w if rating is not None else None
+    return power * (theta or 0.0)  # type: ignore[no-any-return]  # numpy types this product as Any
+
+
+def derated_power(rating: PackageRating, ambient_c: ArrayLike) -> np.ndarray:
+    """What a part of ``rating`` may dissipate at ``ambient_c``, W, before any use limit.
+
+    The rated power times the derating line's factor, and with a thermal
+    resistance Rθ at most the power that takes the part's own temperature to
+    the zero-power temperature, (zero_power_c − ambient_c) / Rθ (see the
+    module notes).
+
+    Examples
+    --------
+    >>> from dataclasses import replace
+    >>> from synth.catalog.packages import load_package_table
+    >>> chip = load_package_table()["0603"]                   # 850 K/W, the line's slope
+    >>> round(float(derated_power(chip, 85.0)), 5)
+    0.08235
+    >>> hot = replace(chip, thermal_resistance_k_per_w=1000.0)  # on less copper
+    >>> round(float(derated_power(hot, 85.0)), 5)                # (155 - 85) / 1000
+    0.07
+    """
+    line = rating.rated_power_w * derating_factor(ambient_c, rating.rated_ambient_c,
+                                                  rating.zero_power_c)
+    theta = rating.thermal_resistance_k_per_w
+    if not theta:
+        return line
+    ambient = np.asarray(ambient_c, dtype=float)
+    hot_spot = np.clip((rating.zero_power_c - ambient) / theta, 0.0, None)
+    return np.minimum(line, hot_spot)
+
+
 def allowed_power(rating: PackageRating, ambient_c: ArrayLike, max_use: float) -> np.ndarray:
-    """Dissipation a design allows a part, W: rated power × derating × use limit.
+    """Dissipation a design allows a part, W: derated power × use limit.
 
     Parameters
     ----------
@@ -103,8 +177,7 @@ def allowed_power(rating: PackageRating, ambient_c: ArrayLike, max_use: float) -
     >>> float(allowed_power(load_package_table()["0603"], 25.0, 0.5))
     0.05
     """
-    factor = derating_factor(ambient_c, rating.rated_ambient_c, rating.zero_power_c)
-    return rating.rated_power_w * factor * max_use
+    return derated_power(rating, ambient_c) * max_use
 
 
 def allowed_voltage(rating: PackageRating, max_use: float) -> float:
@@ -166,8 +239,7 @@ def allowance(rating: PackageRating, *, ambient_c: float, max_power_use: float,
     >>> a.power_w, a.voltage_v
     (0.05, 40.0)
     """
-    derated = float(rating.rated_power_w
-                    * derating_factor(ambient_c, rating.rated_ambient_c, rating.zero_power_c))
+    derated = float(derated_power(rating, ambient_c))
     return Allowance(
         package=rating.name, ambient_c=float(ambient_c), rated_power_w=rating.rated_power_w,
         derated_power_w=derated, power_w=derated * max_power_use,

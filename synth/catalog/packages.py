@@ -1,5 +1,5 @@
-"""The package table: each package's rated dissipation, rated ambient, zero-power temperature and
-limiting element voltage.
+"""The package table: each package's rated dissipation, rated ambient, zero-power temperature,
+limiting element voltage and (optionally) thermal resistance.
 """
 
 from __future__ import annotations
@@ -43,6 +43,10 @@ class PackageRating:
     technology : str
         The resistive element (``"thick film"``, ``"thin film"``, ``"metal film"``,
         ``"wirewound"``); empty when the table has no ``technology`` column.
+    thermal_resistance_k_per_w : float or None
+        Rise of the part's own (hot-spot) temperature per watt it dissipates, K/W; None when
+        the table has no ``thermal_resistance_k_per_w`` column or the row leaves it empty
+        (the part is then taken not to heat itself).
     """
 
     name: str
@@ -55,6 +59,7 @@ class PackageRating:
     limiting_voltage_v: float
     source: str
     technology: str = ""
+    thermal_resistance_k_per_w: float | None = None
 
 
 _PACKAGE_COLUMNS = (
@@ -68,6 +73,9 @@ _PACKAGE_COLUMNS = (
     "limiting_voltage_v",
     "source",
 )
+
+_THERMAL_COLUMN = "thermal_resistance_k_per_w"
+"""The optional column of each package's thermal resistance, K/W."""
 
 
 def read_csv_rows(path: Path, delimiters: str = ",") -> Iterator[tuple[int, dict[str, str]]]:
@@ -134,6 +142,7 @@ def _package_row(path: Path, number: int, row: dict[str, str]) -> PackageRating:
     if not row["name"]:
         raise DesignError(f"{path}, line {number}: the package name is empty; name it")
     return PackageRating(
+        thermal_resistance_k_per_w=_thermal_resistance(path, number, row),
         name=row["name"],
         mount=row["mount"],
         imperial=row["imperial"],
@@ -142,6 +151,26 @@ def _package_row(path: Path, number: int, row: dict[str, str]) -> PackageRating:
         technology=row.get("technology", ""),
         **numbers,
     )
+
+
+def _thermal_resistance(path: Path, number: int, row: dict[str, str]) -> float | None:
+    """The row's ``thermal_resistance_k_per_w``, K/W: None when the column is absent or empty."""
+    text = row.get(_THERMAL_COLUMN, "")
+    if not text:
+        return None
+    try:
+        value = float(text)
+    except ValueError:
+        raise DesignError(
+            f"{path}, line {number}: {_THERMAL_COLUMN} {text!r} is not a number; write the "
+            "rise in K per W as a plain number, or leave the cell empty for no self-heating"
+        ) from None
+    if not math.isfinite(value) or value < 0:
+        raise DesignError(
+            f"{path}, line {number}: {_THERMAL_COLUMN} {text!r} must be a finite number of "
+            "K/W, zero or more; write the part's temperature rise per watt"
+        )
+    return value
 
 
 @functools.cache

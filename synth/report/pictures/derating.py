@@ -13,7 +13,7 @@ from matplotlib.figure import Figure
 from matplotlib.ticker import MultipleLocator
 
 from synth.design.model import Design
-from synth.rating import derating_factor
+from synth.rating import derated_power
 from synth.report.pictures.axes import eng_axis, figure_for
 from synth.results import PartReport
 from synth.spread.records import SpreadResult
@@ -67,8 +67,10 @@ def derating_curve(design: Design, parts: Sequence[PartReport], package: str, *,
 
     Notes
     -----
-    The curve is :func:`synth.rating.derating_factor` (linear from the rated
-    ambient to the zero-power temperature, IEC 60115-1 rating points).
+    The curve is :func:`synth.rating.derated_power` (linear from the rated
+    ambient to the zero-power temperature, IEC 60115-1 rating points, and at most
+    the power that takes the part's own temperature to the zero-power temperature
+    when its thermal resistance is larger than the line's slope).
     """
     rating = design.packages[package]
     figure, ax = figure_for(ax, (7.6, 4.2))
@@ -77,8 +79,11 @@ def derating_curve(design: Design, parts: Sequence[PartReport], package: str, *,
     # the knees of the curve are points of it, so the drawn line bends exactly there
     ambient = np.union1d(np.linspace(low, high, 241),
                          [rating.rated_ambient_c, rating.zero_power_c])
-    rated = rating.rated_power_w * derating_factor(ambient, rating.rated_ambient_c,
-                                                   rating.zero_power_c)
+    theta = rating.thermal_resistance_k_per_w
+    if theta and rating.zero_power_c - theta * rating.rated_power_w > rating.rated_ambient_c:
+        # a hot-spot limit below the line bends the curve at its own knee
+        ambient = np.union1d(ambient, [rating.zero_power_c - theta * rating.rated_power_w])
+    rated = derated_power(rating, ambient)
     ax.plot(ambient, rated, color="black", linestyle="-", linewidth=1.8,
             label=f"{package} rating, derated")
     ax.plot(ambient, rated * design.margin_frac, color="black", linestyle="--", linewidth=1.4,
