@@ -40,6 +40,7 @@ SUFFIXES = {
     "design or board file": ".toml",
     "package table": ".csv",
     "stock list": ".csv",
+    "class table": ".csv",
 }
 """The suffix each kind of input file must have (compared without regard to case)."""
 

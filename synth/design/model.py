@@ -17,6 +17,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from synth.catalog.packages import PackageRating
+from synth.catalog.part_classes import PartClass
 from synth.design.position import Position
 from synth.design.target import Target
 from synth.rating import Allowance, allowance
@@ -134,6 +135,10 @@ class Resistor:
     follows : bool
         True when this copy takes ``copy_of``'s value (always for a free
         part; for a fixed one unless a point gives it its own value).
+    classes : tuple of PartClass
+        The classes the part may be bought in (``classes``), empty for a part of
+        one series and tolerance; ``choose``, ``stock_path``, ``tolerance`` and
+        ``tcr`` are then those of its cheapest class until one is chosen.
     """
 
     ref: str
@@ -150,6 +155,7 @@ class Resistor:
     point: str | None = None
     copy_of: str | None = None
     follows: bool = False
+    classes: tuple[PartClass, ...] = ()
 
     @property
     def combine(self) -> str | None:

@@ -21,6 +21,7 @@ from synth.design.fields import (
 )
 from synth.design.model import Resistor
 from synth.design.position import MAX_PARTS, Position
+from synth.design.read_classes import read_part_classes
 from synth.errors import DesignError, name_list, nearest_name
 from synth.inputs import present
 from synth.units import (
@@ -29,7 +30,7 @@ from synth.units import (
 
 _RESISTOR_KEYS = (
     "ref", "nodes", "value", "choose", "range", "tolerance", "tcr", "package", "combine", "parts",
-    "equal_parts", "bom", "note",
+    "equal_parts", "bom", "note", "classes",
 )
 
 
@@ -62,6 +63,9 @@ def read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
     stock_path: Path | None = None
     span: tuple[float, float] | None = None
     series_tolerance: float | None = None
+    classed = read_part_classes(reader, settings)
+    if classed is not None:  # free: it stands as its cheapest class until one is chosen
+        choose, stock_path = classed.base.choose, classed.base.stock_path
     if choose is None:
         if value is None and part_values is None:
             reader.fail('give a value (value = "10k") or let rnsynth choose one (choose = "E96")')
@@ -71,9 +75,9 @@ def read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
             reader.fail('a fixed position of several parts lists each part\'s value, such as '
                         'value = ["442k", "432k"]; or add choose = "E96"')
     else:
-        if choose.lower().endswith(".csv"):
+        if classed is None and choose.lower().endswith(".csv"):
             stock_path = _resolve_stock(origin, reader, choose)
-        else:
+        elif classed is None:
             try:
                 series = load_series(choose)
             except DesignError as exc:
@@ -95,13 +99,18 @@ def read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
     position = _read_position(reader, raw, ref, part_values)
     if part_values is not None:
         value = float(position.effective(np.array([part_values]))[0])
-    if reader.has("tolerance"):
+    if classed is not None:
+        tolerance = classed.base.tolerance
+    elif reader.has("tolerance"):
         tolerance = reader.fraction("tolerance", "0%", upper=0.99)
     elif series_tolerance is not None:
         tolerance = series_tolerance
     else:
         tolerance = settings["default_tolerance"]
-    tcr = reader.parsed("tcr", parse_tcr) if reader.has("tcr") else settings["default_tcr"]
+    if classed is not None and classed.base.tcr is not None:
+        tcr = classed.base.tcr
+    else:
+        tcr = reader.parsed("tcr", parse_tcr) if reader.has("tcr") else settings["default_tcr"]
     bom = raw.get("bom", True)
     if not isinstance(bom, bool):
         reader.fail(f"bom must be true or false, not {bom!r}")
@@ -116,6 +125,7 @@ def read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
     return Resistor(
         ref=ref, nodes=(a, b), value=value, choose=choose, stock_path=stock_path, range=span,
         tolerance=tolerance, tcr=tcr, package=package, position=position, bom=bom,
+        classes=classed.classes if classed is not None else (),
     )
 
 

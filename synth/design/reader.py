@@ -34,6 +34,7 @@ from synth.design.fields import (
 from synth.design.linearity import read_linearity
 from synth.design.model import REQUIREMENTS, Design, Regulator, Source
 from synth.design.points import expand_points
+from synth.design.read_classes import read_class_settings
 from synth.design.read_point import read_points, source_range
 from synth.design.read_resistor import read_resistor
 from synth.design.read_target import read_target
@@ -56,7 +57,7 @@ _TOP_KEYS = ("design", "source", "resistor", "regulator", "controlled", "transis
 _DESIGN_KEYS = (
     "title", "ground", "ambient", "max_power_use", "max_voltage_use", "temperature",
     "package", "packages", "tolerance", "tcr", "require", "min_yield", "notes", "margin",
-    "voltage_margin",
+    "voltage_margin", "classes", "class_table",
 )
 
 
@@ -127,6 +128,7 @@ def _read_design_table(origin: str, raw: Any) -> dict[str, Any]:
         settings["min_yield"] = reader.fraction("min_yield", "0%", strict=True)
     elif settings["require"] == "yield":
         reader.fail('require = "yield" needs min_yield, such as min_yield = "99%"')
+    read_class_settings(reader, settings)
     if reader.has("notes") and not isinstance(reader.table["notes"], str):
         reader.fail("notes must be text")
     for note in notes:  # once the table has read cleanly

@@ -89,9 +89,12 @@ def part_range(combine: str, low: float, high: float) -> tuple[float, float]:
 
 @functools.lru_cache(maxsize=256)
 def _series_catalogue(name: str, low: float, high: float) -> tuple[np.ndarray, np.ndarray]:
-    """A series' values over a range and each one's series rank (read-only; kept, since a
-    design's positions often share a series and range and a run designs many networks)."""
-    values = series_values(name, low, high)
+    """A series' (or a union of series') values over a range and each one's series rank
+    (read-only; kept, since a design's positions often share a series and range and a run
+    designs many networks)."""
+    # a union of series (``"E24+E96"``: 1 % parts are sold in both) holds each value once
+    values = np.unique(np.concatenate([series_values(part, low, high)
+                                       for part in name.split("+")]))
     ranks = series_rank(values)
     values.flags.writeable = False
     ranks.flags.writeable = False
@@ -104,7 +107,15 @@ def _base_values(resistor: Resistor, origin: str) -> tuple[np.ndarray, np.ndarra
     span = resistor.range
     if span is not None and resistor.combine is not None:
         span = part_range(resistor.combine, *span)
-    if resistor.stock_path is not None:
+    stock_class = _stock_class_values(resistor)
+    if stock_class is not None:
+        values, label = stock_class, resistor.choose or ""
+        if span is not None:
+            low, high = span
+            values = values[(values >= low * (1 - _RANGE_SLACK))
+                            & (values <= high * (1 + _RANGE_SLACK))]
+        ranks = series_rank(values)
+    elif resistor.stock_path is not None:
         # a row fits when its package (if given) is the part's and its tolerance and TCR are
         # at least as good as the part's
         wanted = (resistor.package or "").casefold()
@@ -126,6 +137,17 @@ def _base_values(resistor: Resistor, origin: str) -> tuple[np.ndarray, np.ndarra
         raise DesignError(f"{origin}, resistor {resistor.ref}: no {label} value lies in its "
                           "range; widen the range")
     return values, ranks, label
+
+
+def _stock_class_values(resistor: Resistor) -> np.ndarray | None:
+    """The values of the stock-list class the part stands as (its rows' kind only), or None
+    for a part of no such class."""
+    for part_class in resistor.classes:
+        if (part_class.stock_path is not None and part_class.stock_path == resistor.stock_path
+                and part_class.tolerance == resistor.tolerance
+                and part_class.tcr == resistor.tcr):
+            return np.array(part_class.values, dtype=float)
+    return None
 
 
 def _part_sets(values: np.ndarray, position: Position) -> np.ndarray:
