@@ -174,8 +174,11 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
         designators of the design files are kept, repeats only renumbered.
     jobs : int
         Most processes to use: the networks are designed in parallel (one network's
-        search on them all when it is the only one with free parts); 1 (the default)
-        runs everything in this process.  The BOM does not depend on it.
+        search on them all when it is the only one with free parts), and the
+        consolidation solves up to ``jobs`` independent components side by side
+        (:func:`synth.bom.consolidate.consolidate`'s ``workers``); 1 (the default) runs
+        everything in this process, one component after another.  The BOM does not
+        depend on it.
 
     Returns
     -------
@@ -214,7 +217,7 @@ def build_bom(board: Board, stock_only: bool = False, time_limit_s: float = 30.0
                 if stock else None)
     outcome = consolidate(pools, in_stock=in_stock,
                           time_limit_s=max(deadline.remaining(), 1e-9),
-                          work_limit=work_limit)
+                          work_limit=work_limit, workers=jobs)
     if outcome.fallback:
         notes.append("consolidation: no cover found within the time limit; every network "
                      "keeps its own best candidate (not consolidated)")

@@ -27,6 +27,15 @@ worker with a fixed seed and a limit in its *deterministic time* (work units,
 about a second each on a desktop machine), so the same board gives the same
 choice on every run.  The wall-clock limit only guards against a slow machine;
 when it cuts a stage short the result is marked so.
+
+More processes (``workers``) solve the board's independent components side by
+side, each component with its own single-worker model and its own share of the
+work limit, never one model on several CP-SAT workers: those workers trade
+solutions and bounds as they find them, so what a limit cuts depends on the
+threads' timing, and CP-SAT's interleaved search, which repeats for a given
+number of workers, runs a different portfolio of strategies for each number.
+Either way the BOM would change with ``--jobs``; with one worker per model it
+does not.
 """
 
 from __future__ import annotations
@@ -334,7 +343,7 @@ def consolidate(pools: Sequence[Pool], in_stock: frozenset[Hashable] | None = No
     workers : int
         Threads solving the independent components of the board side by side (each
         with one CP-SAT worker and its own share of the work limit, so the result
-        does not depend on it).
+        does not depend on it; CP-SAT releases the interpreter while it solves).
     presolved : bool
         Reduce the fewest-lines problem and split it into components first
         (:func:`synth.bom.presolve.presolve`); False solves the board as one model.

@@ -292,11 +292,20 @@ def test_the_bom_is_the_same_on_two_processes(board, monkeypatch):
     from synth.report.bom import render_bom
 
     loaded = load_board([str(board / "board.toml")])
+    workers = []
+
+    def consolidate(*args, **kwargs):
+        workers.append(kwargs["workers"])
+        return real(*args, **kwargs)
+
+    real = build.consolidate
+    monkeypatch.setattr(build, "consolidate", consolidate)
     one = build.build_bom(loaded, jobs=1)
     monkeypatch.setattr(build, "_HERE_S", -1.0)  # every network on the workers
     named = []
     two = build.build_bom(loaded, jobs=2, progress=named.append)
     assert named == ["a", "b", "input"]
+    assert workers == [1, 2]  # the consolidation's components side by side too
     for form in ("csv", "per-designator", "markdown"):
         assert render_bom(one, form) == render_bom(two, form)
     assert one.consolidation.choice == two.consolidation.choice
@@ -318,3 +327,40 @@ def test_bom_refuses_a_bad_process_count(board, jobs):
     assert result.stderr.strip().splitlines() == [
         f"rnsynth: --jobs '{jobs}' must be a whole number of processes, 1 or more (1 runs "
         "everything in this process)"]
+
+
+def test_the_bom_is_byte_for_byte_the_same_for_one_and_two_jobs(tmp_path, monkeypatch):
+    import threading
+
+    from synth.bom import consolidate
+
+    # two groups of dividers in packages of their own: two components of the
+    # consolidation, solved side by side on two jobs
+    networks = []
+    for package, ratios in (("0603", ("12 V", "3.3 V", "5 V", "1.8 V", "24 V", "5 V")),
+                            ("0805", ("15 V", "2.5 V", "9 V", "3.3 V", "12 V", "1.2 V"))):
+        for k in range(3):
+            name = f"{package}-{k}"
+            vin, vout = ratios[2 * k], ratios[2 * k + 1]
+            (tmp_path / f"{name}.toml").write_text(
+                DIVIDER.format(name=name, vin=vin, vout=vout).replace('"0603"', f'"{package}"'),
+                encoding="utf-8")
+            networks.append(f'[[network]]\nfile = "{name}.toml"\n')
+    (tmp_path / "board.toml").write_text('[board]\ntitle = "two groups"\npool = 40\n\n'
+                                         + "\n".join(networks), encoding="utf-8")
+    threads = []
+    real = consolidate._solve_part
+
+    def solve_part(*args, **kwargs):
+        threads.append(threading.current_thread() is threading.main_thread())
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(consolidate, "_solve_part", solve_part)
+    outputs = {}
+    for jobs in ("1", "2"):
+        threads.clear()
+        result = run("bom", tmp_path / "board.toml", "--quiet", "--jobs", jobs)
+        assert result.exit_code == 0, result.output
+        outputs[jobs] = result.stdout_bytes
+        assert len(threads) == 2 and all(threads) == (jobs == "1")
+    assert outputs["1"] == outputs["2"]
