@@ -37,13 +37,8 @@ from synth.circuit.measure import Evaluator
 from synth.design.model import Design
 from synth.search.chains import SearchSpace
 from synth.search.choices import Choices
-from synth.search.problem import (
-    SOLVE_ROWS,
-    RobustCheck,
-    SearchProblem,
-    SearchStopped,
-    TargetRanges,
-)
+from synth.search.enumerate import ENUMERATE_BELOW, enumerates, scored
+from synth.search.problem import RobustCheck, SearchProblem, SearchStopped, TargetRanges
 from synth.search.ranking import TIE_TOLERANCE, RankedCandidates
 
 _LEAF_PER_VERTEX = 4  # enumerate a box outright once it holds at most 4 x 2^k candidates
@@ -91,45 +86,34 @@ class SearchOutcome:
     stopped: str | None = None
 
 
-def _enumerate_boxes(lo: np.ndarray, hi: np.ndarray, first: int = 0,
-                     count: int | None = None) -> np.ndarray:
-    """Index vectors inside the boxes ``lo[b]..hi[b]``, box after box: rows ``first`` to
-    ``first + count`` of that list (all of it by default).
-
-    Vectorised: row ``t`` of the list belongs to box ``b`` at offset ``o`` and
-    its index along each axis is a mixed-radix digit of ``o``.
-    """
-    counts = (hi - lo + 1).astype(np.int64)
-    volume = np.prod(counts, axis=1)
-    ends = np.cumsum(volume)
-    total = int(ends[-1]) if len(ends) else 0
-    stop = total if count is None else min(total, first + count)
-    rows = np.arange(first, stop, dtype=np.int64)
-    box = np.searchsorted(ends, rows, side="right")
-    offset = rows - (ends - volume)[box]
-    # C order: the last axis varies fastest
-    strides = np.cumprod(counts[:, ::-1], axis=1)[:, ::-1]
-    strides = np.concatenate([strides[:, 1:], np.ones((len(lo), 1), np.int64)], axis=1)
-    return lo[box] + (offset[:, None] // strides[box]) % counts[box]  # type: ignore[no-any-return]  # numpy types this array expression as Any
+_FEW_OPEN = 1024
+"""While at most this many boxes over 2^k (for k axes) are open, every axis of a box is halved
+at once (up to 2^k children): the first rounds, where one axis per split would take k rounds
+to halve a box, then take one (measured in benchmarks/search_speed.py)."""
 
 
-def _scored(problem: SearchProblem, space: SearchSpace | None, lo: np.ndarray,
-            hi: np.ndarray, ranked: RankedCandidates, top: int, supply_first: bool,
-            stop: Callable[[], bool]) -> tuple[RankedCandidates, int]:
-    """Every candidate of the boxes ``lo..hi`` (over places) scored and merged into ``ranked``,
-    :data:`SOLVE_ROWS` at a time; :class:`SearchStopped` when ``stop`` asks between runs."""
-    total = int(np.prod((hi - lo + 1).astype(np.int64), axis=1).sum())
-    evaluated = 0
-    for first in range(0, total, SOLVE_ROWS):
-        if first and stop():
-            raise SearchStopped
-        places = _enumerate_boxes(lo, hi, first, SOLVE_ROWS)
-        batch = places if space is None else space.candidates(places)
-        found, n = problem.score(batch, worst=float(ranked.objective[-1])
-                                 if len(ranked.objective) >= top else math.inf)
-        evaluated += n
-        ranked = ranked.merged(found, top, supply_first)
-    return ranked, evaluated
+def _split(lo: np.ndarray, hi: np.ndarray, every_axis: bool) -> tuple[np.ndarray, np.ndarray]:
+    """The children of the boxes ``lo..hi``: each box halved along its longest axis, or
+    along every axis of more than one index at once.  The children of a box are disjoint
+    and cover it."""
+    counts = hi - lo + 1
+    middle = lo + counts // 2 - 1  # the last index of each lower half
+    if not every_axis:
+        axis = np.argmax(counts, axis=1)
+        rows = np.arange(len(axis))
+        left_hi = hi.copy()
+        left_hi[rows, axis] = middle[rows, axis]
+        right_lo = lo.copy()
+        right_lo[rows, axis] = middle[rows, axis] + 1
+        return np.concatenate([lo, right_lo]), np.concatenate([left_hi, hi])
+    k = lo.shape[1]
+    upper = ((np.arange(2 ** k)[:, None] >> np.arange(k)[None, :]) & 1).astype(bool)
+    halved = counts > 1
+    # a child takes the upper half only along axes that are halved
+    real = ~np.any(upper[None, :, :] & ~halved[:, None, :], axis=2)
+    c_lo = np.where(upper[None], middle[:, None, :] + 1, lo[:, None, :])
+    c_hi = np.where(upper[None] | ~halved[:, None, :], hi[:, None, :], middle[:, None, :])
+    return c_lo[real], c_hi[real]
 
 
 _OPEN_BYTES = 256 << 20
@@ -154,6 +138,7 @@ def search(
     chains: bool = True,
     bar: float = math.inf,
     shared_bar: Callable[[np.ndarray], float] | None = None,
+    enumerate_below: int = ENUMERATE_BELOW,
 ) -> SearchOutcome:
     """Find the ``top`` best candidates by branch and bound.
 
@@ -206,6 +191,9 @@ def search(
     shared_bar : callable, optional
         Called every round with this search's best objectives so far (ascending);
         returns such an objective known across every slice of the space at that time.
+    enumerate_below : int
+        A space of fewer combinations is scored outright instead
+        (:func:`synth.search.enumerate.enumerates`); the result is the same either way.
 
     Returns
     -------
@@ -243,13 +231,15 @@ def search(
         return SearchOutcome(ranked, proven, evaluated, total, time.perf_counter() - start,
                              1.0 if proven else min(settled / total, 1.0), stopped)
 
-    if k == 0 or total <= max(_LEAF_MIN, _LEAF_PER_VERTEX * 2 ** k):
+    if enumerates(total, k, enumerate_below):
         whole = np.zeros((1, k), np.int64), (sizes - 1)[None, :]
         try:
-            ranked, n = _scored(problem, None, *whole, ranked, top, supply_first, stop)
+            ranked, n = scored(problem, None, *whole, ranked, top, supply_first, stop)
         except SearchStopped:
             return outcome(False, 0, "time limit")
         evaluated += n
+        if progress is not None:
+            progress(1.0)
         return outcome(True, total)
     # boxes span the space's axes (a chain of positions is one axis of sums)
     space = SearchSpace(problem, chains)
@@ -310,20 +300,12 @@ def search(
         leaf = (volume <= leaf_size) | np.all(counts == 1, axis=1)
         try:
             if leaf.any():
-                ranked, n = _scored(problem, space, *space.places(b_lo[leaf], b_hi[leaf]),
+                ranked, n = scored(problem, space, *space.places(b_lo[leaf], b_hi[leaf]),
                                     ranked, top, supply_first, stop)
                 evaluated += n
             if (~leaf).any():
-                s_lo, s_hi, s_counts = b_lo[~leaf], b_hi[~leaf], counts[~leaf]
-                axis = np.argmax(s_counts, axis=1)
-                rows = np.arange(len(axis))
-                middle = s_lo[rows, axis] + s_counts[rows, axis] // 2 - 1
-                left_hi = s_hi.copy()
-                left_hi[rows, axis] = middle
-                right_lo = s_lo.copy()
-                right_lo[rows, axis] = middle + 1
-                c_lo = np.concatenate([s_lo, right_lo])
-                c_hi = np.concatenate([left_hi, s_hi])
+                c_lo, c_hi = _split(b_lo[~leaf], b_hi[~leaf],
+                                    every_axis=len(open_bound) <= _FEW_OPEN >> k)
                 c_bound, c_feasible = bounds.box_bounds(c_lo, c_hi, stop)
                 evaluated += len(c_lo) * 2 ** k
         except SearchStopped:

@@ -31,7 +31,7 @@ import time
 import numpy as np
 
 from synth.search.choices import Choices
-from synth.search.problem import SearchProblem
+from synth.search.problem import SOLVE_ROWS, SearchProblem
 
 _STEPS = (-3, -2, -1, 1, 2, 3)
 """Catalogue steps one position moves by in a round."""
@@ -45,9 +45,6 @@ _SHIFT_REACH = 24
 
 _MAX_ROUNDS = 200
 """Most descent rounds (each one batched solve)."""
-
-_CHUNK = 65_536
-"""Most rows solved at once."""
 
 
 def rounded(choices: list[Choices], ideal: dict[str, float]) -> np.ndarray:
@@ -113,15 +110,15 @@ def _moves(point: np.ndarray, sizes: np.ndarray) -> np.ndarray:
 
 
 def _keys(problem: SearchProblem, indices: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """``(largest relative violation, objective)`` of each row, in solves of at most _CHUNK."""
+    """``(largest relative violation, objective)`` of each row, in solves of at most SOLVE_ROWS."""
     violation = np.empty(len(indices))
     error = np.empty(len(indices))
-    for first in range(0, len(indices), _CHUNK):
-        block = indices[first:first + _CHUNK]
+    for first in range(0, len(indices), SOLVE_ROWS):
+        block = indices[first:first + SOLVE_ROWS]
         ev = problem.evaluate(problem.resistances(block), problem.part_values(block))
-        violation[first:first + _CHUNK] = problem.violations(
+        violation[first:first + SOLVE_ROWS] = problem.violations(
             ev.targets, ev.part_power, ev.part_voltage, ev.target_noise)
-        error[first:first + _CHUNK] = problem.errors(ev.targets)
+        error[first:first + SOLVE_ROWS] = problem.errors(ev.targets)
     return violation, np.where(np.isfinite(error), error, np.inf)
 
 

@@ -13,6 +13,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from synth.circuit.measure import Evaluation, Evaluator
+from synth.circuit.mesh import DEFAULT_CHUNK
 from synth.design.model import Design
 from synth.rating import exceeds, falls_short
 from synth.search.choices import Choices
@@ -33,9 +34,10 @@ _FAR_OVER = 1e12
 """Largest share over an allowance the nearest-design ranking counts (a part allowed 0 W)."""
 
 
-SOLVE_ROWS = 32_768
-"""Most candidate rows (box vertices or enumerated candidates) solved at once: the search's
-memory stays bounded whatever the number of free positions."""
+SOLVE_ROWS = DEFAULT_CHUNK
+"""Most candidate rows (box vertices or enumerated candidates) solved at once: the loop
+solve's own block, so that a run is one block of the solver; the search's memory stays
+bounded whatever the number of free positions."""
 
 
 class SearchStopped(Exception):
@@ -44,15 +46,19 @@ class SearchStopped(Exception):
 
 @dataclass(frozen=True)
 class _Spans:
-    """Extremes over the vertices of each box: per box, per target, branch or resistor."""
+    """Extremes over the vertices of each box: per box, per target, branch or resistor.
+
+    The current and voltage spans of the resistors (``i_lo`` ... ``u_hi``) are None
+    when the problem needs no stress bound (no power target and no rated part).
+    """
 
     t_lo: np.ndarray
     t_hi: np.ndarray
     noise: np.ndarray
-    i_lo: np.ndarray
-    i_hi: np.ndarray
-    u_lo: np.ndarray
-    u_hi: np.ndarray
+    i_lo: np.ndarray | None
+    i_hi: np.ndarray | None
+    u_lo: np.ndarray | None
+    u_hi: np.ndarray | None
     valid: np.ndarray
     positive: np.ndarray | None
     negative: np.ndarray | None
@@ -66,8 +72,10 @@ class _Spans:
 
         return _Spans(np.minimum(self.t_lo, other.t_lo), np.maximum(self.t_hi, other.t_hi),
                       np.maximum(self.noise, other.noise),
-                      np.minimum(self.i_lo, other.i_lo), np.maximum(self.i_hi, other.i_hi),
-                      np.minimum(self.u_lo, other.u_lo), np.maximum(self.u_hi, other.u_hi),
+                      both(self.i_lo, other.i_lo, np.minimum),
+                      both(self.i_hi, other.i_hi, np.maximum),
+                      both(self.u_lo, other.u_lo, np.minimum),
+                      both(self.u_hi, other.u_hi, np.maximum),
                       self.valid & other.valid,
                       both(self.positive, other.positive, np.logical_and),
                       both(self.negative, other.negative, np.logical_and),
@@ -129,6 +137,11 @@ class SearchProblem:
         # every part of a position shares its package, so one allowance per position
         self.position_allowed_p = self.allowed_p[first] if len(first) else np.zeros(0)
         self.position_allowed_v = self.allowed_v[first] if len(first) else np.zeros(0)
+        rated = np.isfinite(self.position_allowed_p) | np.isfinite(self.position_allowed_v)
+        self.stressed = bool(self.power_of) or bool(rated.any())
+        """True when the box bounds need each resistor's current and voltage spans: a power
+        target, or a part with a power or voltage allowance (most designs need neither, and
+        these spans are half the cost of a bound)."""
         self.count = np.array([r.position.count for r in design.resistors], dtype=float)
         self.series = np.array([r.position.arrangement != "parallel" for r in design.resistors])
         self.n_r = len(design.resistors)
@@ -289,39 +302,44 @@ class SearchProblem:
                 raise SearchStopped
             v = np.arange(v0, min(v0 + run, n_v), dtype=np.int64)
             bits = ((v[:, None] >> np.arange(k)[None, :]) & 1).astype(bool)
-            vertex = np.where(bits[None, :, :], hi[:, None, :], lo[:, None, :]).reshape(-1, k)
-            part = self._spans_of(vertex, (n_box, len(v)))
+            # vertex-major rows (vertex after vertex, every box in each): the extremes over
+            # the vertices are then element-wise over contiguous rows of boxes
+            vertex = np.where(bits[:, None, :], hi[None, :, :], lo[None, :, :]).reshape(-1, k)
+            part = self._spans_of(vertex, (len(v), n_box))
             spans = part if spans is None else spans.joined(part)
         assert spans is not None
         return spans
 
     def _spans_of(self, vertex: np.ndarray, shape: tuple[int, int]) -> _Spans:
-        """Extremes over ``shape[1]`` vertices of each of ``shape[0]`` boxes (rows box-major)."""
-        n_box, n_v = shape
+        """Extremes over ``shape[0]`` vertices of each of ``shape[1]`` boxes (rows
+        vertex-major)."""
+        n_v, n_box = shape
         r = self.resistances(vertex)
         ev = self.evaluate(r, parts=False)  # the bounds use positions only
 
-        def by_box(values: np.ndarray) -> np.ndarray:
-            """``(N, columns)`` as ``(columns, boxes, vertices)`` (a view when column-major)."""
-            return values.T.reshape(-1, n_box, n_v)
+        def by_vertex(values: np.ndarray) -> np.ndarray:
+            """``(N, columns)`` as ``(vertices, boxes, columns)`` (a view)."""
+            return values.reshape(n_v, n_box, -1)
 
         def span(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-            v = by_box(values)
-            return v.min(axis=2).T, v.max(axis=2).T
+            v = by_vertex(values)
+            return v.min(axis=0), v.max(axis=0)
 
-        targets = by_box(ev.targets)
-        t_lo, t_hi = targets.min(axis=2).T, targets.max(axis=2).T
+        targets = by_vertex(ev.targets)
+        t_lo, t_hi = targets.min(axis=0), targets.max(axis=0)
         if len(self.unbounded):
             t_lo[:, self.unbounded], t_hi[:, self.unbounded] = -np.inf, np.inf
-        noise = by_box(ev.target_noise).max(axis=2).T  # the largest floor of any vertex
-        current = ev.solution.branch_currents[:, : self.n_r]
-        i_lo, i_hi = span(current)
+        noise = by_vertex(ev.target_noise).max(axis=0)  # the largest floor of any vertex
+        valid = np.all(np.isfinite(t_lo) & np.isfinite(t_hi), axis=1)
         node_v = ev.solution.node_voltages
-        ends = self.ev.network.resistor_ends
-        across = (node_v.T[ends[:, 0]] - node_v.T[ends[:, 1]]).T
-        u_lo, u_hi = span(across)
-        valid = np.all(np.isfinite(targets), axis=(0, 2))
-        valid &= np.all(np.isfinite(by_box(current)), axis=(0, 2))
+        i_lo = i_hi = u_lo = u_hi = None
+        if self.stressed:
+            current = ev.solution.branch_currents[:, : self.n_r]
+            i_lo, i_hi = span(current)
+            ends = self.ev.network.resistor_ends
+            across = (node_v.T[ends[:, 0]] - node_v.T[ends[:, 1]]).T
+            u_lo, u_hi = span(across)
+            valid &= np.all(np.isfinite(i_lo) & np.isfinite(i_hi), axis=1)
         signs = []  # each quantity that must keep one sign over a box's vertices
         det = ev.solution.regulator_determinant
         if det is not None:
@@ -331,24 +349,24 @@ class SearchProblem:
         for a_, b_, c, d_ in self.gain_den.values():
             signs.append((node_v[:, c] - node_v[:, d_] - node_v[:, a_]
                           + node_v[:, b_]).reshape(shape))
-        positive = np.stack([np.all(d > 0, axis=1) for d in signs], axis=1) if signs else None
-        negative = np.stack([np.all(d < 0, axis=1) for d in signs], axis=1) if signs else None
+        positive = np.stack([np.all(d > 0, axis=0) for d in signs], axis=1) if signs else None
+        negative = np.stack([np.all(d < 0, axis=0) for d in signs], axis=1) if signs else None
         least = None
         if self.max_supply_a is not None and not self.relaxed:
             delivered = ev.solution.branch_currents[:, self.supply_columns]
-            least = by_box(delivered).min(axis=2).T
+            least = by_vertex(delivered).min(axis=0)
         return _Spans(t_lo, t_hi, noise, i_lo, i_hi, u_lo, u_hi, valid, positive, negative,
                       least)
 
-    def _bounds_from(self, lo: np.ndarray, hi: np.ndarray, spans: _Spans
-                     ) -> tuple[np.ndarray, np.ndarray]:
-        """The objective bound and feasibility of each box from its vertex extremes."""
-        n_box = len(lo)
-        t_lo, t_hi, noise = spans.t_lo.copy(), spans.t_hi.copy(), spans.noise
+    def _stress_bounds(self, lo: np.ndarray, hi: np.ndarray, spans: _Spans, t_lo: np.ndarray,
+                       t_hi: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Each box's least share over every part's power and voltage allowance
+        (``(B, resistors)`` each) and whether some part must break one; the power
+        targets' spans are written into ``t_lo``/``t_hi``."""
+        assert spans.i_lo is not None and spans.i_hi is not None
+        assert spans.u_lo is not None and spans.u_hi is not None
         i_lo, i_hi, u_lo, u_hi = spans.i_lo, spans.i_hi, spans.u_lo, spans.u_hi
-        valid = spans.valid.copy()
-        if spans.positive is not None and spans.negative is not None:
-            valid &= np.all(spans.positive | spans.negative, axis=1)
+        n_box = len(lo)
         # resistance span of each resistor over the box
         r_lo = np.broadcast_to(self.base, (n_box, self.n_r)).copy()
         r_hi = r_lo.copy()
@@ -370,16 +388,34 @@ class SearchProblem:
         part_p_lo = p_lo / self.count
         part_u_lo = np.sqrt(u2_lo) / np.where(self.series, self.count, 1.0)
         with np.errstate(all="ignore"):
-            gap_below = (self.low - t_hi) / self.scale
-            gap_above = (t_lo - self.high) / self.scale
             over_p = np.where(np.isnan(self.position_allowed_p), -np.inf,
                               part_p_lo / self.position_allowed_p - 1)
             over_v = np.where(np.isnan(self.position_allowed_v), -np.inf,
                               part_u_lo / self.position_allowed_v - 1)
-        broken = (np.any(exceeds(t_lo, self.high, noise) | falls_short(t_hi, self.low, noise),
-                         axis=1)
-                  | np.any(exceeds(part_p_lo, self.position_allowed_p)
-                           | exceeds(part_u_lo, self.position_allowed_v), axis=1))
+        broken = np.any(exceeds(part_p_lo, self.position_allowed_p)
+                        | exceeds(part_u_lo, self.position_allowed_v), axis=1)
+        return over_p, over_v, broken
+
+    def _bounds_from(self, lo: np.ndarray, hi: np.ndarray, spans: _Spans
+                     ) -> tuple[np.ndarray, np.ndarray]:
+        """The objective bound and feasibility of each box from its vertex extremes."""
+        n_box = len(lo)
+        t_lo, t_hi, noise = spans.t_lo.copy(), spans.t_hi.copy(), spans.noise
+        valid = spans.valid.copy()
+        if spans.positive is not None and spans.negative is not None:
+            valid &= np.all(spans.positive | spans.negative, axis=1)
+        stress = (self._stress_bounds(lo, hi, spans, t_lo, t_hi) if self.stressed and self.n_r
+                  else None)
+        with np.errstate(all="ignore"):
+            gap_below = (self.low - t_hi) / self.scale
+            gap_above = (t_lo - self.high) / self.scale
+        broken = np.any(exceeds(t_lo, self.high, noise) | falls_short(t_hi, self.low, noise),
+                        axis=1)
+        parts = [gap_below, gap_above, np.zeros((n_box, 1))]
+        if stress is not None:
+            over_p, over_v, over = stress
+            broken |= over
+            parts += [over_p, over_v]
         if spans.least is not None and self.max_supply_a is not None:
             # each delivering branch's current is monotone in every resistance, so its
             # least value over the box lies at a vertex: the sum of those is a lower bound
@@ -388,9 +424,6 @@ class SearchProblem:
             least = (np.max([each[:, cols].sum(axis=1) for cols in groups], axis=0)
                      if groups else each.sum(axis=1))
             broken |= least > self.max_supply_a
-        parts = [gap_below, gap_above, np.zeros((n_box, 1))]
-        if self.n_r:
-            parts += [over_p, over_v]
         violation_lb = np.nanmax(np.concatenate(parts, axis=1), axis=1)
         if self.relaxed:
             bound = np.where(broken, np.maximum(violation_lb, 0.0), 0.0)

@@ -180,11 +180,11 @@ def test_bounds_solved_in_small_runs_equal_those_solved_at_once(monkeypatch):
 
 
 def test_candidates_scored_in_small_runs_give_the_same_optimum(monkeypatch):
-    import synth.search.branch_and_bound as bb
+    import synth.search.enumerate as enumerate_module
 
     design = design_from_dict(ALL["two-tap chain with a current budget"], origin="chain")
     want = synthesize(design, top=5)
-    monkeypatch.setattr(bb, "SOLVE_ROWS", 7)
+    monkeypatch.setattr(enumerate_module, "SOLVE_ROWS", 7)
     got = synthesize(design, top=5)
     assert got.proven_optimal
     assert [c.values for c in got.candidates] == [c.values for c in want.candidates]
