@@ -23,6 +23,7 @@ from synth.design.target import Target
 from synth.rating import Allowance, allowance
 
 if TYPE_CHECKING:  # the sensor records import this module's Resistor
+    from synth.design.array import ResistorArray
     from synth.design.linearity import Linearity
     from synth.design.sensor import Sensor
 
@@ -139,6 +140,8 @@ class Resistor:
         The classes the part may be bought in (``classes``), empty for a part of
         one series and tolerance; ``choose``, ``stock_path``, ``tolerance`` and
         ``tcr`` are then those of its cheapest class until one is chosen.
+    array : str or None
+        The matched array (:mod:`synth.design.array`) this part is a member of, or None.
     """
 
     ref: str
@@ -156,6 +159,7 @@ class Resistor:
     copy_of: str | None = None
     follows: bool = False
     classes: tuple[PartClass, ...] = ()
+    array: str | None = None
 
     @property
     def combine(self) -> str | None:
@@ -323,6 +327,8 @@ class Design:
         (:func:`synth.design.points.expand_points`); empty for one network.
     single : Design or None
         With operating points: the design as written, one copy of the network.
+    arrays : tuple of ResistorArray
+        The matched resistor arrays (``[[array]]``, :mod:`synth.design.array`).
     """
 
     origin: str
@@ -347,6 +353,7 @@ class Design:
     single: Design | None = field(default=None, repr=False)
     sensors: tuple[Sensor, ...] = ()
     linearities: tuple[Linearity, ...] = ()
+    arrays: tuple[ResistorArray, ...] = ()
 
     @property
     def physical_resistors(self) -> tuple[Resistor, ...]:

@@ -30,7 +30,7 @@ from synth.units import (
 
 _RESISTOR_KEYS = (
     "ref", "nodes", "value", "choose", "range", "tolerance", "tcr", "package", "combine", "parts",
-    "equal_parts", "bom", "note", "classes",
+    "equal_parts", "bom", "note", "classes", "array",
 )
 
 
@@ -122,10 +122,13 @@ def read_resistor(origin: str, index: int, raw: Any, settings: dict[str, Any],
         hint = nearest_name(package, packages)
         reader.fail(f"package {package!r} is not in the package table{hint}; "
                     f"use one of {name_list(sorted(packages))} or add a row to your table")
+    # a matched array's member: the array sets tolerance, TCR and package (synth.design.array)
+    array = reader.text("array") if reader.has("array") else None
     return Resistor(
         ref=ref, nodes=(a, b), value=value, choose=choose, stock_path=stock_path, range=span,
         tolerance=tolerance, tcr=tcr, package=package, position=position, bom=bom,
         classes=classed.classes if classed is not None else (),
+        array=array,
     )
 
 

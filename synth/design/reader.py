@@ -22,6 +22,7 @@ from typing import Any
 
 from synth.catalog.packages import load_package_table
 from synth.design.active import read_active_parts
+from synth.design.array import attach_arrays, read_array
 from synth.design.checks import check_references
 from synth.design.fields import (
     ItemReader,
@@ -51,7 +52,7 @@ from synth.units import (
 )
 
 _TOP_KEYS = ("design", "source", "resistor", "regulator", "controlled", "transistor",
-             "amplifier", "target", "point", "transfer", "sensor", "linearity")
+             "amplifier", "target", "point", "transfer", "sensor", "linearity", "array")
 
 
 _DESIGN_KEYS = (
@@ -284,6 +285,16 @@ def _design(data: Mapping[str, Any], origin: str) -> Design:
     sources += active.sources
     regulators += active.regulators
     targets += active.targets
+    other_parts = {**{s.ref: f"{s.kind} source" for s in sources},
+                   **{g.ref: "regulator" for g in regulators},
+                   **{c.ref: "controlled source" for c in active.controlled},
+                   **{t.ref: "transistor" for t in active.transistors},
+                   **{s.ref: "temperature sensor" for s in sensors}}
+    resistors, arrays = attach_arrays(
+        origin, resistors, table_array(origin, data, "resistor"),
+        [read_array(origin, i, a, settings, packages)
+         for i, a in enumerate(table_array(origin, data, "array"), 1)],
+        other_parts, settings["default_package"])
     design = Design(
         origin=origin, title=settings["title"], ground=settings["ground"],
         ambient_c=settings["ambient_c"], margin_frac=settings["margin_frac"],
@@ -293,7 +304,7 @@ def _design(data: Mapping[str, Any], origin: str) -> Design:
         controlled=active.controlled, transistors=active.transistors,
         require=settings["require"], min_yield=settings["min_yield"],
         deprecations=settings["deprecations"], packages_path=packages_path,
-        sensors=sensors, linearities=linearities,
+        sensors=sensors, linearities=linearities, arrays=arrays,
     )
     check_references(design)
     points, base_names = read_points(origin, data, design.sources, ranges)

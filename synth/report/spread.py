@@ -57,7 +57,18 @@ def spread_text(spread: SpreadResult, units: list[str]) -> str:
         lines.append(f"note: Monte Carlo cut from {s.samples:,} to {run:,} samples to bound its "
                      f"time (a large network runs at most {s.sample_budget:,} samples × "
                      "resistors); the yield interval is that of the samples run")
-    if spread.targets and not spread.targets[0].exact:
+    scanned = [t.label for t in spread.targets if t.method == "vertices, common mode scanned"]
+    if scanned:
+        lines.append(f"note: {len(scanned)} target(s) ({', '.join(scanned)}) are not "
+                     "linear-fractional in a matched array's common deviation: their worst "
+                     "cases are the extremes over every vertex of the parts' own deviations "
+                     "with the common deviation scanned (values reached inside the box, not "
+                     "proven extremes); corners give its place in its range (+0.71: 71 % of "
+                     "its half-width up)")
+    if any(t.method.startswith("vertices, common mode") for t in spread.targets):
+        lines.append("note: with a matched array no sound dissipation bound is given (the "
+                     "common deviation is scanned, not bounded)")
+    if spread.targets and spread.targets[0].method == "sensitivity corners":
         lines.append("note: too many quantities vary to solve every corner; worst cases are "
                      "those of the two corners the nominal sensitivity signs point to: values "
                      "reached inside the box, so the true range is at least this wide, but "

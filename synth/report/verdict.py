@@ -103,6 +103,10 @@ def verdict_text(result: SynthesisResult) -> list[str]:
             result.binding) else ""
         lines = [f"result: {head}{tail}{_yield_text(best)}"]
         lines.extend(f"  best design: {p}" for p in best.problems)
+    if result.design.arrays and "worst-case" in (result.require, result.rank_by):
+        lines.append("note: the search judged each matched array's common deviation at its "
+                     "two ends only; the designs shown were judged again with it scanned "
+                     "(see their spread)")
     lines.append("targets of the best design:")
     lines.extend(f"  {t.label}: {status_text(t)}" for t in best.targets)
     return lines
@@ -119,4 +123,17 @@ def check_verdict_text(result: CheckResult) -> str:
                                                                   "at nominal values")
     verdict = ("all targets met, all parts within their allowance " + basis if result.ok
                else "FAILS: " + "; ".join(map(str, result.problems)))
+    if result.ok and result.design.require == "worst-case":
+        verdict += _scanned_text(result)
     return verdict + _yield_text(result)
+
+
+def _scanned_text(result: CheckResult) -> str:
+    """Which worst cases were scanned along a matched array's common deviation, not proven."""
+    spread = result.spread
+    scanned = [] if spread is None else [t.label for t in spread.targets
+                                         if t.method == "vertices, common mode scanned"]
+    if not scanned:
+        return ""
+    return (f" (not proven for {', '.join(scanned)}: a matched array's common deviation was "
+            "scanned, not bounded)")

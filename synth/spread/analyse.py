@@ -44,6 +44,7 @@ import numpy as np
 
 from synth.circuit.measure import Evaluator
 from synth.design.model import Design
+from synth.spread.common_mode import corner_of, scan_common_mode
 from synth.spread.monte_carlo import (
     ShardMap,
     block_size,
@@ -132,27 +133,47 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
         sens = np.zeros((0, len(design.targets)))
         slope = sens
 
-    # worst case over the vertices (or sensitivity-sign corners when too many)
-    exact = n <= EXACT_VARIABLES
-    if exact:
+    # worst case over the vertices (or sensitivity-sign corners when too many); with matched
+    # arrays, the vertices of the own deviations at every scanned common deviation
+    commons = sum(1 for group, _ in var.kind if group == "array")
+    exact = n - commons <= EXACT_VARIABLES
+    scan = None
+    if exact and commons:
+        scan = scan_common_mode(design, ev, var, parts0, src, nominal)
+        bits = scan.bits
+    elif exact:
         bits = box_corners(n)
     else:
         up = np.nan_to_num(sens) >= 0
         bits = np.concatenate([up.T, ~up.T]) if len(design.targets) else np.zeros((0, n), bool)
-    vertex_factors = np.where(bits, var.high[None, :], var.low[None, :])
-    r_v, p_v, s_v = var.apply(vertex_factors, parts0, src)
-    vertices = ev.evaluate(r_v, s_v, part_values=p_v)
+    if scan is None:
+        vertex_factors = np.where(bits, var.high[None, :], var.low[None, :])
+        r_v, p_v, s_v = var.apply(vertex_factors, parts0, src)
+        vertices = ev.evaluate(r_v, s_v, part_values=p_v)
+        solved, solved_noise = vertices.targets, vertices.target_noise
+    else:
+        solved = scan.targets.reshape(-1, len(design.targets))
+        solved_noise = scan.noise.reshape(-1, len(design.targets))
 
     targets = []
     for j, t in enumerate(design.targets):
-        column = vertices.targets[:, j]
+        column = solved[:, j]
         known = np.isfinite(column)
         # a target undefined at every vertex keeps NaN extremes (and the first corner)
         lo_at = int(np.nanargmin(np.where(known, column, np.inf))) if known.any() else 0
         hi_at = int(np.nanargmax(np.where(known, column, -np.inf))) if known.any() else 0
 
         def corner(at: int) -> dict[str, str]:
+            if scan is not None:
+                point, row = divmod(at, len(bits))
+                return corner_of(scan, var.names, row, point)
             return {name: "+" if bits[at, i] else "-" for i, name in enumerate(var.names)}
+
+        if scan is None:
+            method = "vertices" if exact else "sensitivity corners"
+        else:
+            method = ("vertices, common mode monotone" if scan.monotone[j]
+                      else "vertices, common mode scanned")
 
         widths = np.concatenate([var.tolerance, var.drift])
         both = np.concatenate([sens[:, j], sens[:, j]]) if n else np.zeros(0)
@@ -172,16 +193,17 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
             label=t.label, goal=t.equals, nominal=float(nominal_targets[j]),
             worst_low=float(min(column[lo_at], nominal_targets[j])),
             worst_high=float(max(column[hi_at], nominal_targets[j])),
-            low_corner=corner(lo_at), high_corner=corner(hi_at), exact=exact, rss=rss,
-            method="vertices" if exact else "sensitivity corners",
+            low_corner=corner(lo_at), high_corner=corner(hi_at),
+            exact=exact and (scan is None or bool(scan.monotone[j])), rss=rss, method=method,
             sensitivities={name: float(sens[i, j]) for i, name in enumerate(var.names)},
             mc_mean=None, mc_std=None, mc_values=None, inside=None, rss_abs=rss_abs,
             rss_terms=terms,
-            noise=float(max(np.max(vertices.target_noise[:, j], initial=0.0),
+            noise=float(max(np.max(solved_noise[:, j], initial=0.0),
                             nominal.target_noise[0, j])),
         ))
 
-    parts = part_spread(design, ev, var, bits if exact else None, vertices, nominal, p_v)
+    parts = (scan.parts if scan is not None
+             else part_spread(design, ev, var, bits if exact else None, vertices, nominal, p_v))
     targets = _with_power_peaks(design, ev, targets, parts)
     if design.points:
         parts = worst_point_parts(parts)

@@ -123,17 +123,25 @@ class TargetSpread:
     worst_low, worst_high : float
         Extremes over the tolerance box.
     low_corner, high_corner : dict of str to str
-        Which end of each varying quantity gives each extreme (``"+"``/``"-"``).
+        Which end of each varying quantity gives each extreme (``"+"``/``"-"``);
+        a matched array's common deviation scanned inside its range gives its
+        place there instead (``"+0.71"``: 71 % of its half-width up).
     exact : bool
-        True when every vertex was solved (else the corners come from the
-        sensitivity signs).
+        True when the extremes are exact: every vertex was solved (else the
+        corners come from the sensitivity signs) and, with matched arrays, the
+        target is monotone in each common deviation.
     method : str
         How the worst case was found: ``"vertices"`` (every vertex of the box
         solved: the exact extremes of a target monotone in each quantity) or
         ``"sensitivity corners"`` (too many quantities: only the two corners
         the signs of the nominal sensitivities point to are solved; the values
         are attained inside the box, so the true range is at least this wide,
-        but it is neither exact nor a bound).
+        but it is neither exact nor a bound).  With matched arrays
+        (:mod:`synth.spread.common_mode`): ``"vertices, common mode
+        monotone"`` (every vertex of the own deviations, the target shown
+        monotone in the common deviation along a scan of it: exact) or
+        ``"vertices, common mode scanned"`` (the extremes of that scan: values
+        reached inside the box, not proven extremes).
     rss : float
         Root-sum-square deviation, as a fraction of the nominal value (each
         tolerance and each part's TCR drift over the temperature range is one

@@ -27,6 +27,12 @@ class SpreadVariables:
     source and setpoint.  A source toleranced absolutely (``"10 uA"``) varies
     by addition, so it may span zero; its sensitivity is per its whole
     tolerance rather than per per cent.
+
+    A matched array's member (:mod:`synth.design.array`) varies by its own
+    share (±ρ/2 and ±τ/2) and, after every other variable, each array has one common
+    variable named after it (±(A − ρ/2) and ±(TCR − τ/2)), kind ``("array",
+    index)``; a member's factor is ``1 + (own - 1) + (common - 1)``: the two
+    deviations add.
     """
 
     def __init__(self, design: Design, evaluator: Evaluator):
@@ -45,9 +51,16 @@ class SpreadVariables:
         varied by its leader's variable (one physical part, one deviation at every point)."""
         leader_of: dict[tuple[str, str], int] = {}  # (group, physical name) -> column
         copies: list[tuple[str, str, int]] = []
+        arrays = {a.name: a for a in design.arrays}
+        members: list[tuple[str, int]] = []  # (array, part column) of every member's part
         column = 0
         for r in design.resistors:
-            d = r.tcr * self.span_c
+            own_tolerance, own_tcr = r.tolerance, r.tcr
+            if r.array is not None:  # a member varies by its own share; the common one follows
+                own_tolerance = arrays[r.array].member_tolerance
+                own_tcr = arrays[r.array].member_tcr
+                members.append((r.array, column))
+            d = own_tcr * self.span_c
             if r.copy_of is not None:
                 leader = next(x for x in design.resistors if x.ref == r.copy_of)
                 for ref, own in zip(leader.part_refs, range(column, column + r.position.count),
@@ -56,14 +69,14 @@ class SpreadVariables:
                 column += r.position.count
                 continue
             for ref in r.part_refs:
-                if r.tolerance != 0 or d != 0:
+                if own_tolerance != 0 or d != 0:
                     leader_of[("part", ref)] = len(names)
                     names.append(ref)
-                    low.append((1 - r.tolerance) * (1 - d))
-                    high.append((1 + r.tolerance) * (1 + d))
-                    tol.append(r.tolerance)
+                    low.append((1 - own_tolerance) * (1 - d))
+                    high.append((1 + own_tolerance) * (1 + d))
+                    tol.append(own_tolerance)
                     drift.append(d)
-                    tcr.append(r.tcr)
+                    tcr.append(own_tcr)
                     self.kind.append(("part", column))
                 column += 1
         groups: tuple[tuple[str, list[Any]], ...] = (
@@ -115,6 +128,23 @@ class SpreadVariables:
                 drift.append(0.0)
                 tcr.append(0.0)
                 self.kind.append((group, k))
+        self.common_of: dict[int, int] = {}
+        """Part column of every matched array member -> its array's common variable column:
+        the member's factor is its own plus the common one's deviation (see :meth:`apply`)."""
+        for k, array in enumerate(design.arrays):
+            d = array.common_tcr * self.span_c
+            if array.common_tolerance == 0 and d == 0:
+                continue
+            common = len(names)
+            names.append(array.name)
+            low.append((1 - array.common_tolerance) * (1 - d))
+            high.append((1 + array.common_tolerance) * (1 + d))
+            tol.append(array.common_tolerance)
+            drift.append(d)
+            tcr.append(array.common_tcr)
+            self.kind.append(("array", k))
+            self.common_of.update({part: common for name, part in members
+                                   if name == array.name})
         for group, physical, k in copies:
             if (group, physical) in leader_of:
                 self.tied.append((group, k, leader_of[(group, physical)]))
@@ -164,17 +194,27 @@ class SpreadVariables:
                   "current": np.tile(src.currents, (m, 1)),
                   "setpoint": np.tile(src.setpoints, (m, 1)),
                   "gain": np.tile(gains, (m, 1))}
+        own = {k: column for column, (group, k) in enumerate(self.kind) if group == "part"}
+        own.update({k: column for group, k, column in self.tied if group == "part"})
+        for part, common in self.common_of.items():
+            # a matched array's member deviates by its own deviation plus the common one
+            if part in own:
+                parts[:, part] *= factors[:, own.pop(part)] + factors[:, common] - 1.0
+            else:
+                parts[:, part] *= factors[:, common]
+        for k, column in own.items():
+            parts[:, k] *= factors[:, column]
         for column, (group, k) in enumerate(self.kind):
-            if group == "part":
-                parts[:, k] *= factors[:, column]
-            elif column in self.offset:
+            if group in ("part", "array"):
+                continue
+            if column in self.offset:
                 values[group][:, k] += (factors[:, column] - 1.0) * self.offset[column]
             else:
                 values[group][:, k] *= factors[:, column]
         for group, k, column in self.tied:
             if group == "part":
-                parts[:, k] *= factors[:, column]
-            elif column in self.offset:
+                continue
+            if column in self.offset:
                 values[group][:, k] += (factors[:, column] - 1.0) * self.offset[column]
             else:
                 values[group][:, k] *= factors[:, column]
