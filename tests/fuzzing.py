@@ -5,13 +5,15 @@ one) and ``benchmarks/fuzz.py`` (a seeded generator, many more cases) share it. 
 runs the command line in process and is classified by :func:`outcome`, which also
 looks at the output files the case asks for (``--output``, ``--save``, ``--plots``):
 none may exist after a refusal (exit 2), and no temporary file ``.NAME.XXXXXXXX`` may
-be left beside them whatever the outcome.
+be left beside them whatever the outcome; a JSON report (``--json``, ``--format json``)
+must be JSON, without ``NaN`` or ``Infinity``.
 """
 
 from __future__ import annotations
 
 import copy
 import itertools
+import json
 import random
 import shutil
 import tomllib
@@ -131,7 +133,8 @@ def option_args(rng: random.Random, folder: Path | None = None) -> list[str]:
 @dataclass(frozen=True)
 class Outcome:
     kind: str  # "ok", "fails", "refused", or a problem: "traceback", "exit N", "lines",
-    #            "temporary left" (a .NAME.XXXXXXXX file), "written on refusal"
+    #            "temporary left" (a .NAME.XXXXXXXX file), "written on refusal",
+    #            "invalid JSON" (not JSON, or NaN / Infinity in it)
     detail: str
 
 
@@ -173,7 +176,28 @@ def outcome(args: list[str], stdin: bytes | None = None) -> Outcome:
         if len(lines) != 1:
             return Outcome("lines", result.stderr[:300])
         return Outcome("refused", lines[0])
+    report = _json_report(args, result.stdout)
+    if report is not None:
+        try:
+            json.loads(report, parse_constant=_not_json)
+        except ValueError as error:
+            return Outcome("invalid JSON", f"{error}: {report[:200]}")
     return Outcome("ok" if result.exit_code == 0 else "fails", "")
+
+
+def _json_report(args: list[str], stdout: str) -> str | None:
+    """The JSON report a run asked for (standard output, or bom's ``--output`` file)."""
+    if "--json" in args:
+        return stdout
+    if ("--format", "json") not in itertools.pairwise(args):
+        return None
+    files = [path for path in _outputs(args) if path.suffix == ".csv"]  # bom --output
+    return files[0].read_text(encoding="utf-8") if files and files[0].is_file() else stdout
+
+
+def _not_json(name: str) -> None:
+    """Refuse ``NaN`` and ``Infinity``, which Python writes but JSON does not have."""
+    raise ValueError(f"{name} is not JSON")
 
 
 def _plots(rng: random.Random, folder: Path, share: float) -> list[str]:
@@ -238,4 +262,4 @@ def board_case(rng: random.Random, folder: Path) -> list[str]:
             *(["--output", str(folder / "bom.csv")] if rng.random() < 0.5 else [])]
 
 
-PROBLEMS = ("traceback", "lines", "temporary left", "written on refusal")
+PROBLEMS = ("traceback", "lines", "temporary left", "written on refusal", "invalid JSON")
