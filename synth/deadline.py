@@ -28,7 +28,7 @@ class Cut:
     Attributes
     ----------
     stage : str
-        The stage cut: ``"search"``, ``"relaxed search"``, ``"re-check"``,
+        The stage cut: ``"search"``, ``"relaxed search"``, ``"ranking"``, ``"re-check"``,
         ``"spread"``, ``"Monte Carlo"``, ``"limit-cost search"``, ``"front"``
         or ``"network NAME"``.
     note : str
@@ -71,6 +71,9 @@ class Deadline:
     >>> d.cut("Monte Carlo", "100,000 samples asked, 2,000 run", asked=100_000, done=2_000)
     >>> [str(c) for c in d.cuts]
     ['Monte Carlo: 100,000 samples asked, 2,000 run']
+    >>> d.reserve(5.0)
+    >>> d.remaining(), d.expired()
+    (1.0, False)
     """
 
     def __init__(self, limit_s: float | None, *, start: float | None = None,
@@ -79,6 +82,7 @@ class Deadline:
         self.clock = clock
         self.start = clock() if start is None else start
         self._cuts: list[Cut] = []
+        self._reserved = 0.0
 
     @property
     def limited(self) -> bool:
@@ -90,14 +94,25 @@ class Deadline:
         return self.clock() - self.start
 
     def remaining(self) -> float:
-        """Seconds left (0 once expired; infinite without a limit)."""
+        """Seconds left for the work still to come, the time reserved kept aside (0 once
+        expired; infinite without a limit)."""
         if self.limit_s is None:
             return math.inf
-        return max(self.limit_s - self.elapsed(), 0.0)
+        return max(self.limit_s - self._reserved - self.elapsed(), 0.0)
 
     def expired(self) -> bool:
-        """True once the limit has passed."""
-        return self.limit_s is not None and self.elapsed() >= self.limit_s
+        """True once the limit, less the time reserved, has passed."""
+        return self.limit_s is not None and self.elapsed() >= self.limit_s - self._reserved
+
+    def reserve(self, seconds: float) -> None:
+        """Keep ``seconds`` more of the limit for the command's last step (showing what was
+        found): every stage after this sees that much less time left."""
+        self._reserved += max(seconds, 0.0)
+
+    @property
+    def reserved_s(self) -> float:
+        """Seconds of the limit kept for the command's last step (see :meth:`reserve`)."""
+        return self._reserved
 
     def budget(self, share: float = 1.0) -> float | None:
         """Seconds a stage may take: ``share`` of what is left (None without a limit)."""

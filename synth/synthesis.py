@@ -14,6 +14,7 @@ from __future__ import annotations
 __all__ = ["RANKINGS", "YIELD_POOL", "synthesize"]
 
 import math
+import time
 from collections.abc import Callable
 from dataclasses import replace
 
@@ -89,27 +90,88 @@ def _probes(design: Design, choices: list[Choices]) -> np.ndarray:
 _RECHECK_BLOCK = 2048
 """Candidates re-checked per batched solve (the memory of one block stays bounded)."""
 
+_RECHECK_PROBE = 32
+"""Candidates re-checked first under a time limit, to measure what one costs."""
+
+_RECHECK_SHARE = 0.5
+"""Share of the time left after the search that re-checking and showing candidates may take."""
+
+_SHOW_FACTOR = 1.0
+"""Seconds kept for showing a candidate (its rows of the report, or its JSON) per second its
+re-check took: showing took 0.2 to 0.8 times the re-check, measured on networks of 4 to 20
+free parts, so a re-check cut to fit leaves the time to print what it kept."""
+
 
 def _candidates(design: Design, evaluator: Evaluator, choices: list[Choices],
-                indices: np.ndarray, deadline: Deadline | None = None) -> list[Candidate]:
+                indices: np.ndarray, deadline: Deadline | None = None,
+                per_candidate_s: float | None = None) -> list[Candidate]:
     """Re-check ranked candidates in batched solves and build their records.
 
-    With a ``deadline``, the blocks after the first stop once it has passed;
-    the candidates left are dropped and the cut recorded.
+    With a limited ``deadline``, re-checking and showing the candidates take at
+    most :data:`_RECHECK_SHARE` of the time left: the blocks are sized from
+    the cost of a candidate (``per_candidate_s``, else measured on a first
+    block of :data:`_RECHECK_PROBE`), the time to show each candidate
+    re-checked is reserved on the deadline (:data:`_SHOW_FACTOR`), the best
+    candidate is always re-checked, and the candidates that do not fit are
+    dropped and the cut recorded.
     """
     if not len(indices):
         return []
     problem = SearchProblem(design, evaluator, choices, relaxed=False)
+    limited = deadline is not None and deadline.limited
+    ends = (deadline.elapsed() + (deadline.budget(_RECHECK_SHARE) or 0.0)
+            if deadline is not None and limited else math.inf)
+    clock = time.perf_counter if deadline is None else deadline.clock
     out: list[Candidate] = []
-    for first in range(0, len(indices), _RECHECK_BLOCK):
-        if first and deadline is not None and deadline.expired():
-            deadline.cut("re-check", f"{first:,} of the {len(indices):,} candidates found "
-                         "re-checked and shown, the rest dropped", asked=len(indices),
-                         done=first)
-            break
-        block = indices[first:first + _RECHECK_BLOCK]
-        out += _checked(design, evaluator, choices, problem, block, first)
+    spent = 0.0
+    while len(out) < len(indices):
+        done = len(out)
+        size = min(_RECHECK_BLOCK, len(indices) - done)
+        if deadline is not None and limited:
+            cost = (spent / done if done else per_candidate_s)
+            left = ends - deadline.elapsed() - spent * _SHOW_FACTOR  # less what showing takes
+            if cost is None:  # measured on a first block (the best alone when time is up)
+                size = min(size, _RECHECK_PROBE if left > 0 else 1)
+            else:
+                size = min(size, int(max(left, 0.0) / (max(cost, 1e-9) * (1 + _SHOW_FACTOR))))
+            if not size and done:
+                deadline.cut("re-check", f"{done:,} of the {len(indices):,} candidates "
+                             "found re-checked and shown, the rest dropped",
+                             asked=len(indices), done=done)
+                break
+            size = max(size, 1)  # the best candidate, whatever the time
+        began = clock()
+        out += _checked(design, evaluator, choices, problem, indices[done:done + size], done)
+        took = clock() - began
+        spent += took
+        if deadline is not None:
+            deadline.reserve(took * _SHOW_FACTOR)
     return out
+
+
+def _ranked_top(design: Design, evaluator: Evaluator, choices: list[Choices],
+                seeds: np.ndarray | None, top: int, least: int, deadline: Deadline
+                ) -> tuple[int, float | None]:
+    """How many candidates a time-limited search should rank, and the re-check's cost of one.
+
+    Ranking more candidates than can be re-checked and shown in the time the
+    search leaves only costs the search time and memory: under a limit, when
+    ``top`` is more than ``least``, :data:`_RECHECK_PROBE` candidates (the
+    seeds, or the lowest choices) are re-checked to measure the cost of one,
+    and the ranking keeps as many as fit :data:`_RECHECK_SHARE` of what the
+    search will leave (at least ``least``).  Without a limit: ``top``, None.
+    """
+    if not deadline.limited or top <= least:
+        return top, None
+    rows = (np.asarray(seeds, dtype=np.int64) if seeds is not None and len(seeds)
+            else np.zeros((1, len(choices)), dtype=np.int64))
+    rows = np.resize(rows[:_RECHECK_PROBE], (_RECHECK_PROBE, len(choices)))
+    began = deadline.clock()
+    _checked(design, evaluator, choices, SearchProblem(design, evaluator, choices,
+                                                       relaxed=False), rows, 0)
+    per = max(deadline.clock() - began, 1e-9) / len(rows)
+    after_search = deadline.remaining() * (1 - _SEARCH_SHARE) * _RECHECK_SHARE
+    return max(min(top, int(after_search / (per * (1 + _SHOW_FACTOR)))), least), per
 
 
 def _checked(design: Design, evaluator: Evaluator, choices: list[Choices],
@@ -363,9 +425,13 @@ def synthesize(
     seeds = _seeds(SearchProblem(design, evaluator, choices, relaxed=False), ideal,
                    deadline)
     by_yield = rank_by == "yield" or require == "yield"
+    asked = max(top, YIELD_POOL) if by_yield else top
+    ranked_top, per_candidate = _ranked_top(design, evaluator, choices, seeds, asked,
+                                            YIELD_POOL if by_yield else _RECHECK_PROBE,
+                                            deadline)
     # the search leaves time for what follows it: re-check, spread, limit-cost search
     outcome: SearchOutcome = search(
-        design, evaluator, choices, top=max(top, YIELD_POOL) if by_yield else top,
+        design, evaluator, choices, top=ranked_top,
         time_limit_s=deadline.budget(_SEARCH_SHARE), seeds=seeds, progress=progress,
         target_ranges=worst.ranges if worst is not None and rank_by == "worst-case" else None,
         robust=worst.holds if worst is not None and require == "worst-case" else None,
@@ -376,6 +442,10 @@ def synthesize(
         deadline.cut("search", f"stopped {why} after {outcome.elapsed_s:.2g} s with "
                      f"{outcome.settled * 100:.3g} % of the combinations settled: the best "
                      "found, not proven best")
+    if ranked_top < asked and len(outcome.ranked.objective) >= ranked_top:
+        deadline.cut("ranking", f"the best {ranked_top:,} of the {asked:,} candidates asked "
+                     "ranked: the most whose re-check fits the time limit", asked=asked,
+                     done=ranked_top)
     feasible = len(outcome.ranked.objective) > 0
     evaluated, elapsed, proven = outcome.evaluated, outcome.elapsed_s, outcome.proven
 
@@ -391,7 +461,8 @@ def synthesize(
         evaluated += relaxed.evaluated
         elapsed += relaxed.elapsed_s
         ranked = relaxed.ranked
-    candidates = _candidates(design, evaluator, choices, ranked.indices, deadline)
+    candidates = _candidates(design, evaluator, choices, ranked.indices, deadline,
+                             per_candidate)
     follows = bool(candidates) and any(r.package for r in design.resistors)
     candidates = _with_spreads(design, evaluator, candidates, spread, by_yield, require,
                                deadline, _SPREAD_SHARE if follows else 1.0, jobs)

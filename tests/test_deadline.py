@@ -66,3 +66,14 @@ def test_a_young_process_counts_its_start_up_an_old_one_counts_from_now(monkeypa
 def test_the_process_age_is_a_plain_number_of_seconds():
     age = process_age_s()
     assert math.isfinite(age) and age >= 0.0
+
+
+def test_time_reserved_for_the_last_step_is_kept_from_every_later_stage():
+    clock = Clock(0.0)
+    d = Deadline(10.0, clock=clock)
+    d.reserve(3.0)
+    d.reserve(-1.0)  # nothing is given back
+    clock.now = 4.0
+    assert d.reserved_s == 3.0 and d.remaining() == 3.0 and d.budget(0.5) == 1.5
+    clock.now = 7.0
+    assert d.expired() and d.remaining() == 0.0

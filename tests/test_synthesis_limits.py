@@ -191,3 +191,95 @@ def test_local_seeds_reach_the_exhaustive_best_of_a_small_case():
     ranked, _ = problem.score(seeds[:1])
     objectives, _ = exhaustive(design)
     np.testing.assert_allclose(ranked.objective, objectives[:1], rtol=1e-9, atol=1e-12)
+
+
+class Ticks:
+    """A clock that only the re-check moves: ``per_candidate_s`` for each candidate it
+    re-checks (see :func:`slow_recheck`)."""
+
+    def __init__(self):
+        self.now = 0.0
+
+    def __call__(self):
+        return self.now
+
+
+def slow_recheck(monkeypatch, clock, per_candidate_s):
+    """Make every re-checked candidate cost ``per_candidate_s`` on ``clock``."""
+    import synth.synthesis as synthesis
+
+    real = synthesis._checked
+
+    def checked(design, evaluator, choices, problem, indices, ranked_before):
+        clock.now += per_candidate_s * len(indices)
+        return real(design, evaluator, choices, problem, indices, ranked_before)
+
+    monkeypatch.setattr(synthesis, "_checked", checked)
+
+
+def loose_divider():
+    """A divider whose window admits hundreds of E24 pairs (common practice: any pair of
+    about 3:1 gives 3 V from 12 V; the window is ±20 %)."""
+    return design_from_dict({
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "value": "12 V"}],
+        "resistor": [{"ref": "R1", "nodes": ["in", "out"], "choose": "E24",
+                      "range": ["100", "1M"]},
+                     {"ref": "R2", "nodes": ["out", "gnd"], "choose": "E24",
+                      "range": ["100", "1M"]}],
+        "target": [{"voltage": "out", "equals": "3 V", "within": "20%"}]})
+
+
+def test_the_ranking_keeps_only_the_candidates_whose_re_check_fits(monkeypatch):
+    unlimited = synthesize(loose_divider(), top=1000)
+    assert len(unlimited.candidates) > 100  # the space has more than the limit lets through
+    clock = Ticks()
+    slow_recheck(monkeypatch, clock, 0.01)
+    deadline = Deadline(10.0, start=0.0, clock=clock)
+    result = synthesize(loose_divider(), top=1000, deadline=deadline)
+    # the probe of 32 candidates took 0.32 s: 9.68 s left, 30 % after the search, half of
+    # it for re-checking and showing at 0.02 s a candidate
+    kept = int(9.68 * 0.3 * 0.5 / 0.02)
+    ranking = next(c for c in result.cuts if c.stage == "ranking")
+    assert (ranking.asked, ranking.done) == (1000, kept) and len(result.candidates) == kept
+    assert [c.values for c in result.candidates] == [
+        c.values for c in unlimited.candidates[:kept]]
+    assert not result.proven_optimal
+
+
+def test_a_ranking_the_search_does_not_fill_is_not_reported_as_cut(monkeypatch):
+    clock = Ticks()
+    slow_recheck(monkeypatch, clock, 1e-6)
+    result = synthesize(divider(), top=1000, deadline=Deadline(10.0, start=0.0, clock=clock))
+    assert "ranking" not in [c.stage for c in result.cuts] and result.proven_optimal
+
+
+def test_the_re_check_stops_where_its_share_of_the_time_ends(monkeypatch):
+    from synth.circuit.measure import Evaluator
+    from synth.search.choices import choices_for
+    from synth.synthesis import _candidates
+
+    clock = Ticks()
+    slow_recheck(monkeypatch, clock, 1 / 64)
+    design = loose_divider()
+    choices = [choices_for(r) for r in design.free_resistors]
+    rows = np.array([[a, b] for a in range(20) for b in range(25)], dtype=np.int64)
+    deadline = Deadline(4.0, start=0.0, clock=clock)
+    out = _candidates(design, Evaluator(design), choices, rows, deadline)
+    # half of 4 s: a first block of 32 measures 1/64 s a candidate (0.5 s, as much again
+    # kept to show them), then the 1 s left fits 32 more at 1/32 s each
+    assert len(out) == 64 and [c.rank for c in out] == list(range(1, 65))
+    assert [(c.stage, c.asked, c.done) for c in deadline.cuts] == [("re-check", 500, 64)]
+    assert deadline.reserved_s == 1.0
+
+
+def test_the_best_candidate_is_re_checked_however_late(monkeypatch):
+    from synth.circuit.measure import Evaluator
+    from synth.search.choices import choices_for
+    from synth.synthesis import _candidates
+
+    design = loose_divider()
+    choices = [choices_for(r) for r in design.free_resistors]
+    rows = np.zeros((5, 2), dtype=np.int64)
+    out = _candidates(design, Evaluator(design), choices, rows, expired())
+    assert len(out) == 1 and out[0].rank == 1
