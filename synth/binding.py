@@ -71,5 +71,6 @@ def nearest_text(candidate: Candidate) -> str:
         if gap > worst:
             worst, text = gap, (f"target {problem.subject!r} ({problem})"
                                 if problem.kind == "window"
+                                else str(problem) if problem.kind == "linearity"
                                 else limit_text(candidate.check.design, problem))
     return text

@@ -192,10 +192,10 @@ def worst_points(reports: list[PartReport]) -> list[PartReport]:
     return [worst[ref] for ref in order] + [p for p in reports if p.kind != "resistor"]
 
 
-def _window_problem(target: TargetReport) -> Problem:
+def _window_problem(target: TargetReport, reading: tuple[str, float] | None) -> Problem:
     edge = target.low if target.value < target.low else target.high
     return Problem("window", target.label, target.value, edge, target.unit,
-                   low=target.low, high=target.high)
+                   low=target.low, high=target.high, reading=reading)
 
 
 def _physical_refs(design: Design) -> dict[str, tuple[str, ...]]:
@@ -312,7 +312,8 @@ def check_block(design: Design, evaluator: Evaluator, positions: np.ndarray,
         targets = target_reports(design, result.targets[row], result.target_noise[row])
         problems = [p for part in reports if part.kind == "resistor"
                     for p in _point_problems(design, part)]
-        problems += [_window_problem(t) for t in targets if not t.met]
+        problems += [_window_problem(t, d.reading)
+                     for t, d in zip(targets, design.targets, strict=True) if not t.met]
         problems += [Problem("linearity", f"{c.label} at {c.worst_c:.4g} °C", c.worst_error_c,
                              c.within_c, "°C") for c in lines if not c.met]
         max_voltage = float(v.max() - v.min())
@@ -444,7 +445,8 @@ def required_problems(design: Design, spread: SpreadResult | None) -> tuple[Prob
                         or exceeds(value, high, ts.noise)):
                     edge = low if value < low else high
                     problems.append(Problem("window", target.label, value, edge, target.unit,
-                                            low=low, high=high, basis="worst case"))
+                                            low=low, high=high, basis="worst case",
+                                            reading=target.reading))
         for ps in spread.parts:
             if ps.allowed_power_hot is not None and exceeds(ps.worst_power,
                                                             ps.allowed_power_hot):

@@ -49,6 +49,10 @@ class Problem:
     basis : {"nominal", "worst case", "yield"}
         Where it fails: at nominal values, somewhere in the tolerance box, or
         in the Monte Carlo yield.
+    reading : tuple of (str, float), or None
+        For a target judged in another quantity (a linearity target's grid
+        point: ``("°C", slope)``, slope in V/°C): the text reads the value's
+        distance from the window's middle, and the window's half-width, in it.
     """
 
     kind: str
@@ -59,6 +63,7 @@ class Problem:
     low: float | None = None
     high: float | None = None
     basis: str = "nominal"
+    reading: tuple[str, float] | None = None
 
     def __str__(self) -> str:
         text = self._text()
@@ -77,6 +82,11 @@ class Problem:
         if self.kind == "voltage":
             return (f"{self.subject} sees {format_eng(self.value, 'V')}, over its allowed "
                     f"{format_eng(self.limit, 'V')}")
+        if self.reading is not None and self.low is not None and self.high is not None:
+            unit, per = self.reading
+            off = (self.value - (self.low + self.high) / 2) / per
+            return (f"target {self.subject} reads {off:+.3g} {unit} off its line, beyond the "
+                    f"±{(self.high - self.low) / 2 / abs(per):.3g} {unit} allowed")
         return (f"target {self.subject} = {format_eng(self.value, self.unit, 6)} lies outside "
                 f"{format_window(_edge(self.low, -1), _edge(self.high, 1), self.unit)}")
 

@@ -65,6 +65,16 @@ def test_met_follows_the_refined_error():
     (problem,) = [p for p in tight.problems if p.kind == "linearity"]
     assert problem.unit == "°C" and problem.limit == 0.1
     assert "°C off its line, beyond the ±0.1 °C allowed" in str(problem)
+    # the grid points out of their window speak in °C too: the closed form's error there
+    t = np.linspace(0, 50, 11)
+    errors = _line_error(t, _closed_form(t, 4700.0))
+    windows = [p for p in tight.problems if p.kind == "window"]
+    assert windows and len(windows) == int(np.sum(np.abs(errors) > 0.1))
+    for p in windows:
+        at = float(p.subject.rsplit("@ ", 1)[1].removesuffix(" °C"))
+        off = errors[int(np.argmin(np.abs(t - at)))]
+        assert str(p) == (f"target {p.subject} reads {off:+.3g} °C off its line, beyond the "
+                          "±0.1 °C allowed")
 
 
 def test_a_target_read_in_degrees():
