@@ -1,11 +1,11 @@
-"""The quick commands: divider, regulator, led, pad, bias, gain and map-range.
+"""The quick commands: divider, regulator, led, pad, bias, gain, map-range and thermometer.
 """
 
 from __future__ import annotations
 
 __all__ = [
     "bias_command", "divider_command", "gain_command", "given_text", "led_command",
-    "map_range_command", "pad_command", "regulator_command",
+    "map_range_command", "pad_command", "regulator_command", "thermometer_command",
 ]
 
 import functools
@@ -21,6 +21,7 @@ from synth.cli.commands import cli
 from synth.cli.options import (
     CURRENT,
     DECIBELS,
+    PERCENT,
     RESISTANCE,
     VOLTAGE,
     Given,
@@ -214,3 +215,63 @@ def map_range_command(input_range: str, output_range: str, reference: Given | No
     tables = map_range_tables(input_range=input_range, output_range=output_range,
                               settings=quick.settings(), reference=given_text(reference))
     quick_run(tables, "rnsynth map-range options", quick, search, spread)
+
+
+@cli.command("thermometer")
+@click.option("--sensor", "kind", type=click.Choice(["rtd", "ntc"]), required=True,
+              help="rtd: an IEC 60751 platinum thermometer; ntc: a thermistor.")
+@click.option("--temperature", "temperature_range", required=True,
+              help='Temperature range low:high, the colder end first, e.g. "0 C:100 C".')
+@click.option("--output", "output_range", required=True,
+              help='Output at the colder and the warmer end, e.g. "0.5 V:2.5 V" (the larger '
+                   "first for an output that falls as it warms).")
+@click.option("--reference", type=VOLTAGE, required=True,
+              help="Reference voltage the divider runs from.")
+@click.option("--network", type=click.Choice(["divider", "parallel", "series-parallel"]),
+              default="parallel", show_default=True,
+              help="divider: the sensor and RB; parallel: RP across the sensor too; "
+                   "series-parallel: RS in series with the sensor, RP across both.")
+@click.option("--r0", type=RESISTANCE, default=None,
+              help="rtd: resistance at 0 °C [default: 100, a Pt100; 1k a Pt1000].")
+@click.option("--class", "tolerance_class", type=click.Choice(["AA", "A", "B", "C"]),
+              default=None, help="rtd: IEC 60751 tolerance class [default: B].")
+@click.option("--r25", type=RESISTANCE, default=None, help="ntc: resistance at 25 °C.")
+@click.option("--beta", default=None, help='ntc: B value, e.g. "3950 K".')
+@click.option("--tolerance", type=PERCENT, default=None,
+              help="ntc: tolerance of R25 (of the resistance, with --steinhart-hart) "
+                   "[default: 0%].")
+@click.option("--beta-tolerance", type=PERCENT, default=None,
+              help="ntc: tolerance of B [default: 0%].")
+@click.option("--steinhart-hart", default=None, metavar="A,B,C",
+              help="ntc, instead of --r25 and --beta: 1/T = A + B ln R + C (ln R)^3.")
+@click.option("--grid", default=21, show_default=True,
+              help="Temperatures the line is checked at, both ends included (2 to 1000).")
+@click.option("--max-current", type=CURRENT, default=None,
+              help="Most current the divider may draw from the reference.")
+@quick_options("°C")
+@friendly
+def thermometer_command(kind: str, temperature_range: str, output_range: str,
+                        reference: Given, network: str, r0: Given | None,
+                        tolerance_class: str | None, r25: Given | None, beta: str | None,
+                        tolerance: Given | None, beta_tolerance: Given | None,
+                        steinhart_hart: str | None, grid: int, max_current: Given | None,
+                        quick: QuickOptions, search: SearchOptions,
+                        spread: SpreadOptions) -> None:
+    """Temperature sensor front end: an RTD or NTC in a divider whose output follows a line.
+
+    The output follows the straight line through the two --output ends over
+    --temperature within --within (in °C; a percentage is that share of the
+    range, by default the series' tolerance), checked on --grid temperatures
+    and refined near the largest error.
+    """
+    from synth.templates.thermometer import SensorOptions, thermometer_tables
+
+    sensor = SensorOptions(kind=kind, r0=given_text(r0), tolerance_class=tolerance_class,
+                           r25=given_text(r25), beta=beta, tolerance=given_text(tolerance),
+                           beta_tolerance=given_text(beta_tolerance),
+                           steinhart_hart=steinhart_hart)
+    tables = thermometer_tables(sensor, temperature_range=temperature_range,
+                                output_range=output_range, reference=reference.text,
+                                settings=quick.settings(), network=network, grid=grid,
+                                max_current=given_text(max_current))
+    quick_run(tables, "rnsynth thermometer options", quick, search, spread)

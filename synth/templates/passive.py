@@ -9,10 +9,10 @@ runs the same engine as for any design file.
 from __future__ import annotations
 
 __all__ = [
-    "QuickSettings",
+    "SENSOR_OPTIONS", "QuickSettings",
     "default_window", "design_table", "divider_tables", "free_part", "led_tables",
-    "option_names", "pad_ideal", "pad_tables", "read_option", "regulator_tables", "value_range",
-    "with_goal",
+    "option_names", "pad_ideal", "pad_tables", "read_option", "read_span", "regulator_tables",
+    "span_window", "value_range", "with_goal",
 ]
 
 from dataclasses import dataclass
@@ -49,6 +49,65 @@ def read_option(option: str, parse: Any, text: str, *args: Any) -> float:
         return float(parse(text, *args))
     except DesignError as exc:
         raise DesignError(f"{option}: {exc}") from None
+
+
+_SPAN_EXAMPLES = {"V": '"-10 V:10 V"', "A": '"4 mA:20 mA"', "°C": '"0 C:100 C"'}
+
+
+def read_span(option: str, text: str, units: tuple[str, ...]
+              ) -> tuple[list[str], float, float, str]:
+    """The ends of an option's range ``low:high``: as typed, as numbers, and their unit.
+
+    ``units`` are tried in turn (``"°C"`` reads temperatures, in °C; any other
+    a quantity in that unit).  Two equal ends are refused; their order is the
+    caller's to judge.
+
+    Examples
+    --------
+    >>> read_span("--input", "4 mA:20 mA", ("V", "A"))
+    (['4 mA', '20 mA'], 0.004, 0.02, 'A')
+    >>> read_span("--temperature", "-20 C:60 C", ("°C",))[1:]
+    (-20.0, 60.0, '°C')
+    """
+    low, sep, high = text.partition(":")
+    if not sep or not low.strip() or not high.strip():
+        raise DesignError(f"{option} {text!r} needs two ends separated by a colon, e.g. "
+                          f"{_SPAN_EXAMPLES.get(units[0], _SPAN_EXAMPLES['V'])}")
+    for unit in units:
+        try:
+            if unit == "°C":
+                ends = parse_temperature(low), parse_temperature(high)
+            else:
+                ends = parse_quantity(low, unit), parse_quantity(high, unit)
+        except DesignError:
+            continue
+        if ends[0] == ends[1]:
+            raise DesignError(f"{option} {text!r} has two equal ends; give a range")
+        return [low.strip(), high.strip()], ends[0], ends[1], unit
+    words = " or ".join(units)
+    raise DesignError(f"{option} {text!r} is not a range in {words}; write it such as "
+                      f"{_SPAN_EXAMPLES.get(units[0], _SPAN_EXAMPLES['V'])}")
+
+
+def span_window(within: str, span: float, unit: str) -> str:
+    """A relative window (``"1%"``, ``"50 ppm"``) read as that share of ``span``, in ``unit``.
+
+    For a goal whose relative error means nothing (an end at 0 V, an error in
+    °C); an absolute window is returned as it is.  A share outside the design
+    file's rule for a window (above 0 % to 1000 %) is refused as ``--within``.
+
+    Examples
+    --------
+    >>> span_window("1%", 20.0, "C"), span_window("0.5 C", 20.0, "C")
+    ('0.2 C', '0.5 C')
+    """
+    text = within.strip()
+    if not text.endswith(("%", "ppm")):
+        return within
+    share = read_option("--within", parse_fraction, text)
+    if not 0 < share <= 10:
+        raise DesignError(f"--within {within!r} must lie between above 0 % and 1000 %")
+    return f"{share * span:.6g} {unit}"
 
 
 def value_range(settings: QuickSettings, default: str = "100:10M") -> list[str]:
@@ -327,6 +386,11 @@ _TARGET_OPTIONS = {
 }
 """The option behind each target a quick command writes, by (target name, key)."""
 
+SENSOR_OPTIONS = {"kind": "--sensor", "r0": "--r0", "class": "--class", "r25": "--r25",
+                  "beta": "--beta", "tolerance": "--tolerance",
+                  "beta_tolerance": "--beta-tolerance", "steinhart_hart": "--steinhart-hart"}
+"""The option behind each key of a ``[[sensor]]`` table a quick command writes."""
+
 
 def option_names(tables: dict[str, Any]) -> dict[tuple[str, str], str]:
     """The command-line option behind each ``(item, key)`` of a quick command's tables.
@@ -352,6 +416,13 @@ def option_names(tables: dict[str, Any]) -> dict[tuple[str, str], str]:
     for row in tables.get("source", []):
         if str(row.get("ref", "")).startswith("D") and row.get("note") == "LED forward drop":
             names[(f"source {row['ref']}", "value")] = "--forward"
+    for row in tables.get("sensor", []):
+        item = f"sensor {row.get('ref', '')}"
+        names.update({(item, key): option for key, option in SENSOR_OPTIONS.items()})
+    for row in tables.get("linearity", []):
+        item = f"linearity {row.get('name', '')!r}"
+        names.update({(item, "within"): "--within", (item, "grid"): "--grid",
+                      (item, "line"): "--output"})
     for row in tables.get("target", []):
         name = row.get("name", "")
         item = f"target {name!r}"

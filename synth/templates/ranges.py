@@ -20,31 +20,18 @@ __all__ = ["BURDEN_RANGE", "map_range_tables"]
 from typing import Any
 
 from synth.errors import DesignError
-from synth.templates.passive import QuickSettings, default_window, design_table, free_part
+from synth.templates.passive import (
+    QuickSettings,
+    default_window,
+    design_table,
+    free_part,
+    read_span,
+    span_window,
+)
 from synth.units import format_eng, parse_quantity
 
 BURDEN_RANGE = "1:1k"
 """The values a loop's burden resistor is chosen from, ohm (unless ``--range`` is given)."""
-
-
-def _span(option: str, text: str, units: tuple[str, ...]) -> tuple[list[str], float, float, str]:
-    """The ends of ``low:high`` as typed and as numbers, and their unit."""
-    low, sep, high = text.partition(":")
-    if not sep or not low.strip() or not high.strip():
-        raise DesignError(f"{option} {text!r} needs two ends separated by a colon, e.g. "
-                          '"-10 V:10 V"')
-    for unit in units:
-        try:
-            ends = parse_quantity(low, unit), parse_quantity(high, unit)
-        except DesignError:
-            continue
-        if ends[0] == ends[1]:
-            raise DesignError(f"{option} {text!r} has two equal ends; give a range")
-        return [low.strip(), high.strip()], ends[0], ends[1], unit
-    words = " or ".join(units)
-    raise DesignError(f"{option} {text!r} is not a range in {words}; write it such as "
-                      f'"{-10 if "V" in units else 4} {units[0]}:{10 if "V" in units else 20} '
-                      f'{units[0]}"')
 
 
 def map_range_tables(input_range: str, output_range: str, settings: QuickSettings,
@@ -75,8 +62,8 @@ def map_range_tables(input_range: str, output_range: str, settings: QuickSetting
     >>> [r["ref"] for r in t["resistor"]], t["transfer"][0]["ends"]
     (['R1', 'R2', 'R3'], ['0.1 V', '3.2 V'])
     """
-    in_text, in_low, in_high, unit = _span("--input", input_range, ("V", "A"))
-    out_text, out_low, out_high, _ = _span("--output", output_range, ("V",))
+    in_text, in_low, in_high, unit = read_span("--input", input_range, ("V", "A"))
+    out_text, out_low, out_high, _ = read_span("--output", output_range, ("V",))
     gain = (out_high - out_low) / (in_high - in_low)
     offset = out_low - gain * in_low
     if gain <= 0:
@@ -125,11 +112,9 @@ def map_range_tables(input_range: str, output_range: str, settings: QuickSetting
         resistors.append(free_part("R2", ["ref", "out"], settings))
     resistors.append(free_part("R3", ["out", "gnd"], settings))
     within = default_window(settings)
-    if 0.0 in (out_low, out_high) and within.strip().endswith(("%", "ppm")):
+    if 0.0 in (out_low, out_high):
         # an end of 0 V has no relative error: the same share of the output's span
-        share = float(within.strip().rstrip("%")) / 100 if within.strip().endswith("%") \
-            else float(within.strip().removesuffix("ppm")) * 1e-6
-        within = f"{share * abs(out_high - out_low):.6g} V"
+        within = span_window(within, abs(out_high - out_low), "V")
     return {
         "design": design,
         "source": sources,

@@ -176,6 +176,8 @@ QUICK = {
     "pad": ["--loss", "6 dB"],
     "bias": ["--supply", "10 V", "--collector-current", "1 mA", "--collector-voltage", "5 V"],
     "gain": ["--gain", "10"],
+    "thermometer": ["--sensor", "ntc", "--r25", "10k", "--beta", "3950", "--temperature",
+                    "0 C:50 C", "--output", "0.6 V:2.2 V", "--reference", "3.3 V"],
 }
 
 QUICK_REFUSED = [
