@@ -21,7 +21,7 @@ LAYERS = (
     ("templates",),
     ("bom",),
     ("sweep",),
-    ("checking", "synthesis", "front"),
+    ("least_cost", "checking", "synthesis", "front"),
     ("binding",),
     ("results", "cautions", "linearity"),
     ("search",),

@@ -16,7 +16,8 @@ from synth.schemas import schema_path
 from conftest import ROOT
 
 DESIGNS = sorted(p for p in (ROOT / "examples").glob("*.toml") if "board" not in p.name)
-FREE = [p for p in DESIGNS if "choose" in p.read_text(encoding="utf-8")]  # design needs these
+FREE = [p for p in DESIGNS if any(key in p.read_text(encoding="utf-8")
+                                  for key in ("choose", "classes"))]  # design needs these
 
 
 def validate(name, text):

@@ -104,12 +104,23 @@ def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
     for note in design.deprecations:
         click.echo(f"rnsynth: note: {note}", err=True)
     progress = Progress(enabled=not search.quiet and sys.stderr.isatty())
+    least_cost = prepared is None and any(r.classes for r in design.free_resistors)
     try:
-        result = (prepared if prepared is not None else synthesize(
-            design, top=search.top, time_limit_s=search.time_limit, progress=progress,
-            spread=settings, rank_by=search.rank_by, require=search.require,
-            min_yield=None if search.min_yield is None else search.min_yield.value,
-            deadline=deadline, jobs=jobs))
+        if least_cost:  # the parts' classes are chosen too, at least cost
+            from synth.least_cost import choose_classes
+
+            choice = choose_classes(
+                design, top=search.top, time_limit_s=search.time_limit, progress=progress,
+                spread=settings, rank_by=search.rank_by, require=search.require,
+                min_yield=None if search.min_yield is None else search.min_yield.value,
+                deadline=deadline, jobs=jobs)
+            result = choice.result
+        else:
+            result = (prepared if prepared is not None else synthesize(
+                design, top=search.top, time_limit_s=search.time_limit, progress=progress,
+                spread=settings, rank_by=search.rank_by, require=search.require,
+                min_yield=None if search.min_yield is None else search.min_yield.value,
+                deadline=deadline, jobs=jobs))
     finally:
         progress.close()
     # the files first, all of them or none; then what is printed
@@ -127,9 +138,18 @@ def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
         document = design_json(result)
         if rules is not None and result.candidates:
             document["rules"] = rules(result.candidates[0])
+        if least_cost:
+            from synth.report.classes import classes_json
+
+            document["classes"] = classes_json(choice)
         emit_json(document)
     else:
         click.echo(design_text(result), err=to_stdout)
+        if least_cost:
+            from synth.report.classes import classes_text
+
+            click.echo("", err=to_stdout)
+            click.echo(classes_text(choice), err=to_stdout)
         if rules is not None and result.candidates:
             click.echo("rules of thumb for the best design:", err=to_stdout)
             for line in rules(result.candidates[0]):
@@ -137,7 +157,7 @@ def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,
     if not search.as_json:
         for path in written[len(saved):]:
             click.echo(f"plot written: {path}", err=to_stdout)
-    if not result.feasible:
+    if not result.feasible or (least_cost and choice.classes is None):
         sys.exit(1)
 
 
