@@ -2,8 +2,9 @@
 resistor's own ``classes``.
 
 A resistor with classes is free: rnsynth may buy it in any of them (see
-:mod:`synth.catalog.part_classes`).  Until a class is chosen (``rnsynth check``, a
-nominal search) it stands as its cheapest class: that class's values, tolerance and TCR.
+:mod:`synth.catalog.part_classes`).  Until a class is chosen (``rnsynth check``) it
+stands as the class its ``class`` key names, else its cheapest: that class's values,
+tolerance and TCR.
 """
 
 from __future__ import annotations
@@ -30,7 +31,8 @@ class ClassedPart:
     classes : tuple of PartClass
         The classes it may be bought in, as the design lists them.
     base : PartClass
-        The cheapest of them (ties: the first listed).
+        The class it stands as until one is chosen: the one ``class`` names, else the
+        cheapest (ties: the first listed).
     """
 
     classes: tuple[PartClass, ...]
@@ -81,7 +83,8 @@ def read_part_classes(reader: ItemReader, settings: Mapping[str, Any]) -> Classe
     ------
     DesignError
         On an unknown class name (with the nearest), ``choose``, ``tolerance`` or ``tcr``
-        beside ``classes``, or a part of series classes without a range.
+        beside ``classes``, a part of series classes without a range, or a ``class`` that
+        is not one of the part's classes.
     """
     if reader.has("classes"):
         names = _names(reader, "classes")
@@ -107,5 +110,12 @@ def read_part_classes(reader: ItemReader, settings: Mapping[str, Any]) -> Classe
                        else replace(found, tcr=settings["default_tcr"]))
     if not reader.has("range") and any(c.stock_path is None for c in classes):
         reader.fail('a part chosen by class needs a range such as range = ["1k", "1M"]')
+    if reader.has("class"):  # the class check uses, as value is the value it uses
+        named = reader.text("class")
+        picked = [c for c in classes if c.name == named]
+        if not picked:
+            reader.fail(f"class {named!r} is not one of the part's classes "
+                        f"({', '.join(c.name for c in classes)}); name one of them")
+        return ClassedPart(classes=tuple(classes), base=picked[0])
     base = min(enumerate(classes), key=lambda kc: (kc[1].cost, kc[0]))[1]
     return ClassedPart(classes=tuple(classes), base=base)

@@ -30,7 +30,7 @@ from synth.units import (
 
 _RESISTOR_KEYS = (
     "ref", "nodes", "value", "choose", "range", "tolerance", "tcr", "package", "combine", "parts",
-    "equal_parts", "bom", "note", "classes", "array",
+    "equal_parts", "bom", "note", "classes", "array", "class",
 )
 
 

@@ -51,6 +51,8 @@ def test_the_design_default_applies_to_parts_with_a_range_and_no_choose():
     ({"classes": [], "range": ["1k", "2k"]}, None, "classes must be a list"),
     ({"classes": ["1%", "1%"], "range": ["1k", "2k"]}, None, "names class '1%' twice"),
     ({"range": ["1k", "2k"]}, {"classes": ["9%"]}, "class '9%' is not in the class table"),
+    ({"classes": ["1%"], "range": ["1k", "2k"], "class": "0.1%"}, None,
+     "class '0.1%' is not one of the part's classes (1%)"),
 ])
 def test_refused_classes(resistor, design, fragment):
     with pytest.raises(DesignError, match="resistor R1") as caught:
@@ -89,3 +91,10 @@ def test_a_class_without_tcr_takes_the_design_tcr_and_stock_classes_their_rows(t
     part = design.resistors[0]
     assert part.tcr == pytest.approx(50e-6) and part.classes[1].tcr == pytest.approx(50e-6)
     assert choices_for(part).values.tolist() == [4700.0, 5100.0]  # only the 1 % rows
+
+
+def test_class_names_the_class_check_uses():
+    design = design_from_dict(_design({"classes": ["1%", "0.1%"], "range": ["1k", "100k"],
+                                       "class": "0.1%", "value": "10k"}))
+    part = design.resistors[0]
+    assert (part.tolerance, part.choose, part.value) == (0.001, "E24+E192", 10e3)
