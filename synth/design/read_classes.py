@@ -89,7 +89,7 @@ def read_part_classes(reader: ItemReader, settings: Mapping[str, Any]) -> Classe
     if reader.has("classes"):
         names = _names(reader, "classes")
     elif (settings.get("default_classes") and reader.has("range")
-          and not reader.has("choose")):
+          and not reader.has("choose") and not reader.has("array")):
         names = settings["default_classes"]
     else:
         return None
