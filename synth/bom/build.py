@@ -56,13 +56,26 @@ def _key(value: float, resistor: Resistor) -> LineKey:
                    tolerance=resistor.tolerance, tcr=resistor.tcr)
 
 
+def _array_key(design: Design, name: str, values: dict[str, float]) -> LineKey:
+    """The one line of matched array ``name``: every member's value, in member order."""
+    array = next(a for a in design.arrays if a.name == name)
+    members = tuple(float(f"{values[m]:.9g}") for m in array.members)
+    return LineKey(value=members[0], package=array.package or "", tolerance=array.tolerance,
+                   tcr=array.tcr, members=members, ratio_tolerance=array.ratio_tolerance,
+                   tcr_tracking=array.tcr_tracking)
+
+
 def bom_parts(design: Design, values: dict[str, float]) -> list[tuple[str, LineKey]]:
-    """(reference, line) of every BOM part of one network for physical part values."""
+    """(reference, line) of every BOM part of one network for physical part values.
+
+    The members of a matched array all take the array's one line (:func:`_array_key`).
+    """
     out = []
     for ref, value in values.items():
         spec = _spec(design, ref)
         if spec is not None and spec.bom:
-            out.append((ref, _key(value, spec)))
+            out.append((ref, _key(value, spec) if spec.array is None
+                        else _array_key(design, spec.array, values)))
     return out
 
 
@@ -74,6 +87,8 @@ def _stock_match(key: LineKey, stock: list[StockItem], packages: Mapping[str, Pa
         a, b = packages.get(item.package), packages.get(key.package)
         return item.package.casefold() == key.package.casefold() or (a is not None and a is b)
 
+    if key.is_array:  # a stock row is one resistor, never a matched array
+        return []
     return [item for item in stock
             if abs(item.value - key.value) <= 1e-9 * key.value and same_package(item)
             and stock_fits(item, key.tolerance, key.tcr)]
@@ -366,10 +381,14 @@ def _listing(board: Board, options: list[list[tuple[int, dict[str, float], float
     mappings = iter(renumber(instances, every=renumber_all))
     renumbered: dict[str, dict[str, str]] = {}
     refs_by_key: dict[LineKey, list[str]] = defaultdict(list)
+    arrays_by_key: dict[LineKey, list[tuple[str, ...]]] = defaultdict(list)
     placed: list[tuple[str, str, str, LineKey]] = []
     chosen = []
+    picked_values: dict[str, dict[str, float]] = {}
     for net, pick, candidates in zip(board.networks, outcome.choice, options, strict=True):
         rank, values, objective = candidates[pick]
+        picked_values.update({net.name if net.count == 1 else f"{net.name} #{copy + 1}": values
+                              for copy in range(net.count)})
         parts = bom_parts(net.design, values)
         chosen.append(NetworkChoice(name=net.name, count=net.count, rank=rank, values=values,
                                     objective=objective, pool_size=len(candidates)))
@@ -381,6 +400,9 @@ def _listing(board: Board, options: list[list[tuple[int, dict[str, float], float
             for ref, key in parts:
                 refs_by_key[key].append(mapping.get(ref, ref))
                 placed.append((mapping.get(ref, ref), label, ref, key))
+            for array in net.design.arrays:
+                key = _array_key(net.design, array.name, values)
+                arrays_by_key[key].append(tuple(mapping.get(m, m) for m in array.members))
     lines = []
     for number, key in enumerate(sorted(refs_by_key, key=lambda k: (k.value, k.package,
                                                                      k.tolerance, k.tcr)), 1):
@@ -390,20 +412,29 @@ def _listing(board: Board, options: list[list[tuple[int, dict[str, float], float
         quantities = [m.quantity for m in matches]
         on_hand = (sum(q for q in quantities if q is not None)
                    if matches and any(q is not None for q in quantities) else None)
-        need = len(refs)
+        arrays = tuple(arrays_by_key.get(key, ()))
+        need = len(arrays) if key.is_array else len(refs)  # an array is one part
         shortfall = need if not matches else max(need - on_hand, 0) if on_hand is not None else 0
+        series = {coarsest_series(v) for v in key.members or (key.value,)}
         lines.append(BomLine(
-            number=number, key=key, series=coarsest_series(key.value) or "-",
+            number=number, key=key, series=series.pop() or "-" if len(series) == 1 else "-",
             rating=packages.get(key.package) if key.package else None, quantity=need,
             references=tuple(refs), on_hand=on_hand, in_stock=bool(matches),
-            shortfall=shortfall, stock=_passed(matches),
+            shortfall=shortfall, stock=_passed(matches), arrays=arrays,
         ))
         if stock_only and shortfall:
             notes.append(f"line {number}: {need} needed, {on_hand} on hand; {shortfall} to buy")
     number_of = {line.key: line.number for line in lines}
     placements = tuple(Placement(designator=ref, network=label, original=original,
-                                 line=number_of[key]) for ref, label, original, key in placed)
+                                 line=number_of[key],
+                                 ohms=_own_value(picked_values[label], original, key))
+                       for ref, label, original, key in placed)
     return BomResult(board=board, lines=tuple(lines), networks=tuple(chosen),
                      renumbered=renumbered, consolidation=outcome, lines_before=before,
                      notes=tuple(notes), placements=placements,
                      stock_columns=tuple(dict.fromkeys(c for item in stock for c, _ in item.extra)))
+
+
+def _own_value(values: dict[str, float], ref: str, key: LineKey) -> float | None:
+    """A matched array member's own value, ohm (None for a single resistor's line)."""
+    return float(f"{values[ref]:.9g}") if key.is_array else None

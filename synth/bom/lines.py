@@ -20,12 +20,25 @@ _REF = re.compile(r"^([A-Za-z]+)(\d+)(.*)$")
 
 @dataclass(frozen=True, order=True)
 class LineKey:
-    """What makes two parts the same orderable line."""
+    """What makes two parts the same orderable line.
+
+    A matched array (:mod:`synth.design.array`) is one orderable part: its members share
+    one key, whose ``members`` are their values in member order (``value`` the first),
+    with the array's ratio tolerance and TCR tracking; a single resistor has no members.
+    """
 
     value: float
     package: str
     tolerance: float
     tcr: float
+    members: tuple[float, ...] = ()
+    ratio_tolerance: float = 0.0
+    tcr_tracking: float = 0.0
+
+    @property
+    def is_array(self) -> bool:
+        """True for a matched array's line."""
+        return bool(self.members)
 
 
 @dataclass(frozen=True)
@@ -49,6 +62,10 @@ class BomLine:
     stock : tuple of (str, str)
         The stock list's own columns (part number, location, price, …) of the matching rows:
         column name and value, the distinct values of several rows joined by ``"; "``.
+    arrays : tuple of tuple of str
+        For a matched array's line: each array's members' designators, one tuple per
+        array (``quantity`` counts arrays, ``references`` lists every member); empty
+        otherwise.
     """
 
     number: int
@@ -61,6 +78,7 @@ class BomLine:
     in_stock: bool
     shortfall: int
     stock: tuple[tuple[str, str], ...] = ()
+    arrays: tuple[tuple[str, ...], ...] = ()
 
 
 @dataclass(frozen=True)
@@ -89,12 +107,16 @@ class Placement:
         The designator the design file gives the part.
     line : int
         The number of its BOM line.
+    ohms : float or None
+        A matched array member's own value, ohm (its line lists every member's); None
+        for a single resistor (the line's value).
     """
 
     designator: str
     network: str
     original: str
     line: int
+    ohms: float | None = None
 
 
 @dataclass(frozen=True)

@@ -16,6 +16,7 @@ from typing import Any
 from synth.bom.lines import (
     BomLine,
     BomResult,
+    LineKey,
     collapse_references,
     list_references,
     natural_order,
@@ -49,14 +50,30 @@ def describe(line: BomLine) -> str:
     The package, its power and the TCR are left out when unknown (no package, zero TCR).
     """
     key, rating = line.key, line.rating
-    words = ["RES", format_eng(key.value, "Ω", 6), f"{key.tolerance * 100:g} %"]
+    if key.is_array:
+        # RES ARRAY 2 × 10 kΩ, 10 kΩ 0.1 % ratio 0.02 % 0603 0.1 W 25 ppm/°C tracking 5 ppm/°C
+        words = ["RES ARRAY", f"{len(key.members)} ×", _values_text(key),
+                 f"{key.tolerance * 100:g} %", f"ratio {key.ratio_tolerance * 100:g} %"]
+    else:
+        words = ["RES", format_eng(key.value, "Ω", 6), f"{key.tolerance * 100:g} %"]
     if key.package:
         words.append(key.package)
     if rating is not None:
         words.append(f"{rating.rated_power_w:g} W")
     if key.tcr > 0:
         words.append(f"{key.tcr * 1e6:g} ppm/°C")
+    if key.is_array and key.tcr_tracking > 0:
+        words.append(f"tracking {key.tcr_tracking * 1e6:g} ppm/°C")
     return " ".join(words)
+
+
+def _values_text(key: LineKey) -> str:
+    """A line's value: one, or a matched array's members' values in member order."""
+    return ", ".join(format_eng(v, "Ω", 6) for v in key.members or (key.value,))
+
+
+def _codes(key: LineKey) -> str:
+    return "/".join(format_rkm(v, 4) for v in key.members or (key.value,))
 
 
 def _references(line: BomLine, ranges: bool) -> str:
@@ -77,8 +94,8 @@ def bom_rows(result: BomResult, ranges: bool = False) -> list[dict[str, Any]]:
             "line": line.number,
             "quantity": line.quantity,
             "references": _references(line, ranges),
-            "value": format_eng(line.key.value, "Ω", 6),
-            "code": format_rkm(line.key.value, 4),
+            "value": _values_text(line.key),
+            "code": _codes(line.key),
             "ohms": line.key.value,
             "series": line.series,
             "tolerance": f"{line.key.tolerance * 100:g}%",
@@ -127,11 +144,12 @@ def designator_rows(result: BomResult) -> list[dict[str, Any]]:
     for place in sorted(result.placements, key=lambda p: natural_order(p.designator)):
         line = by_number[place.line]
         rating = line.rating
+        ohms = line.key.value if place.ohms is None else place.ohms  # an array member's own
         rows.append({
             "designator": place.designator,
-            "value": format_eng(line.key.value, "Ω", 6),
-            "code": format_rkm(line.key.value, 4),
-            "ohms": line.key.value,
+            "value": format_eng(ohms, "Ω", 6),
+            "code": format_rkm(ohms, 4),
+            "ohms": ohms,
             "tolerance": f"{line.key.tolerance * 100:g}%",
             "tcr_ppm_per_c": round(line.key.tcr * 1e6, 6),
             "package": line.key.package or "-",
@@ -172,6 +190,12 @@ def _json_line(row: dict[str, Any], line: BomLine) -> dict[str, Any]:
     out["tolerance_fraction"] = line.key.tolerance
     out["designators"] = list(line.references)
     out["stock"] = dict(line.stock)
+    out["array"] = None if not line.key.is_array else {
+        "members_ohms": list(line.key.members),
+        "ratio_tolerance_fraction": line.key.ratio_tolerance,
+        "tcr_tracking_ppm_per_c": round(line.key.tcr_tracking * 1e6, 6),
+        "arrays": [list(members) for members in line.arrays],
+    }
     return out
 
 

@@ -5,7 +5,8 @@ is judged at the ends, which is exact; this sweeps the source between them so a
 picture can show the transfer curve.  At each swept value the network is solved at
 nominal values and at every vertex of the tolerance box (each physical part one
 deviation at every point), so the envelope is exact at every swept value; with more
-than :data:`ENVELOPE_VARIABLES` varying quantities no envelope is given.
+than :data:`ENVELOPE_VARIABLES` varying quantities, or with a matched array (whose common
+deviation the vertices do not bound), no envelope is given.
 """
 
 from __future__ import annotations
@@ -47,7 +48,9 @@ class RangeCurve:
         The window at each swept value, straight between the ends' windows
         (``-inf``/``inf`` where open).
     exact : bool
-        True when every vertex of the tolerance box was solved (an envelope is given).
+        True when every vertex of the tolerance box was solved (an envelope is given);
+        False with more than :data:`ENVELOPE_VARIABLES` varying quantities or a matched
+        array.
     """
 
     label: str
@@ -107,7 +110,9 @@ def range_curves(design: Design, positions: dict[str, float], values: dict[str, 
         parts0[c] = values.get(ref, parts0[c])
     parts0 = ev.follow_parts(parts0)[0]
     var = SpreadVariables(design, ev)
-    exact = len(var) <= ENVELOPE_VARIABLES
+    # a matched array's common deviation is not linear-fractional in general: its ends
+    # alone give no exact envelope (synth.spread.common_mode), so none is drawn
+    exact = len(var) <= ENVELOPE_VARIABLES and not var.common_of
     bits = box_corners(len(var)) if exact else np.zeros((0, len(var)), dtype=bool)
     corners = np.where(bits, var.high[None, :], var.low[None, :])
     labels = {t.label: k for k, t in enumerate(design.targets)}

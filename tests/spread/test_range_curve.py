@@ -16,9 +16,12 @@ import numpy as np
 import pytest
 
 from synth.checking import check
+from synth.circuit.measure import Evaluator
 from synth.design.reader import design_from_dict
 from synth.report.pictures.transfer_curve import transfer_curve
 from synth.spread.range_curve import range_curves
+from synth.spread.records import SpreadSettings
+from synth.spread.variables import SpreadVariables
 
 
 def design():
@@ -82,3 +85,33 @@ def test_no_curve_without_a_range_and_the_picture():
     figure = transfer_curve(curve)
     assert len(figure.axes) == 2 and figure.axes[1].get_xlabel() == "VIN"
     assert figure.axes[1].get_ylabel() == "from the window's centre"
+
+
+def test_a_matched_array_gives_no_envelope_its_vertices_do_not_bound():
+    # R1 and R3 in one array: the common deviation enters both, so a target is not
+    # linear-fractional in it and the vertices' envelope would not be exact
+    # [CP-matched-array]; each operating point's copy shares the one common deviation
+    data = {
+        "design": {"tcr": "0 ppm/C"},
+        "source": [{"ref": "VIN", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "range": ["-10 V", "10 V"]},
+                   {"ref": "VREF", "kind": "voltage", "plus": "ref", "minus": "gnd",
+                    "value": "3.3 V", "tolerance": "0.5%"}],
+        "resistor": [{"ref": "R1", "nodes": ["in", "out"], "value": "442k", "array": "RN1"},
+                     {"ref": "R2", "nodes": ["ref", "out"], "value": "137k", "tolerance": "1%"},
+                     {"ref": "R3", "nodes": ["out", "gnd"], "value": "200k", "array": "RN1"}],
+        "array": [{"name": "RN1", "tolerance": "1%", "ratio_tolerance": "0.1%",
+                   "tcr": "0 ppm/C"}],
+        "transfer": [{"name": "map", "input": "VIN", "output": "out",
+                      "ends": ["0.1 V", "3.2 V"], "within": "50 mV"}],
+    }
+    d = design_from_dict(data)
+    result = check(d)
+    (curve,) = range_curves(d, result.positions, result.values, samples=5)
+    assert not curve.exact and np.isnan(curve.worst_high).all()
+    spread = check(d, spread=SpreadSettings(samples=2000)).spread
+    assert spread is not None and spread.variables.count("RN1") == 1
+    assert all(t.method == "vertices, common mode scanned" for t in spread.targets)
+    # both points' copies of R1 and R3 follow the one common variable
+    var = SpreadVariables(d, Evaluator(d))
+    assert len(var.common_of) == 4 and set(var.common_of.values()) == {len(var) - 1}

@@ -80,7 +80,8 @@ def transfer_curve(curve: RangeCurve, *, ax: Axes | None = None,
         bottom.plot(x, curve.worst_high - centre, color="#d62728", linestyle="--",
                     linewidth=1)
     else:
-        bottom.text(0.01, 0.01, "too many varying quantities: no worst-case envelope",
+        bottom.text(0.01, 0.01, "no exact worst-case envelope (too many varying "
+                    "quantities, or a matched array)",
                     transform=bottom.transAxes, fontsize="small")
     bottom.plot(x[[0, -1]], (curve.nominal - centre)[[0, -1]], "o", color="black")
     bottom.set_xlabel(curve.source)
