@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-__all__ = ["spread_json", "spread_text"]
+__all__ = ["SELF_HEATING_METHOD", "spread_json", "spread_text"]
 
 import math
 from typing import Any
@@ -11,7 +11,7 @@ from tabulate import tabulate
 
 from synth.report.numbers import json_number
 from synth.spread.monte_carlo import SHARD_SIZE
-from synth.spread.records import SampleHistogram, SpreadResult
+from synth.spread.records import SampleHistogram, SpreadResult, TargetSpread
 from synth.units import format_eng
 
 QUANTILES = (0.001, 0.01, 0.05, 0.5, 0.95, 0.99, 0.999)
@@ -95,6 +95,7 @@ def spread_text(spread: SpreadResult, units: list[str]) -> str:
                      + (f"; {spread.samples_kept:,} samples per target kept"
                         if spread.samples_kept else "; no samples kept")
                      + "; quantiles (JSON) from each target's histogram, within one bin width")
+    lines.extend(_self_heating_lines(spread, units))
     if spread.variables and spread.targets:
         lines.append("")
         lines.append("sensitivities (% change of the target per % change of each quantity)")
@@ -105,6 +106,7 @@ def spread_text(spread: SpreadResult, units: list[str]) -> str:
             headers=["target", *spread.variables], disable_numparse=True))
     lines.append("")
     at_points = any(p.point is not None for p in spread.parts)
+    heating = spread.self_heating_note is None
     lines.append(f"worst-case dissipation against the derated rating at the hottest ambient "
                  f"({max(high_c, low_c):g} °C)")
     lines.append(tabulate(
@@ -112,12 +114,51 @@ def spread_text(spread: SpreadResult, units: list[str]) -> str:
           "n/a" if p.worst_power_bound == float("inf") else format_eng(p.worst_power_bound, "W"),
           "-" if p.allowed_power_hot is None else format_eng(p.allowed_power_hot, "W"),
           "-" if p.utilization is None else f"{p.utilization * 100:.3g}%",
-          format_eng(p.worst_voltage, "V"), *([p.point or "-"] if at_points else [])]
+          format_eng(p.worst_voltage, "V"), *([p.point or "-"] if at_points else []),
+          *([f"{p.temperature_rise_c:.3g} K"] if heating else [])]
          for p in spread.parts],
         headers=["part", "nominal", "worst", "bound", "allowed", "use", "worst voltage",
-                 *(["worst at point"] if at_points else [])],
+                 *(["worst at point"] if at_points else []),
+                 *(["own rise"] if heating else [])],
         disable_numparse=True))
     return "\n".join(lines)
+
+
+SELF_HEATING_METHOD = ("first order: each part's rise P·Rθ at the nominal operating point "
+                       "(nominal values and sources) is added to the ambient its TCR acts on, "
+                       "over the whole tolerance box and temperature range; the rise's own "
+                       "change with the drift and the tolerances is left out")
+"""How the spread takes self-heating (the JSON's ``self_heating.method``)."""
+
+
+def _self_heating_lines(spread: SpreadResult, units: list[str]) -> list[str]:
+    """The self-heating block: each part's rise, and each drifting target's share of it."""
+    if spread.self_heating_note is not None:
+        return [f"self-heating: not modelled; {spread.self_heating_note}"]
+    rises = [f"{p.ref} +{p.temperature_rise_c:.3g} K" for p in spread.parts
+             if p.temperature_rise_c > 0]
+    lines = ["self-heating (first order: each part's rise P·Rθ at the nominal operating point "
+             "added to the ambient its TCR acts on): "
+             + (", ".join(rises) if rises else "no part dissipates at nominal values")]
+    rows = []
+    for t, unit in zip(spread.targets, units, strict=True):
+        share = t.self_heating_share_of_drift
+        if share is None:
+            continue
+        whole = t.self_heating_share_of_rss or 0.0
+
+        def amount(value: float, t: TargetSpread = t, unit: str = unit) -> str:
+            if t.goal == 0 or not t.nominal:
+                return f"±{_value(value, unit)}"
+            return f"±{value / abs(t.nominal) * 100:.3g}%"
+
+        rows.append([t.label, amount(t.drift_rss_abs), amount(t.ambient_drift_rss_abs),
+                     f"{share * 100:.3g}%", f"{whole * 100:.3g}%"])
+    if rows:
+        lines.append(tabulate(rows, headers=["target", "drift RSS", "ambient alone",
+                                             "self-heating share of drift variance",
+                                             "of RSS variance"], disable_numparse=True))
+    return lines
 
 
 def spread_json(spread: SpreadResult) -> dict[str, Any]:
@@ -136,6 +177,9 @@ def spread_json(spread: SpreadResult) -> dict[str, Any]:
         "yield": json_number(spread.yield_fraction),
         "yield_interval": (None if spread.yield_interval is None
                            else [json_number(v) for v in spread.yield_interval]),
+        "self_heating": {"modelled": spread.self_heating_note is None,
+                         "note": spread.self_heating_note,
+                         "method": SELF_HEATING_METHOD},
         "worst_error": json_number(spread.worst_error),
         "rss_error": json_number(spread.rss_error),
         "targets": [{
@@ -149,6 +193,10 @@ def spread_json(spread: SpreadResult) -> dict[str, Any]:
             "inside": json_number(t.inside),
             "mc_min": json_number(t.mc_min), "mc_max": json_number(t.mc_max),
             **_histogram_json(t.mc_histogram),
+            "drift_rss_abs": json_number(t.drift_rss_abs),
+            "ambient_drift_rss_abs": json_number(t.ambient_drift_rss_abs),
+            "self_heating_share_of_drift": json_number(t.self_heating_share_of_drift),
+            "self_heating_share_of_rss": json_number(t.self_heating_share_of_rss),
         } for t in spread.targets],
         "parts": [{
             "ref": p.ref, "nominal_power": json_number(p.nominal_power),
@@ -159,6 +207,7 @@ def spread_json(spread: SpreadResult) -> dict[str, Any]:
             "worst_voltage": json_number(p.worst_voltage),
             **({"point": p.point} if p.point is not None else {}),
             "allowed_voltage": json_number(p.allowed_voltage),
+            "temperature_rise": json_number(p.temperature_rise_c),
         } for p in spread.parts],
     }
 

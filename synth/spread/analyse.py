@@ -22,8 +22,12 @@ Three methods, all through the batched mesh solve:
   tolerance = 3σ), each part's TCR and a shared ambient temperature; yield is
   the share of samples inside every target window and part limit.
 
-Temperature: a part's resistance is R·(1 + δ)·(1 + a·(T − 25 °C)) with δ its
-tolerance deviation and a its temperature coefficient, anywhere within ±TCR.
+Temperature: a part's resistance is R·(1 + δ)·(1 + a·(T − 25 °C + ΔT)) with δ its
+tolerance deviation, a its temperature coefficient, anywhere within ±TCR, and ΔT
+= P·Rθ its self-heating rise at the nominal operating point (first order, see
+:mod:`synth.spread.heating`; zero when its package has no thermal resistance).
+Each target's RSS drift terms are split into the ambient's and the self-heating's
+part (:attr:`TargetSpread.self_heating_terms`).
 A controlled source with a gain range (a transistor's β from least to
 greatest) varies over that range; Monte Carlo draws it uniformly within it.
 
@@ -45,6 +49,7 @@ import numpy as np
 from synth.circuit.measure import Evaluator
 from synth.design.model import Design
 from synth.spread.common_mode import corner_of, scan_common_mode
+from synth.spread.heating import part_rises, self_heating_note
 from synth.spread.monte_carlo import (
     ShardMap,
     block_size,
@@ -107,9 +112,10 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
     parts0 = (ev.part_values(r0[None, :])[0] if part_values is None
               else np.asarray(part_values, dtype=float))
     src = ev.nominal_sources
-    var = SpreadVariables(design, ev)
-    n = len(var)
     nominal = ev.evaluate(r0[None, :], part_values=parts0[None, :])
+    rises = part_rises(design, ev, nominal.part_power[0])
+    var = SpreadVariables(design, ev, rise_c=rises)
+    n = len(var)
     nominal_targets = nominal.targets[0]
 
     # sensitivities by central differences, in blocks whose memory stays bounded
@@ -187,6 +193,10 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
                                       posinf=np.inf) if n else np.zeros(0)
             drift_terms = np.nan_to_num((slope[:, j] * var.drift) ** 2, nan=0.0,
                                         posinf=np.inf) if n else np.zeros(0)
+            # the self-heating part of each drift term: the drift over the part's own
+            # temperature range less the drift over the ambient range alone
+            heat_terms = np.nan_to_num(slope[:, j] ** 2 * (var.drift ** 2 - var.ambient_drift ** 2),
+                                       nan=0.0, posinf=np.inf) if n else np.zeros(0)
         terms = {name: (float(tol_terms[i]), float(drift_terms[i]))
                  for i, name in enumerate(var.names)}
         targets.append(TargetSpread(
@@ -198,12 +208,14 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
             sensitivities={name: float(sens[i, j]) for i, name in enumerate(var.names)},
             mc_mean=None, mc_std=None, mc_values=None, inside=None, rss_abs=rss_abs,
             rss_terms=terms,
+            self_heating_terms={name: float(heat_terms[i]) for i, name in enumerate(var.names)},
             noise=float(max(np.max(solved_noise[:, j], initial=0.0),
                             nominal.target_noise[0, j])),
         ))
 
     parts = (scan.parts if scan is not None
              else part_spread(design, ev, var, bits if exact else None, vertices, nominal, p_v))
+    parts = [replace(p, temperature_rise_c=float(rises[c])) for c, p in enumerate(parts)]
     targets = _with_power_peaks(design, ev, targets, parts)
     if design.points:
         parts = worst_point_parts(parts)
@@ -222,7 +234,8 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
     return SpreadResult(variables=var.names, targets=tuple(targets), parts=tuple(parts),
                         yield_fraction=yield_fraction, settings=settings,
                         temperature_c=design.temperature_c, yield_interval=interval,
-                        samples_run=run, shards=shards, samples_kept=kept)
+                        samples_run=run, shards=shards, samples_kept=kept,
+                        self_heating_note=self_heating_note(design))
 
 
 def _with_power_peaks(design: Design, ev: Evaluator, targets: list[TargetSpread],

@@ -116,9 +116,10 @@ def run_shard(work: ShardWork, shard: int) -> SampleTally:
 
     Each physical part draws its own tolerance deviation and temperature
     coefficient; the ambient is drawn once per sample over the design's
-    temperature range.  A sample passes when every target lies in its window
-    and every physical part stays within its allowance (taken at the design's
-    hottest ambient, as everywhere; see :mod:`synth.rating`).
+    temperature range, and each part's TCR acts on that ambient plus its own
+    self-heating rise (:mod:`synth.spread.heating`).  A sample passes when every
+    target lies in its window and every physical part stays within its allowance
+    (taken at the design's hottest ambient, as everywhere; see :mod:`synth.rating`).
     """
     design, ev, var, settings = work.design, work.evaluator, work.variables, work.settings
     rng = np.random.default_rng(shard_seed(settings.seed, shard))
@@ -150,9 +151,15 @@ def run_shard(work: ShardWork, shard: int) -> SampleTally:
             factors[:, column] = rng.uniform(var.low[column], var.high[column], m)
         if len(var):
             # each part's temperature coefficient lies within its ±TCR (a normal spread
-            # reads the TCR limit as 3σ, like a tolerance)
+            # reads the TCR limit as 3σ, like a tolerance); it acts on the part's own
+            # temperature, the ambient plus its self-heating rise
             drift = draw(m, var.tcr)
-            drift *= (temperature - REFERENCE_C)[:, None]
+            coefficient = drift.copy() if var.heat_links else drift
+            drift *= (temperature - REFERENCE_C)[:, None] + var.rise_c
+            for own, common, offset in var.heat_links:
+                # an array member heating apart from its array's mean: the array's one
+                # coefficient acts on the difference too
+                drift[:, own] += coefficient[:, common] * offset
             drift += 1.0
             factors *= drift
         r, p, s = var.apply(factors, work.parts0, work.sources)

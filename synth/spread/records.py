@@ -5,6 +5,7 @@ from __future__ import annotations
 
 __all__ = ["PartSpread", "SampleHistogram", "SpreadResult", "SpreadSettings", "TargetSpread"]
 
+import math
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -171,6 +172,11 @@ class TargetSpread:
     mc_histogram : SampleHistogram or None
         Every Monte Carlo sample's count in fixed bins (None without samples), from which
         quantiles are read within one bin width.
+    self_heating_terms : dict of str to float
+        Each varying quantity's self-heating part of its temperature-drift term of
+        ``rss_terms``, in the target's unit squared: the target's slope squared times the
+        difference of the squared drift half-widths over the part's own temperature range
+        and over the ambient range alone (zero for sources and for parts that do not heat).
     """
 
     label: str
@@ -194,6 +200,52 @@ class TargetSpread:
     noise: float = 0.0
     method: str = "vertices"
     mc_histogram: SampleHistogram | None = None
+    self_heating_terms: dict[str, float] = field(default_factory=dict)
+
+    @property
+    def drift_rss_abs(self) -> float:
+        """Root-sum-square of the temperature-drift terms alone, in the target's unit.
+
+        Examples
+        --------
+        >>> t = TargetSpread("out", 5.0, 5.0, 4.9, 5.1, {}, {}, True, 0.01, {}, None, None,
+        ...                  None, None, rss_terms={"R1": (0.0, 9e-4), "R2": (0.0, 16e-4)},
+        ...                  self_heating_terms={"R1": 0.0, "R2": 7e-4})
+        >>> round(t.drift_rss_abs, 6), round(t.ambient_drift_rss_abs, 6)
+        (0.05, 0.042426)
+        >>> round(t.self_heating_share_of_drift, 4)
+        0.28
+        """
+        return math.sqrt(max(sum(d for _, d in self.rss_terms.values()), 0.0))
+
+    @property
+    def ambient_drift_rss_abs(self) -> float:
+        """The drift root-sum-square over the ambient range alone (no self-heating), target unit."""
+        drift = sum(d for _, d in self.rss_terms.values())
+        return math.sqrt(max(drift - sum(self.self_heating_terms.values()), 0.0))
+
+    @property
+    def self_heating_share_of_drift(self) -> float | None:
+        """Self-heating's share of the temperature-drift variance (0 to 1); None without drift.
+
+        Notes
+        -----
+        Variances of independent terms add (JCGM 100:2008, eq. 10), so the part of each
+        drift term that the rise adds, summed, over the drift terms' sum is its share.
+        """
+        drift = sum(d for _, d in self.rss_terms.values())
+        if not drift > 0 or not math.isfinite(drift):
+            return None
+        return sum(self.self_heating_terms.values()) / drift
+
+    @property
+    def self_heating_share_of_rss(self) -> float | None:
+        """Self-heating's share of the whole root-sum-square variance (0 to 1); None when
+        nothing varies the target."""
+        total = sum(t + d for t, d in self.rss_terms.values())
+        if not total > 0 or not math.isfinite(total):
+            return None
+        return sum(self.self_heating_terms.values()) / total
 
     def variance_shares(self) -> dict[str, float]:
         """Each varying quantity's share of the root-sum-square variance (they add up to 1).
@@ -250,6 +302,10 @@ class PartSpread:
         In a design of operating points: the point of the part's largest
         worst-case dissipation (its worst voltage is the largest over every
         point); None without points.
+    temperature_rise_c : float
+        The part's self-heating rise P·Rθ at the nominal operating point, K (the
+        largest over the operating points; 0 when its package has no thermal
+        resistance).
     """
 
     ref: str
@@ -261,6 +317,7 @@ class PartSpread:
     worst_voltage: float
     allowed_voltage: float | None = None
     point: str | None = None
+    temperature_rise_c: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -295,6 +352,9 @@ class SpreadResult:
     samples_kept : int
         Samples kept per target (``TargetSpread.mc_values``): 0 unless
         ``settings.keep_samples``.
+    self_heating_note : str or None
+        Why the spread holds no self-heating (no part has a package with a thermal
+        resistance); None when it does (:mod:`synth.spread.heating`).
     """
 
     variables: tuple[str, ...]
@@ -308,6 +368,7 @@ class SpreadResult:
     samples_cut: str | None = None
     shards: int | None = None
     samples_kept: int = 0
+    self_heating_note: str | None = None
 
     @property
     def worst_error(self) -> float:

@@ -13,9 +13,7 @@ import numpy as np
 from synth.circuit.measure import Evaluator, SourceValues
 from synth.design.model import Design
 from synth.rating import exceeds, falls_short
-
-REFERENCE_C = 25.0
-"""Temperature at which nominal values hold, °C (the usual TCR reference)."""
+from synth.spread.heating import REFERENCE_C, drift_half_width
 
 
 class SpreadVariables:
@@ -33,11 +31,23 @@ class SpreadVariables:
     variable named after it (±(A − ρ/2) and ±(TCR − τ/2)), kind ``("array",
     index)``; a member's factor is ``1 + (own - 1) + (common - 1)``: the two
     deviations add.
+
+    A part's TCR drift is taken over its own temperature: the ambient range
+    shifted up by its self-heating rise ``rise_c`` (``(parts,)`` K, by part
+    column; none by default), see :mod:`synth.spread.heating`.  An array's common
+    coefficient acts on its members' mean rise, and a member's difference from that
+    mean, times the common TCR, widens the member's own drift (a box holding the true
+    set, so the worst case stays a bound): members heating alike drift their ratio by
+    their own tracking share only.
     """
 
-    def __init__(self, design: Design, evaluator: Evaluator):
+    def __init__(self, design: Design, evaluator: Evaluator,
+                 rise_c: np.ndarray | None = None):
         low_c, high_c = design.temperature_c
         self.span_c = max(abs(low_c - REFERENCE_C), abs(high_c - REFERENCE_C))
+        rises = (np.zeros(len(design.part_refs)) if rise_c is None
+                 else np.asarray(rise_c, dtype=float))
+        rise: list[float] = []
         self.evaluator = evaluator
         names: list[str] = []
         low: list[float] = []
@@ -53,6 +63,8 @@ class SpreadVariables:
         copies: list[tuple[str, str, int]] = []
         arrays = {a.name: a for a in design.arrays}
         members: list[tuple[str, int]] = []  # (array, part column) of every member's part
+        mean_rise = {a.name: _mean_rise(design, evaluator, rises, a.name) for a in design.arrays}
+        links: list[tuple[int, str, float]] = []  # (own column, array, rise - its mean rise)
         column = 0
         for r in design.resistors:
             own_tolerance, own_tcr = r.tolerance, r.tcr
@@ -60,7 +72,6 @@ class SpreadVariables:
                 own_tolerance = arrays[r.array].member_tolerance
                 own_tcr = arrays[r.array].member_tcr
                 members.append((r.array, column))
-            d = own_tcr * self.span_c
             if r.copy_of is not None:
                 leader = next(x for x in design.resistors if x.ref == r.copy_of)
                 for ref, own in zip(leader.part_refs, range(column, column + r.position.count),
@@ -69,7 +80,16 @@ class SpreadVariables:
                 column += r.position.count
                 continue
             for ref in r.part_refs:
+                d = float(drift_half_width(own_tcr, rises[column], design.temperature_c))
+                offset = 0.0
+                if r.array is not None:
+                    # the common coefficient acts on the array's mean rise; this member's
+                    # difference from it joins the member's own drift
+                    offset = float(rises[column]) - mean_rise[r.array]
+                    d += arrays[r.array].common_tcr * abs(offset)
                 if own_tolerance != 0 or d != 0:
+                    if offset and r.array is not None:
+                        links.append((len(names), r.array, offset))
                     leader_of[("part", ref)] = len(names)
                     names.append(ref)
                     low.append((1 - own_tolerance) * (1 - d))
@@ -77,6 +97,7 @@ class SpreadVariables:
                     tol.append(own_tolerance)
                     drift.append(d)
                     tcr.append(own_tcr)
+                    rise.append(float(rises[column]))
                     self.kind.append(("part", column))
                 column += 1
         groups: tuple[tuple[str, list[Any]], ...] = (
@@ -98,6 +119,7 @@ class SpreadVariables:
             tol.append((c.gain_high - c.gain_low) / (2 * abs(c.gain)))
             drift.append(0.0)
             tcr.append(0.0)
+            rise.append(0.0)
             self.kind.append(("gain", k))
         self.offset: dict[int, float] = {}
         """Variable column -> half-width (V or A) of an absolutely toleranced source: its
@@ -127,15 +149,19 @@ class SpreadVariables:
                     tol.append(item.tolerance)
                 drift.append(0.0)
                 tcr.append(0.0)
+                rise.append(0.0)
                 self.kind.append((group, k))
         self.common_of: dict[int, int] = {}
         """Part column of every matched array member -> its array's common variable column:
         the member's factor is its own plus the common one's deviation (see :meth:`apply`)."""
+        common_column: dict[str, int] = {}
         for k, array in enumerate(design.arrays):
-            d = array.common_tcr * self.span_c
+            d = float(drift_half_width(array.common_tcr, mean_rise[array.name],
+                                       design.temperature_c))
             if array.common_tolerance == 0 and d == 0:
                 continue
-            common = len(names)
+            common = common_column[array.name] = len(names)
+            rise.append(mean_rise[array.name])
             names.append(array.name)
             low.append((1 - array.common_tolerance) * (1 - d))
             high.append((1 + array.common_tolerance) * (1 + d))
@@ -148,11 +174,22 @@ class SpreadVariables:
         for group, physical, k in copies:
             if (group, physical) in leader_of:
                 self.tied.append((group, k, leader_of[(group, physical)]))
+        self.heat_links = [(own, common_column[name], offset) for own, name, offset in links
+                           if name in common_column]
+        """``(own column, common column, K)``: a matched array member whose rise differs from
+        its array's mean rise by K; the common coefficient times K adds to its own drift (the
+        Monte Carlo adds it exactly, with the one coefficient drawn for the array)."""
         self.names = tuple(names)
         self.low, self.high = np.array(low), np.array(high)
         self.tolerance, self.drift = np.array(tol), np.array(drift)
         self.tcr = np.array(tcr)
         """Temperature coefficient of each variable, 1/K (0 for sources and gains)."""
+        self.rise_c = np.array(rise)
+        """Self-heating rise of each variable's part at the nominal operating point, K (0 for
+        sources and gains)."""
+        self.ambient_drift = self.tcr * self.span_c
+        """Each variable's TCR drift half-width over the ambient range alone (no
+        self-heating), relative."""
 
     def __len__(self) -> int:
         return len(self.names)
@@ -221,6 +258,14 @@ class SpreadVariables:
         return (self.evaluator.effective(parts), parts,
                 SourceValues(values["voltage"], values["current"], values["setpoint"],
                              values["gain"] if src.gains is not None else None))
+
+
+def _mean_rise(design: Design, evaluator: Evaluator, rises: np.ndarray, array: str) -> float:
+    """The mean self-heating rise of a matched array's member parts, K."""
+    columns = [c for k, r in enumerate(design.resistors)
+               if r.array == array and r.copy_of is None
+               for c in range(evaluator.part_columns[k].start, evaluator.part_columns[k].stop)]
+    return float(np.mean(rises[columns])) if columns else 0.0
 
 
 def box_corners(n: int) -> np.ndarray:

@@ -334,16 +334,19 @@ def test_sensitivity_corner_values_are_attained_in_the_box():
     # the reported worst value is the solve at the reported corner, a point of the box
     # [HB-bilinear]: re-solve that corner by the dense loop solve and compare
     from synth.circuit.measure import Evaluator
+    from synth.spread.heating import part_rises
     from synth.spread.variables import SpreadVariables
 
     design = _grid(80)
     spread = analyse_spread(design, settings=SpreadSettings(samples=0))
     ev = Evaluator(design)
-    var = SpreadVariables(design, ev)
+    parts0 = np.array([r.value for r in design.resistors])
+    # the box of the parts' own temperatures: each drift over its self-heating rise too
+    nominal = ev.evaluate(parts0[None, :], part_values=parts0[None, :])
+    var = SpreadVariables(design, ev, rise_c=part_rises(design, ev, nominal.part_power[0]))
     target = spread.targets[0]
     factors = np.array([[var.high[i] if target.low_corner[name] == "+" else var.low[i]
                          for i, name in enumerate(var.names)]])
-    parts0 = np.array([r.value for r in design.resistors])
     r, p, s = var.apply(factors, parts0, ev.nominal_sources)
     dense = Evaluator(design)
     from synth.circuit.mesh import MeshSolver
