@@ -194,3 +194,69 @@ def test_operating_points_take_the_largest_rise():
     assert {p.ref: p.temperature_rise_c for p in spread.parts} == {"RS": pytest.approx(34.0)}
     assert spread.targets[0].worst_high == pytest.approx(0.2 * (1 + 100e-6 * 34), rel=1e-9)
     assert np.isfinite(spread.targets[0].rss)
+
+
+def matched(r1, r2, package="0603"):
+    """A divider of one matched array's two members, coefficients tracking exactly (τ = 0):
+    the common coefficient lies within ±25 ppm/K, the members' own within ±0 [CP-matched-array]."""
+    data = {
+        "design": {"temperature": ["25 C", "25 C"]},
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "value": "10 V"}],
+        "resistor": [{"ref": "R1", "nodes": ["in", "out"], "value": r1, "array": "RN1"},
+                     {"ref": "R2", "nodes": ["out", "gnd"], "value": r2, "array": "RN1"}],
+        "target": [{"name": "k", "ratio": [["out", "gnd"], ["in", "gnd"]],
+                    "equals": 0.5},
+                   {"current": "R1", "equals": "5 mA"}],
+        "array": [{"name": "RN1", "tolerance": "0.1%", "ratio_tolerance": "0.02%",
+                   "tcr": "25 ppm/C", "tcr_tracking": "0 ppm/C"}],
+    }
+    if package:
+        data["array"][0]["package"] = package
+    return design_from_dict(data)
+
+
+def test_matched_members_heating_alike_keep_their_ratio():
+    # 1k and 1k from 10 V: 25 mW each, 21.25 K each on 850 K/W [HB-self-heating]; one
+    # coefficient a for both: Δk/k = (1 - k)·a·(ΔT2 - ΔT1) = 0 [HB-self-heating]
+    heated = analyse_spread(matched("1k", "1k"), settings=NO_MC)
+    cold = analyse_spread(matched("1k", "1k", package=None), settings=NO_MC)
+    assert [p.temperature_rise_c for p in heated.parts] == pytest.approx([21.25, 21.25])
+    k, k_cold = heated.targets[0], cold.targets[0]
+    # (the unequal case below gives 1.2e-9; what is left here is rounding of the slopes)
+    assert sum(k.self_heating_terms.values()) == pytest.approx(0.0, abs=1e-20)
+    # the worst case moves only by the second-order product of the members' own ratio
+    # deviation and the common drift, ρ/2 x 25 ppm/K x 21.25 K ~ 5e-8 (the unequal case
+    # below widens by 5e-5)
+    assert (k.worst_low, k.worst_high) == pytest.approx((k_cold.worst_low, k_cold.worst_high),
+                                                        abs=1e-7)
+    # the current sees the common coefficient over the mean rise: I = 10 V / 2k = 5 mA,
+    # ∂I/∂c = -I, drift 25 ppm/K x 21.25 K [HB-self-heating], [GUM-propagation]
+    current = heated.targets[1]
+    assert current.self_heating_terms["RN1"] == pytest.approx((5e-3 * 25e-6 * 21.25) ** 2,
+                                                              rel=1e-5)
+
+
+def test_matched_members_heating_apart_drift_their_ratio_by_hand():
+    # 3k over 1k from 10 V: 2.5 mA, 18.75 mW and 6.25 mW [HB-ohm], 15.9375 K and 5.3125 K
+    # on 850 K/W; k = 1/4, Δk = k(1 - k)·a·(ΔT2 - ΔT1) = 0.1875 x a x (-10.625 K)
+    # [HB-self-heating], a within ±25 ppm/K (τ = 0: all of the TCR is common)
+    design = matched("3k", "1k")
+    k = analyse_spread(design, settings=NO_MC).targets[0]
+    cold = analyse_spread(matched("3k", "1k", package=None), settings=NO_MC).targets[0]
+    # the worst case widens by the self-heating ratio drift, 0.1875 x 25e-6 x 10.625
+    extra = 0.1875 * 25e-6 * 10.625
+    assert k.worst_high - cold.worst_high == pytest.approx(extra, rel=2e-3)
+    assert cold.worst_low - k.worst_low == pytest.approx(extra, rel=2e-3)
+    # RSS: each member's own drift widens by 25 ppm/K x 5.3125 K (its distance from the
+    # mean rise), slope ±k(1 - k) = ±0.1875 [HB-divider]
+    member = (0.1875 * 25e-6 * 5.3125) ** 2
+    assert k.self_heating_terms["R1"] == pytest.approx(member, rel=1e-5)
+    assert k.self_heating_terms["R2"] == pytest.approx(member, rel=1e-5)
+    # Monte Carlo draws the one coefficient: σ of the self-heating part 0.1875 x 10.625 K x
+    # 25e-6/√3, with the own ratio parts (±1e-4 each, uniform) 0.1875 x √2 x 1e-4/√3
+    # [CP-sigma], [GUM-covariance]
+    sampled = analyse_spread(design, settings=SpreadSettings(samples=200_000, seed=5))
+    heat = 0.1875 * 10.625 * 25e-6 / math.sqrt(3)
+    own = 0.1875 * math.sqrt(2) * 1e-4 / math.sqrt(3)
+    assert sampled.targets[0].mc_std == pytest.approx(math.hypot(heat, own), rel=0.01)
