@@ -23,6 +23,7 @@ from synth.cautions import power_cautions, voltage_cautions
 from synth.circuit.measure import Evaluation, Evaluator
 from synth.circuit.nodal import nodal_solve
 from synth.circuit.solution import solution_difference
+from synth.deadline import Deadline
 from synth.design.model import Design
 from synth.design.points import point_label
 from synth.errors import DesignError, name_list, nearest_name
@@ -32,8 +33,9 @@ from synth.rating import exceeds, falls_short, use_of
 from synth.results import CheckResult, PartReport, Problem, TargetReport
 from synth.search.ideal import ideal_values
 from synth.spread.analyse import analyse_spread
+from synth.spread.fit import fitted_run
 from synth.spread.records import SpreadResult, SpreadSettings
-from synth.spread.shard_map import process_shards
+from synth.spread.shard_map import POOL_START_S, process_shards
 
 
 def target_reports(design: Design, values: np.ndarray, noise: np.ndarray | None = None
@@ -338,7 +340,8 @@ def check_block(design: Design, evaluator: Evaluator, positions: np.ndarray,
 
 def check(design: Design, *, values: Mapping[str, float] | None = None,
           verify: bool = False, fill_ideal: bool = True,
-          spread: SpreadSettings | None = None, jobs: int = 1) -> CheckResult:
+          spread: SpreadSettings | None = None, jobs: int = 1,
+          time_limit_s: float | None = None, deadline: Deadline | None = None) -> CheckResult:
     """Analyse a design whose resistor values are all known.
 
     Parameters
@@ -362,6 +365,14 @@ def check(design: Design, *, values: Mapping[str, float] | None = None,
         Most processes the Monte Carlo's seeded shards may use
         (:func:`synth.spread.shard_map.process_shards`); 1 (the default) runs them
         in this process.  The figures do not depend on it.
+    time_limit_s : float, optional
+        Seconds the call may take: the Monte Carlo is shrunk to the samples that fit
+        (:func:`synth.spread.fit.fitted_run`; at least its first pilot's, 1,000, run),
+        and a shortened run says so (``samples_run`` below the asked ``samples``,
+        ``samples_cut = "time limit"``).
+    deadline : Deadline, optional
+        A deadline already running (a command's, started before this call); built from
+        ``time_limit_s`` when not given.
 
     Returns
     -------
@@ -393,6 +404,9 @@ def check(design: Design, *, values: Mapping[str, float] | None = None,
     element voltage times the voltage use limit (80 %); see :mod:`synth.rating`.
     """
     check_jobs(jobs)
+    if time_limit_s is not None and not time_limit_s > 0:
+        raise DesignError(f"time limit {time_limit_s!r} s must be a positive number of seconds")
+    deadline = deadline or Deadline(time_limit_s)
     given = dict(values or {})
     filled: dict[str, float] = {}
     missing = [p.ref for p in design.resistors
@@ -418,12 +432,29 @@ def check(design: Design, *, values: Mapping[str, float] | None = None,
     if spread is None and design.require != "nominal":
         spread = SpreadSettings(samples=0) if design.require == "worst-case" else SpreadSettings()
     if spread is not None:
-        spread_result = analyse_spread(design, result.positions, spread, ev,
-                                       part_values=parts,
-                                       map_shards=process_shards(jobs) if jobs > 1 else None)
+        spread_result = _spread(design, ev, result.positions, parts, spread, jobs, deadline)
     problems = result.problems + required_problems(design, spread_result)
     return CheckResult(**{**result.__dict__, "verify_difference": difference,
                           "filled": filled, "spread": spread_result, "problems": problems})
+
+
+def _spread(design: Design, ev: Evaluator, positions: dict[str, float], parts: np.ndarray,
+            settings: SpreadSettings, jobs: int, deadline: Deadline) -> SpreadResult:
+    """The spread, its Monte Carlo shrunk to fit what is left of ``deadline`` (at least
+    the first pilot's samples run, so that a yield is always measured)."""
+
+    def run(samples: int, final: bool) -> SpreadResult:
+        return analyse_spread(design, positions, replace(settings, samples=samples), ev,
+                              part_values=parts,
+                              map_shards=process_shards(jobs) if final and jobs > 1 else None)
+
+    if not deadline.limited:
+        return run(settings.samples, True)
+    spread, samples = fitted_run(run, settings.samples, max(deadline.remaining(), 1e-9),
+                                 deadline.elapsed, reserve_s=POOL_START_S if jobs > 1 else 0.0)
+    if samples >= settings.samples:
+        return spread
+    return replace(spread, settings=settings, samples_cut="time limit")
 
 
 def required_problems(design: Design, spread: SpreadResult | None) -> tuple[Problem, ...]:

@@ -37,8 +37,9 @@ from synth.search.parallel import search
 from synth.search.problem import SearchProblem
 from synth.search.ranking import TIE_TOLERANCE
 from synth.spread.analyse import analyse_spread
+from synth.spread.fit import fitted_run
 from synth.spread.records import SpreadSettings
-from synth.spread.shard_map import process_shards
+from synth.spread.shard_map import POOL_START_S, process_shards
 from synth.spread.worst_case import WorstCase
 
 _GRID_UP_TO = 12
@@ -272,43 +273,38 @@ def _spread_of(design: Design, evaluator: Evaluator, candidate: Candidate,
         map_shards=process_shards(jobs) if jobs > 1 else None))
 
 
-PILOT_SAMPLES = 1000
-"""Monte Carlo samples of the pilot run that measures a sample's cost under a time limit."""
-
-
 def _fitted_spread(design: Design, evaluator: Evaluator, candidate: Candidate,
                    settings: SpreadSettings, seconds: float, deadline: Deadline,
                    jobs: int = 1) -> Candidate:
     """The candidate's spread with its Monte Carlo shrunk to fit ``seconds``.
 
-    A pilot of :data:`PILOT_SAMPLES` samples measures the cost of a sample
-    (the pilot's whole time over its samples: an overestimate, as it also
-    holds the worst case); the samples that fit are run, at most those
-    asked.  A shortened run keeps the asked count in its settings and says
-    how many ran; the cut is recorded on ``deadline``.  The pilot runs in this
-    process; the run fitted after it may spread its shards over ``jobs`` processes
-    (:func:`synth.spread.shard_map.process_shards`), which only makes it end sooner.
+    Pilot runs measure the cost of a sample and the samples that fit are run, at most
+    those asked (:func:`synth.spread.fit.fitted_run`).  A shortened run keeps the asked
+    count in its settings and says how many ran; the cut is recorded on ``deadline``.
+    The pilots run in this process; the run fitted after them may spread its shards
+    over ``jobs`` processes (:func:`synth.spread.shard_map.process_shards`), which only
+    makes it end sooner.
     """
     asked = settings.samples
-    if asked <= PILOT_SAMPLES or not deadline.limited:
+    if not deadline.limited:
         return _spread_of(design, evaluator, candidate, settings, jobs)
-    if seconds <= 0:
-        spread = _spread_of(design, evaluator, candidate, replace(settings, samples=0))
+
+    def run(samples: int, final: bool) -> Candidate:
+        return _spread_of(design, evaluator, candidate, replace(settings, samples=samples),
+                          jobs if final else 1)
+
+    kept, samples = fitted_run(run, asked, seconds, deadline.elapsed,
+                               reserve_s=POOL_START_S if jobs > 1 else 0.0)
+    if samples >= asked:
+        return kept
+    if samples == 0:
         deadline.cut("Monte Carlo", f"skipped: 0 of {asked:,} samples run", asked=asked,
                      done=0)
-        return spread
-    began = deadline.elapsed()
-    pilot = _spread_of(design, evaluator, candidate, replace(settings, samples=PILOT_SAMPLES))
-    per_sample = max(deadline.elapsed() - began, 1e-9) / PILOT_SAMPLES
-    fit = int(max(seconds - (deadline.elapsed() - began), 0.0) / per_sample)
-    if fit >= asked:
-        return _spread_of(design, evaluator, candidate, settings, jobs)
-    kept = pilot if fit <= PILOT_SAMPLES else _spread_of(design, evaluator, candidate,
-                                                         replace(settings, samples=fit), jobs)
+        return kept
     assert kept.spread is not None
-    run = kept.spread.samples_run or 0
-    deadline.cut("Monte Carlo", f"{asked:,} samples asked, {run:,} run to fit the time "
-                 "limit; the yield interval is that of the samples run", asked=asked, done=run)
+    ran = kept.spread.samples_run or 0
+    deadline.cut("Monte Carlo", f"{asked:,} samples asked, {ran:,} run to fit the time "
+                 "limit; the yield interval is that of the samples run", asked=asked, done=ran)
     return replace(kept, spread=replace(kept.spread, settings=settings, samples_cut="time limit"))
 
 

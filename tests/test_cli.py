@@ -244,6 +244,11 @@ def test_save_into_a_missing_folder_exits_two(tmp_path):
 @pytest.mark.parametrize(("args", "fragment"), [
     (("design", str(PROBE), "--top", "0"), "--top 0 must be at least 1"),
     (("check", str(PROBE), "--samples", "-1"), "--samples -1 must be 0"),
+    (("check", str(PROBE), "--samples", "10000000001"),
+     "--samples 10000000001 must be 0 (no Monte Carlo) to 10,000,000,000"),
+    (("design", str(PROBE), "--samples", "10000000001", "--time-limit", "1"),
+     "--samples 10000000001 must be 0 (no Monte Carlo) to 10,000,000,000"),
+    (("check", str(PROBE), "--time-limit", "0"), "--time-limit 0.0 must be a positive number"),
     (("design", str(PROBE), "--rank-by", "cost"), "'cost' is not one of"),
 ])
 def test_search_and_spread_options_refused(args, fragment):
@@ -313,3 +318,26 @@ def test_quick_commands_refuse_bad_options(args, fragment):
     result = run(*args)
     assert result.exit_code == 2, result.output
     assert fragment in result.output + result.stderr and "Traceback" not in result.stderr
+
+
+@pytest.mark.parametrize("command", ["check", "design"])
+def test_ten_billion_samples_shrink_to_fit_the_time_limit_and_say_so(command):
+    # the time limit has passed by the time the Monte Carlo starts: its first pilot's
+    # 1,000 samples (check) or none (design) run, and the output says how many of how many
+    args = (command, str(PROBE), "--samples", "10000000000", "--time-limit", "1e-6")
+    result = run(*args, *(["--quiet"] if command == "design" else []))
+    assert result.exit_code in (0, 1), result.output + result.stderr
+    ran = "1,000" if command == "check" else "0"
+    note = (f"note: Monte Carlo cut from 10,000,000,000 to {ran} samples to fit the time "
+            "limit" if command == "check" else
+            "Monte Carlo: skipped: 0 of 10,000,000,000 samples run")
+    assert note in result.output
+    doc = json.loads(run(*args, "--json", *(["--quiet"] if command == "design" else [])).stdout)
+    if command == "check":
+        spread = doc["spread"]
+        assert spread["samples"] == 10_000_000_000
+        assert (spread["samples_run"], spread["samples_cut"]) == (1000, "time limit")
+    else:
+        assert {"stage": "Monte Carlo", "asked": 10_000_000_000, "done": 0} == {
+            k: v for k, v in next(c for c in doc["cuts"] if c["stage"] == "Monte Carlo"
+                                  ).items() if k != "note"}

@@ -101,12 +101,15 @@ def series_command(name: str, span: Range, nearest: Given | None, as_json: bool)
 @click.option("--json", "as_json", is_flag=True, help="Print the results as JSON.")
 @click.option("--verify", is_flag=True,
               help="Also solve by nodal analysis and report the largest difference.")
+@click.option("--time-limit", type=float, default=None, metavar="SECONDS",
+              help="Wall-clock limit of the whole check: the Monte Carlo is shrunk to the "
+                   "samples that fit (at least 1,000), and the output says how many ran.")
 @spread_options
 @_FORCE_PLOTS
 @jobs_option
 @friendly
-def check_command(design_file: str, as_json: bool, verify: bool, spread: SpreadOptions,
-                  force: bool, jobs: int) -> None:
+def check_command(design_file: str, as_json: bool, verify: bool, time_limit: float | None,
+                  spread: SpreadOptions, force: bool, jobs: int) -> None:
     """Analyse a design whose values are all given.
 
     Prints node voltages, each part's current, dissipation and use of its
@@ -115,12 +118,15 @@ def check_command(design_file: str, as_json: bool, verify: bool, spread: SpreadO
     design from standard input.
     """
     from synth.checking import check
+    from synth.deadline import Deadline, command_start
     from synth.report.check import check_json, check_text
 
+    check_time_limit(time_limit)
     check_plot_folder(spread.plots)
     settings = spread.settings()
     design = read_design(design_file)
-    result = check(design, verify=verify, spread=settings, jobs=jobs)
+    result = check(design, verify=verify, spread=settings, jobs=jobs,
+                   deadline=Deadline(time_limit, start=command_start()))
     written = []
     if spread.plots:
         from synth.report.plots import check_pictures

@@ -147,7 +147,10 @@ def option_group(record: type, options: Sequence[Callable[[F], F]],
     return decorate
 
 
-MAX_SAMPLES = 10_000_000  # Monte Carlo samples a run may ask for
+MAX_SAMPLES = 10_000_000_000
+"""Monte Carlo samples a run may ask for.  The Monte Carlo streams its figures, so its
+memory does not grow with the count; its time does (about 3e6 samples a second on a
+small network, one core): ``--time-limit`` shrinks a run to the samples that fit."""
 
 
 def _processes(ctx: click.Context, param: click.Parameter, value: str | None) -> int:

@@ -11,7 +11,9 @@ most one wave of tallies whatever the sample count.
 
 from __future__ import annotations
 
-__all__ = ["PARALLEL_FROM_S", "SHARDS_PER_ITEM", "WAVE_ITEMS_PER_JOB", "process_shards"]
+__all__ = [
+    "PARALLEL_FROM_S", "POOL_START_S", "SHARDS_PER_ITEM", "WAVE_ITEMS_PER_JOB", "process_shards",
+]
 
 import time
 from collections.abc import Callable, Iterable, Iterator
@@ -29,6 +31,13 @@ costs what it costs here; with 2 workers the work left must then exceed about tw
 start-up, 0.9 s, to come out ahead (a divider: 0.04 s a shard of 2^18 samples, so about
 25 shards, 6.5e6 samples).  A pool already started by the search costs nothing more, but
 1 s keeps small runs in this process either way."""
+
+POOL_START_S = 1.0
+"""Seconds a time-limited Monte Carlo keeps back when it may go to worker processes
+(:func:`synth.spread.fit.fitted_run`'s ``reserve_s``): the pool's start-up and the first
+pickling of the work, which its in-process pilots do not time.  Measured on a 2-core
+machine: 0.45 s idle, 1.6 s with 6 processes wanting its 2 cores (a time limit then
+still holds to within a few tenths of a second)."""
 
 SHARDS_PER_ITEM = 4
 """Shards a worker runs per item it is sent: the work (design and evaluator) is pickled
