@@ -213,11 +213,13 @@ def with_classes(design: Design, parts: tuple[Resistor, ...],
 
     def placed(resistor: Resistor) -> Resistor:
         kind = chosen.get(resistor.copy_of or resistor.ref)
-        if kind is None or not resistor.free:
+        if kind is None:
             return resistor
+        tcr = kind.tcr if kind.tcr is not None else resistor.tcr
+        if not resistor.free:  # a later operating point's copy: the same part, its value followed
+            return replace(resistor, tolerance=kind.tolerance, tcr=tcr)
         return replace(resistor, choose=kind.choose, stock_path=kind.stock_path,
-                       tolerance=kind.tolerance, tcr=kind.tcr if kind.tcr is not None
-                       else resistor.tcr)
+                       tolerance=kind.tolerance, tcr=tcr)
 
     single = design.single
     return replace(design, resistors=tuple(placed(r) for r in design.resistors),
@@ -225,10 +227,9 @@ def with_classes(design: Design, parts: tuple[Resistor, ...],
                        single, resistors=tuple(placed(r) for r in single.resistors)))
 
 
-def _worst_error(design: Design, spread: SpreadResult | None) -> float | None:
+def _worst_error(design: Design, spread: SpreadResult | None) -> float:
     """The largest worst-case objective term over the box (``equals`` targets)."""
-    if spread is None:
-        return None
+    assert spread is not None, "every search here analyses the best design's box"
     terms = [max(float(target.objective(t.worst_low)), float(target.objective(t.worst_high)))
              for target, t in zip(design.targets, spread.targets, strict=True)
              if target.equals is not None]

@@ -207,3 +207,65 @@ def test_the_cli_prints_the_front_and_the_tighten_table_and_json_carries_them(tm
                      encoding="utf-8")
     failed = CliRunner().invoke(cli, ["design", str(short), "--top", "1"])
     assert failed.exit_code == 1 and "no class assignment meets" in failed.output
+
+
+def test_a_yield_requirement_without_min_yield_is_refused():
+    with pytest.raises(DesignError, match='require = "yield" needs min_yield'):
+        choose_classes(_divider(("5%", "1%"), require="nominal"), require="yield")
+
+
+def test_a_value_search_left_unfinished_leaves_the_least_cost_unproven(monkeypatch):
+    import dataclasses
+
+    import synth.least_cost as least_cost
+
+    real = least_cost.synthesize
+
+    def unfinished(*args, **kwargs):
+        return dataclasses.replace(real(*args, **kwargs), proven_optimal=False)
+
+    monkeypatch.setattr(least_cost, "synthesize", unfinished)
+    choice = choose_classes(_divider(("5%", "1%"), "3%"), top=1)
+    assert choice.classes is not None and not choice.proven
+    assert choice.why_not_proven == "a value search was cut short or did not finish"
+
+
+def test_classes_from_a_stock_list_with_prices_choose_its_rows(tmp_path):
+    # a 12 V to 3.3 V divider from a shelf: the 1 % rows cannot hold 0.6 % over the box
+    # (2 x 1 % x (1 - 0.275) = 1.45 % [HB-divider]), the 0.1 % rows can, at their price
+    (tmp_path / "shelf.csv").write_text(
+        "value,tolerance,tcr,price\n"
+        "8.66k,1%,100,0.02\n3.3k,1%,100,0.02\n8.7k,1%,100,0.02\n"
+        "8.7k,0.1%,25,0.30\n3.3k,0.1%,25,0.25\n1k,0.1%,25,0.25\n", encoding="utf-8")
+    design = design_from_dict({
+        "design": {"require": "worst-case", "class_table": "shelf.csv",
+                   "classes": ["1%", "0.1%"]},
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "value": "12 V"}],
+        "resistor": [{"ref": "R1", "nodes": ["in", "out"], "range": ["2k", "20k"]},
+                     {"ref": "R2", "nodes": ["out", "gnd"], "range": ["2k", "20k"]}],
+        "target": [{"voltage": "out", "equals": "3.3 V", "within": "0.6%"}]},
+        origin=str(tmp_path / "probe.toml"))
+    choice = choose_classes(design, top=1)
+    assert choice.proven and choice.classes == {"R1": "0.1%", "R2": "0.1%"}
+    assert choice.cost == pytest.approx(0.60)  # each class costs its dearest row
+    values = choice.result.candidates[0].values
+    assert (values["R1"], values["R2"]) == (8700.0, 3300.0)  # 1k is outside the range
+
+
+def test_operating_point_copies_take_their_part_s_class():
+    design = design_from_dict({
+        "design": {"require": "worst-case", "classes": ["1%", "0.1%"]},
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "range": ["11 V", "13 V"]}],
+        "resistor": [{"ref": "R1", "nodes": ["in", "out"], "range": ["1k", "10k"]},
+                     {"ref": "R2", "nodes": ["out", "gnd"], "range": ["1k", "10k"]}],
+        "target": [{"voltage": "out", "at_least": "2.9 V", "at_most": "3.7 V"}]})
+    choice = choose_classes(design, top=1)
+    assert choice.proven and choice.classes == {"R1": "1%", "R2": "1%"}
+    from synth.least_cost import classed_positions, with_classes
+    parts = classed_positions(design)
+    tight = tuple(p.classes[1] for p in parts)
+    placed = with_classes(design, parts, tight)
+    assert {r.tolerance for r in placed.resistors} == {0.001}
+    assert {r.tolerance for r in placed.single.resistors} == {0.001}
