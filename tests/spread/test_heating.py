@@ -260,3 +260,26 @@ def test_matched_members_heating_apart_drift_their_ratio_by_hand():
     heat = 0.1875 * 10.625 * 25e-6 / math.sqrt(3)
     own = 0.1875 * math.sqrt(2) * 1e-4 / math.sqrt(3)
     assert sampled.targets[0].mc_std == pytest.approx(math.hypot(heat, own), rel=0.01)
+
+
+def test_bundled_bench_current_monitor_by_hand():
+    # 2 A through 50 mOhm: 0.1 V and 0.2 W [HB-ohm]; 2512 at 85 K/W: 17 K
+    # [CP-thermal-resistance]; over 15..40 °C the shunt runs 32..57 °C, at most 32 K from
+    # 25 °C against 15 K for the air alone: 75 ppm/K x 32 K = 0.24 % against 0.1125 %, and
+    # self-heating (32² - 15²)/32² = 78 % of the drift variance [HB-self-heating]
+    from conftest import ROOT
+
+    path = ROOT / "examples" / "bench_current_monitor.toml"
+    result = CliRunner().invoke(cli, ["check", str(path), "--json", "--samples", "0"])
+    assert result.exit_code in (0, 1), result.output
+    spread = json.loads(result.stdout)["spread"]
+    shunt_part = next(p for p in spread["parts"] if p["ref"] == "RS")
+    assert shunt_part["temperature_rise"] == pytest.approx(17.0, rel=1e-9)
+    reading = next(t for t in spread["targets"] if t["label"] == "shunt reading")
+    assert reading["drift_rss_abs"] == pytest.approx(0.1 * 75e-6 * 32, rel=1e-6)
+    assert reading["ambient_drift_rss_abs"] == pytest.approx(0.1 * 75e-6 * 15, rel=1e-6)
+    assert reading["self_heating_share_of_drift"] == pytest.approx(
+        (32 ** 2 - 15 ** 2) / 32 ** 2, rel=1e-6)
+    # the divider's parts heat apart, so self-heating moves the readback ratio too
+    ratio = next(t for t in spread["targets"] if t["label"] == "readback ratio")
+    assert ratio["self_heating_share_of_drift"] > 0.5
