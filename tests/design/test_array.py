@@ -134,3 +134,9 @@ def test_a_refused_array_exits_2_with_one_line(tmp_path):
     lines = result.stderr.strip().splitlines()
     assert len(lines) == 1 and "ratio_tolerance '0.5%' is larger than tolerance" in lines[0]
     assert "Traceback" not in result.output + result.stderr
+
+
+def test_a_member_listed_twice_or_also_marked_joins_once():
+    def edit(data: dict) -> None:
+        data["array"][0]["members"] = ["R1", "R1", "R2"]
+    assert design_from_dict(_changed(edit)).arrays[0].members == ("R1", "R2")

@@ -125,3 +125,35 @@ def test_a_members_factor_adds_its_own_and_the_common_deviation():
     assert parts[0] == pytest.approx([10e3 * 1.001, 10e3 * 1.0008], rel=1e-12)
     # the TCR splits like the tolerance: common ±(TCR - τ/2), own ±τ/2 (τ = 0 here)
     assert var.tcr == pytest.approx([0.0, 0.0, 20e-6])
+
+
+def _pair(tolerance: str, ratio: str, tcr: str, tracking: str) -> dict:
+    data = _divider(True)
+    data["design"]["temperature"] = ["25 C", "75 C"]
+    data["array"][0].update(tolerance=tolerance, ratio_tolerance=ratio, tcr=tcr,
+                            tcr_tracking=tracking)
+    return data
+
+
+def test_tcr_tracking_sets_the_ratio_drift():
+    # two members' coefficients differ by at most τ: over 50 K the ratio drifts by at most
+    # about τ·ΔT = 5 ppm/K × 50 K = 0.025 %, where independent ±0.1 %, 25 ppm/K parts give
+    # 2 × (0.1 % + 25 ppm/K × 50 K) = 0.45 % [CP-tcr] [CP-matched-array]
+    ratio = _spread(_pair("0%", "0%", "25 ppm/C", "5 ppm/C")).targets[1]
+    assert ratio.worst_high - 1 == pytest.approx(5e-6 * 50, rel=2e-3)
+    assert ratio.exact
+    independent = _spread(_divider(False, tcr="25 ppm/C") | {
+        "design": {"temperature": ["25 C", "75 C"]}}).targets[1]
+    assert independent.worst_high - 1 == pytest.approx(2 * (A + 25e-6 * 50), rel=5e-3)
+
+
+def test_members_without_a_ratio_tolerance_keep_their_ratio_exactly():
+    # ρ = τ = 0: the members move together only, so R1/R2 stays 1 [CP-matched-array]
+    spread = _spread(_pair("0.1%", "0%", "25 ppm/C", "0 ppm/C"))
+    assert spread.variables == ("RN1",)
+    ratio, k = spread.targets[1], spread.targets[0]
+    assert ratio.worst_low == pytest.approx(1, abs=1e-15)
+    assert ratio.worst_high == pytest.approx(1, abs=1e-15)
+    assert k.worst_high == pytest.approx(0.5, abs=1e-15)
+    # nothing varies at all: no common variable either
+    assert _spread(_pair("0%", "0%", "0 ppm/C", "0 ppm/C")).variables == ()
