@@ -17,7 +17,9 @@ and whether memory stayed under 1 GiB.  The commands:
   candidates: the ranking shrinks to what can be re-checked and shown) and at
   ``--time-limit 0.5``;
 * an example at ``--samples 10000000 --time-limit 10`` (the most samples a
-  run may ask for; 100,000,000 is refused as input).
+  run may ask for; 100,000,000 is refused as input);
+* ``check --verify --time-limit 5`` of a grid of 1,000 resistors (the grid of
+  ``benchmarks/large_network.py``).
 
 The code run is the ``synth`` package the interpreter imports (set
 ``PYTHONPATH`` to time another checkout).
@@ -58,7 +60,7 @@ def _run(args: list[str]) -> tuple[float, int, int]:
     """Wall time (s), peak RSS (KiB) and exit code of one fresh ``rnsynth ARGS`` process."""
     argv = [sys.executable, "-c",
             "import sys; from synth.cli import main; sys.argv[0] = 'rnsynth'; main()",
-            *args, "--quiet"]
+            *args, *(["--quiet"] if args[0] == "design" else [])]
     with tempfile.TemporaryFile() as errors:
         start = time.perf_counter()
         child = subprocess.Popen(argv, stdout=subprocess.DEVNULL, stderr=errors,
@@ -73,13 +75,25 @@ def _run(args: list[str]) -> tuple[float, int, int]:
     return seconds, int(usage.ru_maxrss), child.returncode
 
 
+def _grid_case(folder: str) -> tuple[str, float, list[str]]:
+    """``check --verify --time-limit 5`` of a 1,000-resistor grid (benchmarks/large_network.py)."""
+    sys.path.insert(0, str(ROOT / "benchmarks"))
+    from large_network import _toml, grid_tables
+
+    path = Path(folder, "grid.toml")
+    path.write_text(_toml(grid_tables(1000)), encoding="utf-8")
+    return ("check 1,000-resistor grid, --time-limit 5", 5.0,
+            ["check", str(path), "--verify", "--time-limit", "5"])
+
+
 def main() -> None:
     rows = []
-    for label, limit, args in CASES:
-        seconds, peak_kb, code = _run(args)
-        goal = limit + 1.0
-        rows.append((label, seconds, goal, seconds / goal, peak_kb / 1024, peak_kb < GIB_KB,
-                     code))
+    with tempfile.TemporaryDirectory() as folder:
+        for label, limit, args in [*CASES, _grid_case(folder)]:
+            seconds, peak_kb, code = _run(args)
+            goal = limit + 1.0
+            rows.append((label, seconds, goal, seconds / goal, peak_kb / 1024,
+                         peak_kb < GIB_KB, code))
     print(f"{'command':<40} {'wall s':>8} {'goal s':>7} {'wall/goal':>10} {'peak MiB':>9} "
           f"{'< 1 GiB':>8} {'exit':>5}")
     for label, seconds, goal, ratio, mib, under, code in rows:

@@ -341,3 +341,19 @@ def test_ten_billion_samples_shrink_to_fit_the_time_limit_and_say_so(command):
         assert {"stage": "Monte Carlo", "asked": 10_000_000_000, "done": 0} == {
             k: v for k, v in next(c for c in doc["cuts"] if c["stage"] == "Monte Carlo"
                                   ).items() if k != "note"}
+
+
+def test_the_console_script_runs_one_linear_algebra_thread_unless_told(monkeypatch):
+    import os
+
+    import synth.cli
+
+    ran = []
+    monkeypatch.setattr(synth.cli, "cli", lambda **kwargs: ran.append(kwargs))
+    for name in synth.cli.BLAS_THREADS:
+        monkeypatch.delenv(name, raising=False)
+    monkeypatch.setenv("OMP_NUM_THREADS", "3")  # the user's own choice is kept
+    synth.cli.main()
+    assert ran == [{"prog_name": "rnsynth"}]
+    assert os.environ["OPENBLAS_NUM_THREADS"] == "1" and os.environ["MKL_NUM_THREADS"] == "1"
+    assert os.environ["OMP_NUM_THREADS"] == "3"
