@@ -28,7 +28,8 @@ from synth.cli import cli
 
 ROOT = Path(__file__).resolve().parent.parent
 SEEDS = [ROOT / "examples" / name for name in
-         ("vent_sensor.toml", "greenhouse_probe.toml", "fixture_pad.toml")]
+         ("vent_sensor.toml", "greenhouse_probe.toml", "fixture_pad.toml",
+          "scale_bridge_matched.toml")]
 
 NUMBERS: list[Any] = [
     0, -1, 1, 2 ** 63 - 1, -(2 ** 63), 10 ** 400, 1e308, -1e308, 5e-324, float("nan"),
