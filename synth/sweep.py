@@ -343,7 +343,8 @@ class SweepPoint:
     proven : bool or None
         A synthesis's ``proven_optimal``; None for a check.
     supply_current : float or None
-        A delivered by the supplies, of the best or checked design.
+        A delivered by the supplies, of the best or checked design; None when it has
+        no voltage source or regulator (:attr:`synth.design.model.Design.has_supply`).
     targets : dict of str to float
         Each target's value (in its unit) by label.
     note : str
@@ -415,7 +416,7 @@ def _checked(task: _Task) -> SweepPoint:
         task.values, "check", "meets" if result.ok else "fails",
         objective=_objective(design, [t.value for t in result.targets]),
         chosen={ref: v for ref, v in result.values.items() if ref in free}, proven=None,
-        supply_current=result.supply_current, targets=targets,
+        supply_current=result.supply_current if design.has_supply else None, targets=targets,
         note="; ".join(map(str, result.problems)))
 
 
@@ -439,7 +440,7 @@ def _synthesised(task: _Task) -> SweepPoint:
     return SweepPoint(
         task.values, "design", "meets" if result.feasible else "fails",
         objective=best.objective, chosen=dict(best.values), proven=result.proven_optimal,
-        supply_current=best.supply_current,
+        supply_current=best.supply_current if task.design.has_supply else None,
         targets={t.label: t.value for t in best.targets}, note=note)
 
 

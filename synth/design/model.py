@@ -368,6 +368,13 @@ class Design:
                      if r.follows and r.copy_of in index)
 
     @property
+    def has_supply(self) -> bool:
+        """True when a voltage source or a regulator can deliver a supply current: the
+        supply current is the current they deliver, so a design driven by current sources
+        alone has none to report (not "0 A")."""
+        return bool(self.regulators) or any(s.kind == "voltage" for s in self.sources)
+
+    @property
     def free_resistors(self) -> tuple[Resistor, ...]:
         """The resistors whose value the optimiser picks."""
         return tuple(r for r in self.resistors if r.free)

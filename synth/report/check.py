@@ -120,8 +120,10 @@ def check_text(result: CheckResult) -> str:
                      "uses the most of its allowed dissipation")
     if any(p.kind == "resistor" and p.package is None for p in result.parts):
         lines.append("note: parts without a package are not checked against a power rating")
-    lines.append(f"supply current: {format_eng(result.supply_current, 'A')}; "
-                 f"largest voltage in the circuit: {format_eng(result.max_voltage, 'V')}")
+    supply = (f"supply current: {format_eng(result.supply_current, 'A')}" if design.has_supply
+              else "no supply current (no voltage source or regulator)")
+    lines.append(f"{supply}; largest voltage in the circuit: "
+                 f"{format_eng(result.max_voltage, 'V')}")
     if result.verify_difference is not None:
         lines.append(f"verify: mesh and nodal solves differ by at most "
                      f"{result.verify_difference:.2e} (relative)")
@@ -188,7 +190,8 @@ def check_json(result: CheckResult) -> dict[str, Any]:
         "nodes": {k: json_number(v) for k, v in result.nodes.items()},
         "parts": [part_json(p) for p in result.parts],
         "targets": [target_json(t) for t in result.targets],
-        "supply_current": json_number(result.supply_current),
+        "supply_current": (json_number(result.supply_current) if result.design.has_supply
+                           else None),
         "max_voltage": json_number(result.max_voltage),
         "problems": [str(p) for p in result.problems],
         "problem_details": [problem_json(p) for p in result.problems],

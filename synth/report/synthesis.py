@@ -95,7 +95,7 @@ def _error_cells(candidate: Candidate) -> list[str]:
 
 
 def _row(candidate: Candidate, refs: list[str],
-         columns: list[tuple[str, list[int]]]) -> list[str]:
+         columns: list[tuple[str, list[int]]], supply: bool = True) -> list[str]:
     cells = [str(candidate.rank)]
     for ref in refs:
         value = candidate.values.get(ref)
@@ -105,7 +105,8 @@ def _row(candidate: Candidate, refs: list[str],
     hot = candidate.hottest
     cells.append("-" if hot is None or hot.utilization is None
                  else f"{hot.ref} {hot.utilization * 100:.3g}%")
-    cells.append(format_eng(candidate.supply_current, "A"))
+    if supply:  # a design without a voltage source or regulator has no supply current
+        cells.append(format_eng(candidate.supply_current, "A"))
     if candidate.spread is not None:
         s = candidate.spread
         cells += [*_error_cells(candidate),
@@ -136,14 +137,16 @@ def design_text(result: SynthesisResult) -> str:
         return "\n".join(lines)
     refs = list(result.candidates[0].values)
     columns = _columns(design)
-    headers = ["rank", *refs, *[label for label, _ in columns], "hottest", "supply"]
+    supply = design.has_supply
+    headers = ["rank", *refs, *[label for label, _ in columns], "hottest",
+               *(["supply"] if supply else [])]
     if result.candidates[0].spread is not None:
         headers += ["nominal error", "worst-case error", "RSS", "yield"]
         phrase = {"nominal": "nominal error", "yield": "Monte Carlo yield",
                   "worst-case": "worst-case error over the tolerance box"}[result.rank_by]
         lines.append(f"ranked by {phrase}")
-    lines.append(tabulate([_row(c, refs, columns) for c in result.candidates], headers=headers,
-                          disable_numparse=True))
+    lines.append(tabulate([_row(c, refs, columns, supply) for c in result.candidates],
+                          headers=headers, disable_numparse=True))
     lines.append("")
     best = result.candidates[0]
     lines.extend(verdict_text(result))
@@ -168,6 +171,7 @@ def design_text(result: SynthesisResult) -> str:
 
 
 def _candidate_json(candidate: Candidate) -> dict[str, Any]:
+    supplied = candidate.check.design.has_supply
     return {
         "rank": candidate.rank,
         "values": dict(candidate.values),
@@ -175,7 +179,7 @@ def _candidate_json(candidate: Candidate) -> dict[str, Any]:
         "series": dict(candidate.series),
         "objective": json_number(candidate.objective),
         "feasible": candidate.feasible,
-        "supply_current": json_number(candidate.supply_current),
+        "supply_current": json_number(candidate.supply_current) if supplied else None,
         "targets": [target_json(t) for t in candidate.targets],
         "parts": [part_json(p) for p in candidate.parts],
         "problems": [str(p) for p in candidate.problems],

@@ -355,8 +355,10 @@ def _stress(checked: CheckResult, parts: tuple[PartReport, ...], problems: tuple
                            _number(format_eng(p.current, "A", 5)),
                            _number(format_eng(p.power, "W", 4))] for p in others],
                          caption="Sources and regulating elements"))
-    out.append(element("p", f"Supply current {format_eng(checked.supply_current, 'A', 5)}; "
-                            f"largest voltage in the circuit "
+    supply = (f"Supply current {format_eng(checked.supply_current, 'A', 5)}"
+              if checked.design.has_supply
+              else "No supply current (no voltage source or regulator)")
+    out.append(element("p", f"{supply}; largest voltage in the circuit "
                             f"{format_eng(checked.max_voltage, 'V', 5)}."))
     return out
 
@@ -368,6 +370,7 @@ def _candidates(result: SynthesisResult) -> list[Markup]:
     if len(result.candidates) < 2:
         return []
     refs = list(result.candidates[0].values)
+    supply = result.design.has_supply  # without a voltage source or regulator: no column
     rows = []
     for c in result.candidates:
         hot = c.hottest
@@ -377,10 +380,10 @@ def _candidates(result: SynthesisResult) -> list[Markup]:
                      "yes" if c.feasible else "NO",
                      _number("-" if hot is None or hot.utilization is None
                              else f"{hot.ref} {hot.utilization * 100:.3g} %"),
-                     _number(format_eng(c.supply_current, "A", 4))])
+                     *([_number(format_eng(c.supply_current, "A", 4))] if supply else [])])
     return [element("h3", "Ranked candidates"),
             table(["rank", *refs, "largest goal error", "meets every window and limit",
-                   "hottest part", "supply"], rows,
+                   "hottest part", *(["supply"] if supply else [])], rows,
                   row_classes=[None if c.feasible else "fail" for c in result.candidates],
                   caption=f"The best {len(result.candidates)} candidates, each re-checked by a "
                           "full solve")]
