@@ -20,7 +20,10 @@ its copies' (one coefficient and one deviation at every point, as elsewhere).
 
 from __future__ import annotations
 
-__all__ = ["REFERENCE_C", "drift_half_width", "part_rises", "self_heating_note"]
+__all__ = [
+    "REFERENCE_C", "drift_half_width", "heats", "part_rises", "self_heating_note",
+    "thermal_resistances",
+]
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -41,13 +44,14 @@ def part_rises(design: Design, ev: Evaluator, part_power: ArrayLike) -> np.ndarr
     design : Design
     ev : Evaluator
     part_power : array
-        ``(parts,)`` dissipation of every physical part at nominal values, W.
+        ``(parts,)`` dissipation of every physical part at nominal values, W (or
+        ``(M, parts)`` for M candidates).
 
     Returns
     -------
     numpy.ndarray
-        ``(parts,)`` K; with operating points every copy of a physical part holds
-        the largest rise of its copies.
+        The shape of ``part_power``, K; with operating points every copy of a
+        physical part holds the largest rise of its copies.
 
     Examples
     --------
@@ -60,18 +64,31 @@ def part_rises(design: Design, ev: Evaluator, part_power: ArrayLike) -> np.ndarr
     >>> part_rises(d, Evaluator(d), [0.05]).tolist()   # 50 mW x 850 K/W
     [42.5]
     """
-    power = np.asarray(part_power, dtype=float)
-    owner = ev.part_resistor()
-    rises = np.array([float(temperature_rise(design.rating(design.resistors[int(k)]), p))
-                      for k, p in zip(owner, power, strict=True)])
+    power = np.abs(np.asarray(part_power, dtype=float))
+    rises: np.ndarray = power * thermal_resistances(design, ev)
     index = {r.ref: k for k, r in enumerate(design.resistors)}
     pairs = [(ev.part_columns[k], ev.part_columns[index[r.copy_of]])
              for k, r in enumerate(design.resistors) if r.copy_of in index]
     for copy, leader in pairs:  # the leader takes the largest over its copies ...
-        rises[leader] = np.maximum(rises[leader], rises[copy])
+        rises[..., leader] = np.maximum(rises[..., leader], rises[..., copy])
     for copy, leader in pairs:  # ... and every copy the leader's
-        rises[copy] = rises[leader]
+        rises[..., copy] = rises[..., leader]
     return rises
+
+
+def thermal_resistances(design: Design, ev: Evaluator) -> np.ndarray:
+    """``(parts,)`` thermal resistance of every physical part's package, K/W (0 when none)."""
+    owner = ev.part_resistor()
+    return np.array([float(temperature_rise(design.rating(design.resistors[int(k)]), 1.0))
+                     for k in owner])
+
+
+def heats(design: Design, ev: Evaluator) -> bool:
+    """True when some part with a temperature coefficient has a thermal resistance."""
+    theta = thermal_resistances(design, ev)
+    owner = ev.part_resistor()
+    return any(t > 0 and design.resistors[int(k)].tcr != 0 for t, k in zip(theta, owner,
+                                                                          strict=True))
 
 
 def drift_half_width(tcr: ArrayLike, rise_c: ArrayLike, temperature_c: tuple[float, float]

@@ -13,7 +13,7 @@ import numpy as np
 from synth.circuit.measure import Evaluator, SourceValues
 from synth.design.model import Design
 from synth.rating import exceeds, falls_short
-from synth.spread.heating import REFERENCE_C, drift_half_width
+from synth.spread.heating import REFERENCE_C, drift_half_width, thermal_resistances
 
 
 class SpreadVariables:
@@ -34,7 +34,10 @@ class SpreadVariables:
 
     A part's TCR drift is taken over its own temperature: the ambient range
     shifted up by its self-heating rise ``rise_c`` (``(parts,)`` K, by part
-    column; none by default), see :mod:`synth.spread.heating`.  An array's common
+    column; none by default), see :mod:`synth.spread.heating`.  With
+    ``per_candidate`` every part that may heat itself (a TCR and a package with a
+    thermal resistance) is a variable even when its box is empty at no rise, so
+    that :meth:`heated_box` can give each candidate its own.  An array's common
     coefficient acts on its members' mean rise, and a member's difference from that
     mean, times the common TCR, widens the member's own drift (a box holding the true
     set, so the worst case stays a bound): members heating alike drift their ratio by
@@ -42,7 +45,7 @@ class SpreadVariables:
     """
 
     def __init__(self, design: Design, evaluator: Evaluator,
-                 rise_c: np.ndarray | None = None):
+                 rise_c: np.ndarray | None = None, *, per_candidate: bool = False):
         low_c, high_c = design.temperature_c
         self.span_c = max(abs(low_c - REFERENCE_C), abs(high_c - REFERENCE_C))
         rises = (np.zeros(len(design.part_refs)) if rise_c is None
@@ -65,6 +68,10 @@ class SpreadVariables:
         members: list[tuple[str, int]] = []  # (array, part column) of every member's part
         mean_rise = {a.name: _mean_rise(design, evaluator, rises, a.name) for a in design.arrays}
         links: list[tuple[int, str, float]] = []  # (own column, array, rise - its mean rise)
+        theta = thermal_resistances(design, evaluator) if per_candidate else None
+        self._heated: list[tuple[int, int, float, float, str | None]] = []
+        """``(variable column, part column, TCR, tolerance, array)`` of every part variable:
+        how its box follows the part's rise (:meth:`heated_box`)."""
         column = 0
         for r in design.resistors:
             own_tolerance, own_tcr = r.tolerance, r.tcr
@@ -87,7 +94,9 @@ class SpreadVariables:
                     # difference from it joins the member's own drift
                     offset = float(rises[column]) - mean_rise[r.array]
                     d += arrays[r.array].common_tcr * abs(offset)
-                if own_tolerance != 0 or d != 0:
+                warms = theta is not None and theta[column] > 0 and (
+                    own_tcr != 0 or (r.array is not None and arrays[r.array].common_tcr != 0))
+                if own_tolerance != 0 or d != 0 or warms:
                     if offset and r.array is not None:
                         links.append((len(names), r.array, offset))
                     leader_of[("part", ref)] = len(names)
@@ -98,6 +107,8 @@ class SpreadVariables:
                     drift.append(d)
                     tcr.append(own_tcr)
                     rise.append(float(rises[column]))
+                    self._heated.append((len(names) - 1, column, own_tcr, own_tolerance,
+                                         r.array))
                     self.kind.append(("part", column))
                 column += 1
         groups: tuple[tuple[str, list[Any]], ...] = (
@@ -158,7 +169,9 @@ class SpreadVariables:
         for k, array in enumerate(design.arrays):
             d = float(drift_half_width(array.common_tcr, mean_rise[array.name],
                                        design.temperature_c))
-            if array.common_tolerance == 0 and d == 0:
+            warms = theta is not None and array.common_tcr != 0 and bool(
+                np.any(theta[_member_columns(design, evaluator, array.name)] > 0))
+            if array.common_tolerance == 0 and d == 0 and not warms:
                 continue
             common = common_column[array.name] = len(names)
             rise.append(mean_rise[array.name])
@@ -176,6 +189,12 @@ class SpreadVariables:
                 self.tied.append((group, k, leader_of[(group, physical)]))
         self.heat_links = [(own, common_column[name], offset) for own, name, offset in links
                            if name in common_column]
+        self._commons = [(common_column[a.name], a.name, a.common_tcr, a.common_tolerance)
+                         for a in design.arrays if a.name in common_column]
+        self._members = {a.name: _member_columns(design, evaluator, a.name)
+                         for a in design.arrays}
+        self._common_tcr = {a.name: a.common_tcr for a in design.arrays}
+        self._temperature_c = design.temperature_c
         """``(own column, common column, K)``: a matched array member whose rise differs from
         its array's mean rise by K; the common coefficient times K adds to its own drift (the
         Monte Carlo adds it exactly, with the one coefficient drawn for the array)."""
@@ -193,6 +212,37 @@ class SpreadVariables:
 
     def __len__(self) -> int:
         return len(self.names)
+
+    def heated_box(self, rises: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Each candidate's box with its own parts' self-heating rises.
+
+        Parameters
+        ----------
+        rises : numpy.ndarray
+            ``(M, parts)`` each candidate's rise of every physical part at its nominal
+            operating point, K (:func:`synth.spread.heating.part_rises`).
+
+        Returns
+        -------
+        low, high : numpy.ndarray
+            ``(M, variables)`` factors: the parts' and arrays' ends as the constructor
+            gives them for one set of rises, the sources' as they are.
+        """
+        m = len(rises)
+        low, high = np.tile(self.low, (m, 1)), np.tile(self.high, (m, 1))
+        means = {name: (rises[:, cols].mean(axis=1) if cols else np.zeros(m))
+                 for name, cols in self._members.items()}
+        for column, part, tcr, tolerance, array in self._heated:
+            d = drift_half_width(tcr, rises[:, part], self._temperature_c)
+            if array is not None:
+                d = d + self._common_tcr[array] * np.abs(rises[:, part] - means[array])
+            low[:, column] = (1 - tolerance) * (1 - d)
+            high[:, column] = (1 + tolerance) * (1 + d)
+        for column, array, tcr, tolerance in self._commons:
+            d = drift_half_width(tcr, means[array], self._temperature_c)
+            low[:, column] = (1 - tolerance) * (1 - d)
+            high[:, column] = (1 + tolerance) * (1 + d)
+        return low, high
 
     def column_of_part(self) -> dict[int, int]:
         """Variable column of each physical part that varies, by part column."""
@@ -260,11 +310,16 @@ class SpreadVariables:
                              values["gain"] if src.gains is not None else None))
 
 
+def _member_columns(design: Design, evaluator: Evaluator, array: str) -> list[int]:
+    """Part columns of a matched array's members (the physical ones, not later points')."""
+    return [c for k, r in enumerate(design.resistors)
+            if r.array == array and r.copy_of is None
+            for c in range(evaluator.part_columns[k].start, evaluator.part_columns[k].stop)]
+
+
 def _mean_rise(design: Design, evaluator: Evaluator, rises: np.ndarray, array: str) -> float:
     """The mean self-heating rise of a matched array's member parts, K."""
-    columns = [c for k, r in enumerate(design.resistors)
-               if r.array == array and r.copy_of is None
-               for c in range(evaluator.part_columns[k].start, evaluator.part_columns[k].stop)]
+    columns = _member_columns(design, evaluator, array)
     return float(np.mean(rises[columns])) if columns else 0.0
 
 

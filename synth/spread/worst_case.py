@@ -17,6 +17,7 @@ from synth.circuit.measure import Evaluation, Evaluator
 from synth.design.model import Design
 from synth.errors import DesignError
 from synth.rating import exceeds, falls_short, use_of
+from synth.spread.heating import heats, part_rises
 from synth.spread.records import PartSpread
 from synth.spread.variables import SpreadVariables, box_corners
 
@@ -71,7 +72,10 @@ class WorstCase:
 
     def __init__(self, design: Design, evaluator: Evaluator):
         self.design, self.ev = design, evaluator
-        self.var = SpreadVariables(design, evaluator)
+        self.heats = heats(design, evaluator)
+        """True when some part heats itself: each candidate's box then follows its own
+        parts' rises at its nominal operating point (:mod:`synth.spread.heating`)."""
+        self.var = SpreadVariables(design, evaluator, per_candidate=self.heats)
         if len(self.var) > RANKING_VARIABLES:
             raise DesignError(
                 f"{design.origin}: {len(self.var)} quantities have a tolerance or TCR; a worst "
@@ -89,7 +93,8 @@ class WorstCase:
         Parameters
         ----------
         positions : numpy.ndarray
-            ``(M, resistors)`` nominal effective ohm (read for its row count).
+            ``(M, resistors)`` nominal effective ohm (solved once for the parts'
+            self-heating rises when some part heats itself).
         parts : numpy.ndarray
             ``(M, parts)`` nominal ohm of every physical part.
 
@@ -115,7 +120,8 @@ class WorstCase:
         for start in range(0, m, block):
             rows = parts[start:start + block]
             count = len(rows)
-            tiled = np.tile(self.factors, (count, 1))
+            tiled = (self._heated_factors(positions[start:start + block], rows) if self.heats
+                     else np.tile(self.factors, (count, 1)))
             r_all, p_all, sources = self.var.apply(tiled, rows[0], src,
                                                    base=np.repeat(rows, n_v, axis=0))
             with np.errstate(all="ignore"):
@@ -145,6 +151,15 @@ class WorstCase:
                             high[start:start + count, k_t], worst[:, cols.start])
         self._noise = noise
         return low, high, power, voltage
+
+    def _heated_factors(self, positions: np.ndarray, parts: np.ndarray) -> np.ndarray:
+        """``(M·vertices, variables)`` every candidate's vertices of its self-heated box."""
+        with np.errstate(all="ignore"):
+            nominal = self.ev.evaluate(positions, part_values=parts)
+        rises = np.nan_to_num(part_rises(self.design, self.ev, nominal.part_power))
+        low, high = self.var.heated_box(rises)
+        factors = np.where(self.bits[None, :, :], high[:, None, :], low[:, None, :])
+        return factors.reshape(-1, factors.shape[-1])
 
     def holds(self, positions: np.ndarray, parts: np.ndarray) -> np.ndarray:
         """``(M,)`` True where every window and part limit holds over the whole box.

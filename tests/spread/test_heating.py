@@ -283,3 +283,31 @@ def test_bundled_bench_current_monitor_by_hand():
     # the divider's parts heat apart, so self-heating moves the readback ratio too
     ratio = next(t for t in spread["targets"] if t["label"] == "readback ratio")
     assert ratio["self_heating_share_of_drift"] > 0.5
+
+
+def test_each_candidates_box_follows_its_own_rises():
+    # the search's box of a candidate is the analysis's box at that candidate's rises
+    from synth.circuit.measure import Evaluator
+    from synth.spread.heating import part_rises
+    from synth.spread.variables import SpreadVariables
+    from synth.spread.worst_case import WorstCase
+
+    for design in (design_from_dict(shunt(("15 C", "35 C"))), matched("3k", "1k")):
+        ev = Evaluator(design)
+        parts0 = np.array([r.value for r in design.resistors])
+        nominal = ev.evaluate(parts0[None, :], part_values=parts0[None, :])
+        rises = part_rises(design, ev, nominal.part_power)
+        heated = SpreadVariables(design, ev, rise_c=rises[0])
+        low, high = SpreadVariables(design, ev).heated_box(rises)
+        assert low[0] == pytest.approx(heated.low, rel=1e-15)
+        assert high[0] == pytest.approx(heated.high, rel=1e-15)
+    # the shunt's ranking worst case: 0.1 V x (1 ± 1.85e-3), as by hand above
+    # [HB-self-heating], and at twice the current 0.4 W, 34 K: 100 ppm/K x 44 K
+    design = design_from_dict(shunt(("15 C", "35 C")))
+    worst = WorstCase(design, Evaluator(design))
+    r = np.array([[0.1], [0.4]])
+    low, high = worst.ranges(r, r)
+    assert high[:, 0] == pytest.approx([0.1 * (1 + 1.85e-3), 0.4 * (1 + 100e-6 * 44)],
+                                       rel=1e-9)
+    assert low[:, 0] == pytest.approx([0.1 * (1 - 1.85e-3), 0.4 * (1 - 100e-6 * 44)],
+                                      rel=1e-9)
