@@ -248,6 +248,8 @@ def map_range_command(input_range: str, output_range: str, reference: Given | No
               help="Temperatures the line is checked at, both ends included (2 to 1000).")
 @click.option("--max-current", type=CURRENT, default=None,
               help="Most current the divider may draw from the reference.")
+@click.option("--max-sensor-current", type=CURRENT, default=None,
+              help="Most current the sensor may carry (its self-heating is not modelled).")
 @quick_options("°C")
 @friendly
 def thermometer_command(kind: str, temperature_range: str, output_range: str,
@@ -255,8 +257,8 @@ def thermometer_command(kind: str, temperature_range: str, output_range: str,
                         tolerance_class: str | None, r25: Given | None, beta: str | None,
                         tolerance: Given | None, beta_tolerance: Given | None,
                         steinhart_hart: str | None, grid: int, max_current: Given | None,
-                        quick: QuickOptions, search: SearchOptions,
-                        spread: SpreadOptions) -> None:
+                        max_sensor_current: Given | None, quick: QuickOptions,
+                        search: SearchOptions, spread: SpreadOptions) -> None:
     """Temperature sensor front end: an RTD or NTC in a divider whose output follows a line.
 
     The output follows the straight line through the two --output ends over
@@ -273,5 +275,6 @@ def thermometer_command(kind: str, temperature_range: str, output_range: str,
     tables = thermometer_tables(sensor, temperature_range=temperature_range,
                                 output_range=output_range, reference=reference.text,
                                 settings=quick.settings(), network=network, grid=grid,
-                                max_current=given_text(max_current))
+                                max_current=given_text(max_current),
+                                max_sensor_current=given_text(max_sensor_current))
     quick_run(tables, "rnsynth thermometer options", quick, search, spread)

@@ -383,6 +383,7 @@ _TARGET_OPTIONS = {
     ("loss", "equals"): "--loss", ("collector current", "equals"): "--collector-current",
     ("collector voltage", "equals"): "--collector-voltage", ("gain", "equals"): "--gain",
     ("input resistance", "equals"): "--input-resistance",
+    ("sensor current", "at_most"): "--max-sensor-current",
 }
 """The option behind each target a quick command writes, by (target name, key)."""
 

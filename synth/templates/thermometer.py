@@ -214,7 +214,8 @@ def _legs(network: str, sensor_on_top: bool) -> tuple[list[str], dict[str, list[
 
 def thermometer_tables(sensor: SensorOptions, temperature_range: str, output_range: str,
                        reference: str, settings: QuickSettings, network: str = "parallel",
-                       grid: int = 21, max_current: str | None = None) -> dict[str, Any]:
+                       grid: int = 21, max_current: str | None = None,
+                       max_sensor_current: str | None = None) -> dict[str, Any]:
     """The design tables of a sensor front end whose output follows a line over a range.
 
     Parameters
@@ -236,6 +237,9 @@ def thermometer_tables(sensor: SensorOptions, temperature_range: str, output_ran
         Temperatures the line is checked at, both ends included (2 to 1000).
     max_current : str, optional
         The most current the divider may draw from the reference.
+    max_sensor_current : str, optional
+        The most current the sensor may carry at any temperature of the grid:
+        the model has no self-heating, which a measuring current keeps small.
 
     Raises
     ------
@@ -290,8 +294,14 @@ def thermometer_tables(sensor: SensorOptions, temperature_range: str, output_ran
                        "line": [[t_text[0], v_text[0]], [t_text[1], v_text[1]]],
                        "within": within, "grid": grid}],
     }
+    targets = []
     if max_current is not None:
         read_option("--max-current", parse_quantity, max_current, "A")
-        tables["target"] = [{"name": "supply current", "current": "VREF",
-                             "at_most": max_current}]
+        targets.append({"name": "supply current", "current": "VREF", "at_most": max_current})
+    if max_sensor_current is not None:
+        read_option("--max-sensor-current", parse_quantity, max_sensor_current, "A")
+        targets.append({"name": "sensor current", "current": _SENSOR,
+                        "at_most": max_sensor_current})
+    if targets:
+        tables["target"] = targets
     return tables

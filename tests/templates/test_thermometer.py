@@ -234,3 +234,49 @@ def test_save_writes_a_design_file_that_design_reads_back_to_the_same_result(tmp
         assert a["candidates"][0][key] == b["candidates"][0][key], key
     assert (a["feasible"], a["proven_optimal"]) == (b["feasible"], b["proven_optimal"])
     assert "[[sensor]]" in saved.read_text() and "[[linearity]]" in saved.read_text()
+
+
+def test_max_current_bounds_what_the_divider_draws():
+    """The divider's current from the reference is Vref over its resistance at each point
+    (Ohm's law): a bound below the least a meeting design draws fails, exit 1."""
+    loose = run(*NTC, *RANGE, "--within", "1 C", "--max-current", "1 mA", "--json")
+    assert loose.exit_code == 0, loose.output
+    best = json.loads(loose.output)["candidates"][0]
+    rb, rp = best["values"]["RB"], best["values"]["RP"]
+    drawn = max(3.3 / (parallel(float(ntc_ohm(t)), rp) + rb) for t in np.linspace(0, 50, 21))
+    assert drawn <= 1e-3
+    tight = run(*NTC, *RANGE, "--within", "1 C", "--max-current", f"{drawn * 0.5:.4g} A")
+    assert tight.exit_code == 1, tight.output
+    assert "supply current" in tight.output
+    refused = run(*NTC, *RANGE, "--max-current", "lots")
+    assert refused.exit_code == 2 and "--max-current" in refused.output
+
+
+def test_max_sensor_current_bounds_the_sensors_own_current():
+    """The sensor's current at each temperature, by the divider in closed form
+    [HB-loaded-divider]: Pt1000 with RP across it and RB above."""
+    args = ["--sensor", "rtd", "--r0", "1k", "--temperature", "0 C:100 C", "--output",
+            "1.5 V:1.7 V", "--reference", "3.3 V", "--within", "5 C", "--json"]
+    free = run(*args)
+    assert free.exit_code == 0, free.output
+    best = json.loads(free.output)["candidates"][0]["values"]
+    t = np.linspace(0, 100, 21)
+    rt = cvd_ohm(t, 1000.0)
+    bottom = parallel(rt, best["RP"])
+    sensor_amps = 3.3 * bottom / (bottom + best["RB"]) / rt
+    bound = float(sensor_amps.max()) * 0.5
+    held = run(*args, "--max-sensor-current", f"{bound:.6g} A")
+    assert held.exit_code in (0, 1), held.output
+    document = json.loads(held.output)
+    chosen = document["candidates"][0]["values"]
+    bottom = parallel(rt, chosen["RP"])
+    expected = 3.3 * bottom / (bottom + chosen["RB"]) / rt
+    targets = [t for t in document["candidates"][0]["targets"]
+               if t["label"].startswith("sensor current")]
+    assert len(targets) == 21
+    np.testing.assert_allclose([t["value"] for t in targets], expected, rtol=1e-9)
+    assert [t["met"] for t in targets] == [bool(a <= bound * (1 + 1e-9)) for a in expected]
+    assert (held.exit_code == 0) == bool(expected.max() <= bound * (1 + 1e-9)) or \
+        not document["feasible"]
+    refused = run(*args, "--max-sensor-current", "-")
+    assert refused.exit_code == 2 and "--max-sensor-current" in refused.output
