@@ -354,6 +354,10 @@ class SynthesisResult:
         What the time limit shortened or skipped (search, re-check, spread,
         Monte Carlo samples, the limit-cost search), in order; empty when
         nothing was cut.  A cut result is never ``proven_optimal``.
+    common_mode_rejected : bool
+        With ``require = "worst-case"`` and a matched array: the search found designs
+        holding with each array's common deviation at its two ends, but none held again
+        once it was scanned (:mod:`synth.spread.common_mode`), so none is feasible.
     """
 
     design: Design
@@ -373,3 +377,4 @@ class SynthesisResult:
     binding_limits: tuple[Problem, ...] = ()
     time_limit_s: float | None = None
     cuts: tuple[Cut, ...] = ()
+    common_mode_rejected: bool = False

@@ -462,16 +462,20 @@ def synthesize(
     follows = bool(candidates) and any(r.package for r in design.resistors)
     candidates = _with_spreads(design, evaluator, candidates, spread, by_yield, require,
                                deadline, _SPREAD_SHARE if follows else 1.0, jobs)
+    rejudged = common_mode_rejected = False
     if require == "worst-case" and feasible and design.arrays:
         # the search took each array's common deviation at its ends only: the designs shown
         # are judged again on their scanned worst case, those that still hold first
         candidates = sorted((_on_basis(replace(design, require=require), c)
                              for c in candidates), key=lambda c: (not c.feasible, c.rank))
+        rejudged = True
         if candidates and not candidates[0].feasible:
             feasible = proven = False
+            common_mode_rejected = True
     if require == "worst-case" and not feasible:
-        # the nearest designs, judged on the required basis, nearest first
-        candidates = sorted((_on_basis(replace(design, require=require), c)
+        # the nearest designs, judged on the required basis (once), nearest first
+        candidates = sorted(candidates if rejudged else
+                            (_on_basis(replace(design, require=require), c)
                              for c in candidates), key=lambda c: (distance(c), c.rank))
     considered = len(candidates)
     yield_short = False
@@ -502,6 +506,7 @@ def synthesize(
         considered=considered,
         unlimited_objective=None if unlimited is None else unlimited.objective,
         binding_limits=limits, time_limit_s=deadline.limit_s, cuts=cuts,
+        common_mode_rejected=common_mode_rejected,
     )
 
 

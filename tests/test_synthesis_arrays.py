@@ -39,8 +39,14 @@ def test_a_design_held_at_the_common_ends_but_not_inside_is_not_called_feasible(
     assert not result.feasible and not result.proven_optimal
     best = result.candidates[0]
     assert not best.feasible and any(p.kind == "window" for p in best.problems)
+    assert result.common_mode_rejected
+    assert len(best.problems) == 1  # judged once
     lines = verdict_text(result)
-    assert not lines[0].startswith("result: the best design meets")
+    assert lines[0].startswith("result: the search's designs meet every window and limit "
+                               "with each matched array's common deviation at its two ends "
+                               "only; with it scanned inside its range none of those shown "
+                               "does")
+    assert "time limit" not in lines[0]
     assert any("judged each matched array's common deviation at its two ends only" in line
                for line in lines)
 
@@ -48,6 +54,7 @@ def test_a_design_held_at_the_common_ends_but_not_inside_is_not_called_feasible(
 def test_a_design_that_holds_inside_too_stays_feasible():
     result = synthesize(design_from_dict(_design("3.9 V")))
     assert result.feasible and result.candidates[0].feasible
+    assert not result.common_mode_rejected
     assert result.candidates[0].spread is not None
     assert result.candidates[0].spread.targets[0].method == "vertices, common mode scanned"
     lines = verdict_text(result)

@@ -97,6 +97,10 @@ def verdict_text(result: SynthesisResult) -> list[str]:
     else:
         proven = result.proven_optimal
         head = (f"NO standard values meet every window and limit {basis_text(result)}" if proven
+                else "the search's designs meet every window and limit with each matched "
+                     "array's common deviation at its two ends only; with it scanned inside "
+                     "its range none of those shown does"
+                if result.common_mode_rejected
                 else "no design meeting every window and limit was found within the time "
                      "limit (give the search more time)")
         tail = f"; the nearest designs are shown. Binding: {result.binding}" if (
