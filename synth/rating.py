@@ -45,7 +45,8 @@ from __future__ import annotations
 
 __all__ = [
     "LIMIT_SLACK", "NOISE_FRACTION", "Allowance", "allowance", "allowed_power", "allowed_voltage",
-    "derated_power", "derating_factor", "exceeds", "falls_short", "temperature_rise", "use_of",
+    "derated_power", "derating_factor", "exceeds", "falls_short", "hot_spot_binds",
+    "temperature_rise", "use_of",
 ]
 
 from dataclasses import dataclass
@@ -157,6 +158,27 @@ def derated_power(rating: PackageRating, ambient_c: ArrayLike) -> np.ndarray:
     ambient = np.asarray(ambient_c, dtype=float)
     hot_spot = np.clip((rating.zero_power_c - ambient) / theta, 0.0, None)
     return np.minimum(line, hot_spot)
+
+
+def hot_spot_binds(rating: PackageRating, ambient_c: float) -> bool:
+    """True when the part's own temperature, not the derating line, sets its allowance at
+    ``ambient_c``: its thermal resistance is larger than the line's slope there.
+
+    Examples
+    --------
+    >>> from dataclasses import replace
+    >>> from synth.catalog.packages import load_package_table
+    >>> chip = load_package_table()["0603"]
+    >>> hot = replace(chip, thermal_resistance_k_per_w=1e3)
+    >>> hot_spot_binds(chip, 85.0), hot_spot_binds(hot, 85.0)
+    (False, True)
+    """
+    theta = rating.thermal_resistance_k_per_w
+    if not theta:
+        return False
+    line = float(rating.rated_power_w * derating_factor(ambient_c, rating.rated_ambient_c,
+                                                        rating.zero_power_c))
+    return float(derated_power(rating, ambient_c)) < line * (1 - LIMIT_SLACK)
 
 
 def allowed_power(rating: PackageRating, ambient_c: ArrayLike, max_use: float) -> np.ndarray:

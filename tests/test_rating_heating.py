@@ -59,3 +59,51 @@ def test_a_better_mounting_is_not_allowed_more_than_the_rating():
     cool = replace(CHIP, thermal_resistance_k_per_w=300.0)
     assert float(derated_power(cool, 85.0)) == pytest.approx(0.1 * 70 / 85, rel=1e-12)
     assert float(derated_power(cool, 25.0)) == pytest.approx(0.1, rel=1e-12)
+
+
+HOUSE = ("name,mount,imperial,metric,rated_power_w,rated_ambient_c,zero_power_c,"
+         "limiting_voltage_v,thermal_resistance_k_per_w,source\n"
+         "small-pad,chip,0603,1608M,0.1,70,155,50,1000,house table\n")
+
+DESIGN = """
+[design]
+packages = "house.csv"
+ambient = "85 C"
+
+[[source]]
+ref = "V1"
+kind = "voltage"
+plus = "in"
+minus = "gnd"
+value = "10 V"
+
+[[resistor]]
+ref = "R1"
+nodes = ["in", "gnd"]
+value = "VALUE"
+package = "small-pad"
+"""
+
+
+@pytest.mark.parametrize(("value", "code"), [("4k", 0), ("2.6k", 1)])
+def test_the_hot_spot_allowance_through_the_command_line(tmp_path, value, code):
+    # 1000 K/W at 85 °C: (155 - 85)/1000 = 70 mW, 50 % use 35 mW [HB-self-heating],
+    # [CP-margin]; the line alone would allow 0.1 x 70/85 x 0.5 = 41.18 mW [CALC-derating].
+    # 10 V over 4k is 25 mW, within; over 2.6k 38.46 mW [HB-ohm]: under the line, over the
+    # part's own temperature limit, so the design fails (exit 1)
+    import json
+
+    from click.testing import CliRunner
+
+    from synth.cli import cli
+
+    (tmp_path / "house.csv").write_text(HOUSE, encoding="utf-8")
+    path = tmp_path / "d.toml"
+    path.write_text(DESIGN.replace("VALUE", value), encoding="utf-8")
+    result = CliRunner().invoke(cli, ["check", str(path), "--json"])
+    assert result.exit_code == code, result.output
+    part = next(p for p in json.loads(result.stdout)["parts"] if p["ref"] == "R1")
+    assert part["allowed_power"] == pytest.approx(0.035, rel=1e-9)
+    text = CliRunner().invoke(cli, ["check", str(path)]).output
+    assert ("note: small-pad at 1000 K/W reaches its zero-power temperature 155 °C at 70 mW "
+            "from 85 °C, below its derating line: its own temperature sets its allowance") in text

@@ -15,6 +15,8 @@ from typing import Any
 
 from tabulate import tabulate
 
+from synth.design.model import Design
+from synth.rating import derated_power, hot_spot_binds
 from synth.report.linearity import linearity_json, linearity_text
 from synth.report.numbers import NOISE_FRACTION, json_number
 from synth.report.points import points_json, points_lines
@@ -81,6 +83,21 @@ def _target_rows(targets: tuple[TargetReport, ...]) -> list[list[str]]:
     ]
 
 
+def _hot_spot_notes(design: Design, parts: tuple[PartReport, ...]) -> list[str]:
+    """A note per package whose own temperature, not its derating line, sets the allowance."""
+    notes = []
+    hot = design.rating_ambient_c
+    for name in dict.fromkeys(p.package for p in parts if p.kind == "resistor" and p.package):
+        rating = design.packages[name]
+        if rating.thermal_resistance_k_per_w and hot_spot_binds(rating, hot):
+            notes.append(
+                f"note: {name} at {rating.thermal_resistance_k_per_w:g} K/W reaches its "
+                f"zero-power temperature {rating.zero_power_c:g} °C at "
+                f"{format_eng(float(derated_power(rating, hot)), 'W')} from {hot:g} °C, "
+                "below its derating line: its own temperature sets its allowance")
+    return notes
+
+
 def check_text(result: CheckResult) -> str:
     """The report ``rnsynth check`` prints, in the order of the job.
 
@@ -118,6 +135,7 @@ def check_text(result: CheckResult) -> str:
     if at_points:
         lines.append("note: each resistor is listed once, at the operating point where it "
                      "uses the most of its allowed dissipation")
+    lines.extend(_hot_spot_notes(design, result.parts))
     if any(p.kind == "resistor" and p.package is None for p in result.parts):
         lines.append("note: parts without a package are not checked against a power rating")
     supply = (f"supply current: {format_eng(result.supply_current, 'A')}" if design.has_supply
