@@ -31,8 +31,10 @@ change), so an output whose odds ask more is refused before the search, with
 the widest span a divider of that sensor reaches: RB = √(R(T1)·R(T2)) gives
 ``VREF·(√k - 1)/(√k + 1)``, ``k = R(T2)/R(T1)`` (common practice; it follows
 from maximising ``r/(r + RB)`` between the two resistances).  An RTD's own
-curve and a divider's bend the same way, so an RTD divider's error in °C grows
-with its span; a series and a parallel part do not straighten it.
+curve and a divider's bend the same way, so the divider's bend adds to the RTD's
+own and an RTD divider's error in °C grows with the share of the reachable span it
+uses; RS in series dilutes the sensor's change and with it the divider's bend (the
+ideal RP then runs to the top of its range: across an RTD it only adds to the bend).
 """
 
 from __future__ import annotations
