@@ -9,10 +9,11 @@ For ladder networks of 2, 3, 4 and 6 loops it prints
 * a per-candidate loop that forms Z and calls numpy.linalg.solve,
 and the ratio batched / loop; then Evaluator.evaluate on the same ladder with a voltage
 target on its last node and a limit on the supply current (targets, part stresses,
-supply current and noise floors out), next to the general path that solves the whole batch
-and measures it candidate-first (Evaluator.evaluate_general, the way evaluate worked
-before it measured block by block), each as a share of the block solve's rate; all
-measured in this one run on one core (best of several interleaved repeats).
+supply current and noise floors out, from candidate-first input: transposed block by
+block), next to the general path that solves the whole batch and measures it
+candidate-first (Evaluator.evaluate_general, synth/circuit/batch.py), each as a share of
+the block solve's rate (the block solve writing into arrays it reuses); all measured in
+this one run on one core (best of several interleaved repeats, CPU time of this process).
 Then the peak traced memory of a 10^7-candidate run through iter_solve_views that
 keeps only the largest node voltage.
 """
@@ -49,11 +50,13 @@ def targeted_ladder(loops: int):
 
 
 def best_of(fn, repeats=3):
+    """Least CPU time of ``repeats`` runs, s: one thread (OMP_NUM_THREADS=1), so its CPU
+    time is its work; wall time on a shared machine would count other processes' turns."""
     best = float("inf")
     for _ in range(repeats):
-        start = time.perf_counter()
+        start = time.process_time()
         fn()
-        best = min(best, time.perf_counter() - start)
+        best = min(best, time.process_time() - start)
     return best
 
 
@@ -102,10 +105,14 @@ def measure_evaluate(loops: int, rng: np.random.Generator, n_batch: int) -> None
     r_t = [np.ascontiguousarray(r[s:s + chunk].T) for s in range(0, n_batch, chunk)]
     e_t = np.full((1, chunk), 5.0)
     empty = np.zeros((0, chunk))
+    # the block solve into arrays it reuses: its own rate, whatever state the memory
+    # allocator is in (fresh arrays per block may or may not fault their pages in)
+    out = (np.empty((len(ev.network.nodes), chunk)),
+           np.empty((len(ev.network.branch_refs), chunk)), np.empty((0, chunk)))
 
     def blocks():
         for block in r_t:
-            solver.solve_block(block, e_t, empty, empty)
+            solver.solve_block(block, e_t, empty, empty, out=out)
 
     src = ev.nominal_sources
     best = {"block": np.inf, "evaluate": np.inf, "general": np.inf}

@@ -22,6 +22,7 @@ from __future__ import annotations
 __all__ = ["BlockMeasure", "MeasuredBlocks"]
 
 import math
+import sys
 from dataclasses import dataclass
 
 import numpy as np
@@ -118,11 +119,19 @@ class BlockMeasure:
             else:
                 rows = ()
             self.plan.append((target.kind, rows))
+        kinds_of = [("voltage", *_SCALED_BY_VOLTAGE), ("current",), ("power",)]
+        self.homes = tuple(next((k for k, t in enumerate(targets) if t.kind in those), None)
+                           for those in kinds_of)
+        """Per scale (voltage, current, power), the first target whose noise floor is that
+        scale itself: the scale is formed in its noise row (None: in a scratch row)."""
         self.left = [k for k, t in enumerate(targets) if t.kind not in _MEASURED]
         """Targets whose values the caller measures (a seen resistance, a transfer); the
         noise row of a transfer holds the voltage scale, for the caller to divide."""
         self._kept: MeasuredBlocks | None = None
-        self._scratch = np.empty((4, 0))
+        self._kept_for_reuse = False
+        self._scratch = np.empty((5, 0))
+        self._zeros = np.zeros(0)
+        self._r_work = np.empty((self.n_r, 0))
 
     def measure(self, r: np.ndarray, voltages: np.ndarray, currents: np.ndarray,
                 setpoints: np.ndarray, *, reuse: bool = False) -> MeasuredBlocks:
@@ -143,6 +152,15 @@ class BlockMeasure:
         Returns
         -------
         MeasuredBlocks
+
+        Notes
+        -----
+        The arrays of the last call are kept.  A later call of the same size
+        writes into them instead of fresh memory (whose page faults cost more
+        than the measurement on a large batch) when nothing else holds any of
+        them any more: no result, array or view of one is alive (counted by the
+        interpreter's references, against a baseline taken the same way on
+        arrays nobody holds), or that call passed ``reuse`` and this one does.
         """
         solver = self.solver
         n = len(r)
@@ -151,17 +169,13 @@ class BlockMeasure:
         j_all = as_block(currents, solver.n_i, n, "currents")
         s_all = as_block(setpoints, solver.n_g, n, "setpoints")
         chunk = solver.preferred_chunk
-        shared: dict[int, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
         with np.errstate(all="ignore"):
             for start in range(0, n, chunk):
                 stop = min(start + chunk, n)
-                m = stop - start
                 pick = slice(start, stop)
-                if m not in shared or not (len(e_all) == len(j_all) == len(s_all) == 1):
-                    shared[m] = (_rows(e_all, pick, n), _rows(j_all, pick, n),
-                                 _rows(s_all, pick, n))
-                e, j, s = shared[m]
-                r_block = np.ascontiguousarray(r[pick].T)
+                e, j, s = (_rows(e_all, pick, n), _rows(j_all, pick, n),
+                           _rows(s_all, pick, n))
+                r_block = self._transposed(r, pick)
                 v, i = out.voltages[:, pick], out.currents[:, pick]
                 solver.solve_block(r_block, e, j, s, out=(v, i, out.outputs[:, pick]))
                 if out.determinant is not None:
@@ -169,9 +183,26 @@ class BlockMeasure:
                 self._measure_block(out, pick, r_block, v, i)
         return out
 
+    def _transposed(self, r: np.ndarray, pick: slice) -> np.ndarray:
+        """``(resistors, m)`` the rows ``pick`` of ``r`` entity-first: a view when ``r`` is
+        F-ordered, else a copy into a buffer kept between blocks (no fresh memory)."""
+        block = r[pick].T
+        if block.flags.c_contiguous:
+            return block
+        m = block.shape[1]
+        if self._r_work.shape[1] < m:
+            self._r_work = np.empty((self.n_r, m))
+        work = self._r_work[:, :m]
+        work[...] = block
+        return work
+
     def _outputs(self, n: int, reuse: bool) -> MeasuredBlocks:
+        """The arrays a call of ``n`` candidates writes: the last call's when it may
+        overwrite them (see :meth:`measure`), fresh ones otherwise."""
         kept = self._kept
-        if reuse and kept is not None and kept.supply.shape[0] == n:
+        if kept is not None and kept.supply.shape[0] == n and (
+                (reuse and self._kept_for_reuse) or _unheld(kept)):
+            self._kept_for_reuse = reuse
             return kept
         n_t = self.n_targets
         fresh = MeasuredBlocks(
@@ -180,41 +211,55 @@ class BlockMeasure:
             determinant=np.empty(n) if self.solver.n_g else None,
             targets=np.zeros((n_t, n)), power=np.empty((self.n_r, n)),
             across=np.empty((self.n_r, n)), supply=np.empty(n), noise=np.zeros((n_t, n)))
-        if reuse:
-            self._kept = fresh
+        self._kept, self._kept_for_reuse = fresh, reuse
         return fresh
 
     def _work(self, m: int) -> np.ndarray:
-        """``(rows, m)`` scratch: four rows, then one per branch (for the magnitudes)."""
+        """``(5, m)`` scratch rows (and :attr:`_zeros` at least ``m`` long)."""
         if self._scratch.shape[1] < m:
-            self._scratch = np.empty((4 + max(self.n_branches, self.n_nodes), m))
+            self._scratch = np.empty((5, m))
+            self._zeros = np.zeros(m)  # a row, not a scalar: numpy's array-array loops are faster
         return self._scratch[:, :m]
 
     def _measure_block(self, out: MeasuredBlocks, pick: slice, r: np.ndarray,
                        v: np.ndarray, i: np.ndarray) -> None:
         m = r.shape[1]
         work = self._work(m)
+        zero = self._zeros[:m]
         power, across = out.power[:, pick], out.across[:, pick]
         i_r = i[: self.n_r]
-        np.multiply(i_r, r, out=power)  # (I·R)·I: neither I² nor I²·R leaves the float range first
-        np.multiply(power, i_r, out=power)
-        for k, (a, b) in enumerate(self.ends):
-            np.subtract(v[a], v[b], out=across[k])
-            np.absolute(across[k], out=across[k])
+        # (I·R)·I: neither I² nor I²·R leaves the float range first; R·I is the solver's
+        # own drop when it has one (the same product: multiplication commutes), which it
+        # has when every resistance of the block is finite and of ordinary size
+        drops = self.solver.last_drops
+        if drops is None or drops.shape != i_r.shape:
+            drops = np.multiply(i_r, r, out=across)
+        np.multiply(drops, i_r, out=power)
+        np.absolute(drops, out=across)
+        if not math.isfinite(float(np.add.reduce(across, axis=None))):
+            # a drop that is not a number (an infinite resistance carrying no current, or
+            # a failed solve): the voltage between the resistor's ends instead
+            undefined = ~np.isfinite(across)
+            for row in np.flatnonzero(undefined.any(axis=1)).tolist():
+                a, b = self.ends[row]
+                here = undefined[row]
+                across[row, here] = np.abs(v[a, here] - v[b, here])
         supply = out.supply[pick]
         if self.supply_rows:
             first, *rest = self.supply_rows
-            np.maximum(i[first], 0.0, out=supply)
+            np.maximum(i[first], zero, out=supply)
             for row in rest:
-                np.maximum(i[row], 0.0, out=work[0])
+                np.maximum(i[row], zero, out=work[0])
                 np.add(supply, work[0], out=supply)
         else:
             supply.fill(0.0)
         if not self.n_targets:
             return
         targets, noise = out.targets[:, pick], out.noise[:, pick]
+        # each scale straight into the noise row of its first target that is the scale
+        v_scale, i_scale, p_scale = (work[1 + s] if home is None else noise[home]
+                                     for s, home in enumerate(self.homes))
         # the ground row of the node voltages is zero: the largest starts after it
-        v_scale, i_scale, p_scale = work[1], work[2], work[3]
         if self.need_v:
             _largest(v[1:], v_scale, work[4:])
         if self.need_i:
@@ -225,7 +270,8 @@ class BlockMeasure:
             row = targets[k]
             if kind == "voltage":
                 np.subtract(v[rows[0]], v[rows[1]], out=row)
-                noise[k] = v_scale
+                if k != self.homes[0]:
+                    noise[k] = v_scale
             elif kind in ("ratio", "loss"):
                 a, b, c, d = rows
                 num, den = work[0], noise[k]
@@ -249,36 +295,71 @@ class BlockMeasure:
                 np.nan_to_num(den, copy=False, nan=0.0, posinf=0.0)
             elif kind == "current":
                 row[...] = i[rows[0]]
-                noise[k] = i_scale
+                if k != self.homes[1]:
+                    noise[k] = i_scale
             elif kind == "power":
                 row[...] = power[rows[0]]
-                noise[k] = p_scale
-            elif kind in _SCALED_BY_VOLTAGE:
+                if k != self.homes[2]:
+                    noise[k] = p_scale
+            elif kind in _SCALED_BY_VOLTAGE and k != self.homes[0]:
                 noise[k] = v_scale
 
 
+def _references(blocks: MeasuredBlocks) -> int:
+    """The largest reference count of any array of ``blocks`` (None entries skipped)."""
+    arrays = (blocks.voltages, blocks.currents, blocks.outputs, blocks.determinant,
+              blocks.targets, blocks.power, blocks.across, blocks.supply, blocks.noise)
+    return max(sys.getrefcount(a) for a in arrays if a is not None)
+
+
+def _baseline() -> int:
+    """:func:`_references` of arrays that nothing but their record holds."""
+    def fresh() -> np.ndarray:
+        return np.empty((1, 1))
+
+    return _references(MeasuredBlocks(fresh(), fresh(), fresh(), fresh()[0], fresh(),
+                                      fresh(), fresh(), fresh()[0], fresh()))
+
+
+_UNHELD = _baseline()
+"""Reference count of an array only its :class:`MeasuredBlocks` holds (measured here, not
+assumed: the count a call adds depends on the interpreter)."""
+
+
+def _unheld(blocks: MeasuredBlocks) -> bool:
+    """True when no reference to any array of ``blocks`` exists outside it (no result,
+    array or view alive: a view holds its base), so its memory may be written again."""
+    return _references(blocks) <= _UNHELD
+
+
 def _rows(values: np.ndarray, pick: slice, n: int) -> np.ndarray:
-    """Entity-first block of per-candidate values, or the shared row repeated."""
+    """Entity-first block of per-candidate values, or a read-only view repeating the shared
+    row (no copy: the solve only reads its sources)."""
     if len(values) == n and n > 1:
         return np.ascontiguousarray(values[pick].T)
-    count = pick.stop - pick.start
-    return np.ascontiguousarray(np.broadcast_to(values[:1], (count, values.shape[1])).T)
+    return np.broadcast_to(values[0][:, None], (values.shape[1], pick.stop - pick.start))
 
 
 def _largest(rows: np.ndarray, out: np.ndarray, scratch: np.ndarray) -> np.ndarray:
     """``NOISE_FRACTION`` times the largest finite magnitude down each column, ``(M,)``.
 
-    ``fmax`` skips NaN (counted as zero, as no row is negative); an infinite
-    value (rare: a candidate beyond the float range) sends its column through
-    the exact masked maximum.  ``scratch`` holds at least as many rows as ``rows``.
+    The largest magnitude is the larger of the largest value and minus the
+    least, read in two reductions without a temporary of magnitudes; ``fmax``
+    and ``fmin`` skip NaN.  A column of NaN
+    only (counted zero) or with an infinite value (rare: a candidate beyond the
+    float range) goes through the exact masked maximum.  ``scratch`` holds at
+    least one row.
     """
     if not len(rows):
         out.fill(0.0)
         return out
-    magnitude = np.absolute(rows, out=scratch[:len(rows)])
-    np.fmax.reduce(magnitude, axis=0, out=out)
-    np.fmax(out, 0.0, out=out)
-    if not math.isfinite(float(out.max(initial=0.0))):
+    least = scratch[0]
+    np.fmax.reduce(rows, axis=0, out=out)
+    np.fmin.reduce(rows, axis=0, out=least)
+    np.subtract(0.0, least, out=least)  # never -0.0
+    # at least zero (+0.0 when the least is at most zero), or NaN for a column of NaN only
+    np.fmax(least, out, out=out)
+    if not math.isfinite(float(out.max(initial=0.0))):  # NaN or infinity
         bad = ~np.isfinite(out)
         values = rows[:, bad]
         out[bad] = np.where(np.isfinite(values), np.abs(values), 0.0).max(axis=0, initial=0.0)

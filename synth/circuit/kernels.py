@@ -202,9 +202,11 @@ def resistance_scale(r: np.ndarray) -> np.ndarray | None:
     """
     if r.size == 0:
         return None
+    if _ORDINARY_LOW <= r.min() and r.max() <= _ORDINARY_HIGH:
+        # the common case, settled by two reductions and no temporary: every value is
+        # then positive, its own magnitude (NaN fails both tests)
+        return None
     magnitude = np.abs(r)
-    if _ORDINARY_LOW <= magnitude.min() and magnitude.max() <= _ORDINARY_HIGH:
-        return None  # the common case, settled by two reductions (NaN fails both tests)
     with np.errstate(invalid="ignore"):
         top = np.max(magnitude, axis=0)
     finite = np.isfinite(top) & (top > 0)

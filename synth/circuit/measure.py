@@ -15,6 +15,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 from numpy.typing import ArrayLike
 
+from synth.circuit.batch import BatchMeasure
 from synth.circuit.blocks import BlockMeasure
 from synth.circuit.mesh import MeshSolver
 from synth.circuit.network import Network, build_network
@@ -23,7 +24,6 @@ from synth.circuit.solvers import Solver, network_solver
 from synth.circuit.wellposed import refuse_singular, refuse_undefined_ratios
 from synth.design.model import Design
 from synth.design.target import Target
-from synth.rating import NOISE_FRACTION
 
 
 @dataclass(frozen=True)
@@ -166,6 +166,10 @@ class Evaluator:
             self.supply_groups = [
                 np.array([k for k, ref in enumerate(supply_refs)
                           if ref.rpartition("@")[2] == name], dtype=int) for name in names]
+        self.batch = BatchMeasure(design.targets, self.node_index, self.branch_index,
+                                  self.resistor_index, self.network.resistor_ends,
+                                  self.supply_columns, self.supply_groups, self._seen_target)
+        """Measures a whole solved batch (the general path; every seen resistance)."""
         if isinstance(self.solver, MeshSolver):
             self._blocks = BlockMeasure(self.solver, design.targets, self.node_index,
                                         self.branch_index, self.resistor_index,
@@ -301,11 +305,11 @@ class Evaluator:
                            regulator_determinant=got.determinant)
         for k in blocks.left:
             target = self.design.targets[k]
-            got.targets[k] = self._target_values(target, r, sol, got.power.T, None)
+            got.targets[k] = self.batch.target_values(target, r, sol, got.power.T, None)
             if target.kind in ("gain", "offset"):
-                self._transfer_noise(target, sol, got.noise[k])
+                self.batch.transfer_noise(target, sol, got.noise[k])
         power, across = got.power.T, got.across.T
-        supply = self._grouped_supply(sol) if self.supply_groups else got.supply
+        supply = self.batch.supply(sol) if self.supply_groups else got.supply
         if parts:
             part_i, part_u, part_p = self._split(r, got.currents[:blocks.n_r].T, across, power,
                                                  part_values)
@@ -319,7 +323,8 @@ class Evaluator:
     def evaluate_general(self, r: np.ndarray, src: SourceValues,
                          part_values: np.ndarray | None = None, *, parts: bool = True
                          ) -> Evaluation:
-        """:meth:`evaluate` for any solver: solve the whole block, then measure it.
+        """:meth:`evaluate` for any solver: solve the whole batch, then measure it
+        (:class:`synth.circuit.batch.BatchMeasure`).
 
         The form every solver takes (sparse and controlled solves use it); a
         loop-solved network goes through :class:`synth.circuit.blocks.BlockMeasure`
@@ -327,89 +332,37 @@ class Evaluator:
         """
         gains = src.gains if src.gains is not None else self.nominal_sources.gains
         sol = self._solve(self.solver, r, src.voltages, src.currents, src.setpoints, gains)
-        n_r = len(self.network.resistor_refs)
-        i_r = sol.branch_currents[:, :n_r]
-        power = i_r * r * i_r  # (I·R)·I: neither I² nor I²·R leaves the float range first
-        ends = self.network.resistor_ends
-        across = np.abs(sol.node_voltages[:, ends[:, 0]] - sol.node_voltages[:, ends[:, 1]])
-        targets = np.column_stack(
-            [self._target_values(t, r, sol, power, gains) for t in self.design.targets]
-        ) if self.design.targets else np.zeros((len(r), 0))
-        supply = self._grouped_supply(sol)
+        got = self.batch.measure(r, sol, gains)
         if parts:
-            part_i, part_u, part_p = self._split(r, i_r, across, power, part_values)
+            n_r = len(self.network.resistor_refs)
+            part_i, part_u, part_p = self._split(r, sol.branch_currents[:, :n_r], got.across,
+                                                 got.power, part_values)
         else:
             part_i = part_u = part_p = np.zeros((len(r), 0))
-        noise = self.target_noise(sol, power)
-        return Evaluation(solution=sol, targets=targets, resistor_power=power,
-                          resistor_voltage=across, supply_current=supply,
+        return Evaluation(solution=sol, targets=got.targets, resistor_power=got.power,
+                          resistor_voltage=got.across, supply_current=got.supply,
                           part_current=part_i, part_voltage=part_u, part_power=part_p,
-                          target_noise=noise)
-
-    def _grouped_supply(self, sol: MeshSolution) -> np.ndarray:
-        """``(N,)`` A: the delivered supply current (the largest operating point's)."""
-        delivered = np.clip(sol.branch_currents[:, self.supply_columns], 0.0, None)
-        if self.supply_groups:
-            return np.max([delivered[:, cols].sum(axis=1)  # type: ignore[no-any-return]  # numpy types this array expression as Any
-                           for cols in self.supply_groups], axis=0)
-        return delivered.sum(axis=1)  # type: ignore[no-any-return]  # numpy types this array expression as Any
-
-    def _transfer_noise(self, target: Target, sol: MeshSolution, row: np.ndarray) -> None:
-        """A gain's or offset's noise floor from the voltage scale ``row`` holds (in place)."""
-        _, _, in_a, in_b = self.transfer_terms(target, sol)
-        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-            span = np.abs(in_b - in_a)
-            row[...] = (2 * row / span if target.kind == "gain"
-                        else row * (1 + 2 * np.abs(in_a) / span))
-        np.nan_to_num(row, copy=False, nan=0.0, posinf=0.0)
+                          target_noise=got.noise)
 
     def target_noise(self, sol: MeshSolution, power: np.ndarray) -> np.ndarray:
-        """``(N, targets)`` the noise floor of each target value, in the target's unit.
+        """``(N, targets)`` the noise floor of each target value, in the target's unit
+        (:meth:`synth.circuit.batch.BatchMeasure.noise`)."""
+        return self.batch.noise(sol, power)
 
-        :data:`synth.rating.NOISE_FRACTION` of the network's scale for the
-        quantity: the largest node voltage (V) for a voltage, the largest
-        branch current (A) for a current, the largest dissipation (W) for a
-        power; for a ratio the voltage scale over the ratio's reference
-        voltage, for a loss the same through the logarithm (dB).  A resistance
-        has none (its slack is relative).  A solve rounds to about 1e-16 of
-        its scale, so a value within this floor of a window's edge cannot be
-        told from the edge.
-        """
-        n = len(sol.node_voltages)
-        out = np.zeros((n, len(self.design.targets)))
-        if not self.design.targets:
-            return out
-        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-            def largest(values: np.ndarray) -> np.ndarray:
-                finite = np.where(np.isfinite(values), np.abs(values), 0.0)
-                return finite.max(axis=1, initial=0.0)  # type: ignore[no-any-return]  # numpy types this array expression as Any
+    def transfer_terms(self, target: Target, sol: MeshSolution
+                       ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+        """Output and input at each of a transfer's two points, ``(N,)`` each
+        (:meth:`synth.circuit.batch.BatchMeasure.transfer_terms`)."""
+        return self.batch.transfer_terms(target, sol)
 
-            kinds = {t.kind for t in self.design.targets}
-            v_scale = NOISE_FRACTION * largest(sol.node_voltages)
-            i_scale = NOISE_FRACTION * largest(sol.branch_currents) if "current" in kinds \
-                else v_scale
-            p_scale = NOISE_FRACTION * largest(power) if "power" in kinds else v_scale
-            v = sol.node_voltages
-            idx = self.node_index
-            for k, target in enumerate(self.design.targets):
-                if target.kind == "voltage":
-                    out[:, k] = v_scale
-                elif target.kind == "current":
-                    out[:, k] = i_scale
-                elif target.kind == "power":
-                    out[:, k] = p_scale
-                elif target.kind in ("gain", "offset"):
-                    _, _, in_a, in_b = self.transfer_terms(target, sol)
-                    span = np.abs(in_b - in_a)
-                    out[:, k] = (2 * v_scale / span if target.kind == "gain"
-                                 else v_scale * (1 + 2 * np.abs(in_a) / span))
-                elif target.kind in ("ratio", "loss"):
-                    a, b, c, d = target.nodes
-                    num = np.abs(v[:, idx[a]] - v[:, idx[b]])
-                    den = np.abs(v[:, idx[c]] - v[:, idx[d]])
-                    out[:, k] = (v_scale / den if target.kind == "ratio"
-                                 else 20.0 / np.log(10.0) * v_scale * (1 / num + 1 / den))
-        return np.nan_to_num(out, nan=0.0, posinf=0.0)
+    def _seen_target(self, target: Target, r: np.ndarray, gains: np.ndarray | None
+                     ) -> np.ndarray:
+        """A resistance target's values, ohm ``(N,)``: a test-source solve of its own."""
+        a, b = target.nodes
+        if target.without:
+            reduced, keep = self._reduced(target.without)
+            return reduced.seen_resistance(r[:, keep], a, b, gains)
+        return self.seen_resistance(r, a, b, gains)
 
     def _split(self, r: np.ndarray, current: np.ndarray, across: np.ndarray, power: np.ndarray,
                part_values: np.ndarray | None
@@ -431,57 +384,6 @@ class Evaluator:
             part_i[:, cols], part_u[:, cols], part_p[:, cols] = (
                 shares.current, shares.voltage, shares.power)
         return part_i, part_u, part_p
-
-    def _target_values(self, target: Target, r: np.ndarray, sol: MeshSolution,
-                       power: np.ndarray, gains: np.ndarray | None = None) -> np.ndarray:
-        v = sol.node_voltages
-        idx = self.node_index
-        if target.kind == "voltage":
-            a, b = target.nodes
-            return v[:, idx[a]] - v[:, idx[b]]  # type: ignore[no-any-return]  # numpy types this array expression as Any
-        if target.kind in ("ratio", "loss"):
-            a, b, c, d = target.nodes
-            with np.errstate(divide="ignore", invalid="ignore"):
-                ratio = (v[:, idx[a]] - v[:, idx[b]]) / (v[:, idx[c]] - v[:, idx[d]])
-                if target.kind == "ratio":
-                    return ratio  # type: ignore[no-any-return]  # numpy types this array expression as Any
-                # loss in dB, -20 log10 of the voltage ratio (NaN where the ratio is not positive)
-                return -20.0 * np.log10(np.where(ratio > 0, ratio, np.nan))
-        if target.kind in ("gain", "offset"):
-            out_a, out_b, in_a, in_b = self.transfer_terms(target, sol)
-            with np.errstate(divide="ignore", invalid="ignore"):
-                gain = (out_b - out_a) / (in_b - in_a)
-                return gain if target.kind == "gain" else out_a - gain * in_a  # type: ignore[no-any-return]  # numpy types this array expression as Any
-        if target.kind == "current":
-            return sol.branch_currents[:, self.branch_index[target.ref or ""]]
-        if target.kind == "power":
-            return power[:, self.resistor_index[target.ref or ""]]
-        a, b = target.nodes
-        if target.without:
-            reduced, keep = self._reduced(target.without)
-            return reduced.seen_resistance(r[:, keep], a, b, gains)
-        return self.seen_resistance(r, a, b, gains)
-
-    def transfer_terms(self, target: Target, sol: MeshSolution
-                       ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-        """Output and input at each of a transfer's two points, ``(N,)`` each.
-
-        Outputs are node-pair voltages (V); inputs node-pair voltages or, for
-        a current-source input, the source's current (A).
-        """
-        v = sol.node_voltages
-        idx = self.node_index
-        n = target.nodes
-
-        def pair(k: int) -> np.ndarray:
-            return v[:, idx[n[k]]] - v[:, idx[n[k + 1]]]  # type: ignore[no-any-return]  # numpy types this array expression as Any
-
-        if target.input_refs:
-            first, second = (sol.branch_currents[:, self.branch_index[ref]]
-                             for ref in target.input_refs)
-        else:
-            first, second = pair(4), pair(6)
-        return pair(0), pair(2), first, second
 
     def _reduced(self, without: tuple[str, ...]) -> tuple[Evaluator, np.ndarray]:
         """An evaluator of the network with the positions ``without`` opened (left out)."""

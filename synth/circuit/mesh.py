@@ -184,6 +184,10 @@ class MeshSolver:
         self.last_determinant = np.zeros(0)
         """``(M,)`` the regulators' Schur determinant of the last block solved (a view of the
         solver's work arrays, valid until the next block)."""
+        self.last_drops: np.ndarray | None = None
+        """``(resistors, M)`` V, each resistor's R·I of the last block solved (a view of the
+        solver's work arrays, valid until the next block); None when that block was solved
+        per unit (its drops were formed from scaled values)."""
         self.last_regulator_system = np.zeros((0, self.n_g, self.n_g))
         """``(M, regulators, regulators)`` the regulators' Schur system of the last block
         solved (its rows are the regulators' constraints; singular where they depend)."""
@@ -382,6 +386,7 @@ class MeshSolver:
         if self.n_i:
             self._map_k_t.apply(j, out=currents, accumulate=True)
         drops = np.multiply(r, currents[: self.n_r], out=work["drops"])
+        self.last_drops = drops if scale is None else None
         # node voltages down the spanning tree: one operation per node (the path matrix
         # would cost the sum of all path lengths); a source's branch voltage is -E
         voltages[0].fill(0.0)

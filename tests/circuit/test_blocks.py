@@ -115,3 +115,35 @@ def test_operating_points_and_transfer_targets_measure_alike():
     r[0, 0] = np.inf
     with np.errstate(all="ignore"):
         compare(ev, ev.follow(r))
+
+
+def _address(array):
+    return array.__array_interface__["data"][0]
+
+
+def test_a_result_still_held_is_never_overwritten_and_a_dropped_one_is_written_again():
+    design = design_from_dict(random_design(3))
+    ev = Evaluator(design)
+    r = np.tile(ev.weights, (10, 1))
+    first = ev.evaluate(r)
+    want = first.targets.copy()
+    second = ev.evaluate(r * 2)  # the first result is alive: fresh arrays
+    np.testing.assert_array_equal(first.targets, want)
+    assert not np.shares_memory(first.targets, second.targets)
+    column = second.solution.node_voltages[:, 1]  # a view keeps its arrays held
+    volts = column.copy()
+    del second
+    third = ev.evaluate(r * 3)
+    np.testing.assert_array_equal(column, volts)
+    assert not np.shares_memory(column, third.solution.node_voltages)
+    address = _address(third.targets)
+    del third  # nothing holds it now: the next call of that size writes into it
+    fourth = ev.evaluate(r * 4)
+    assert _address(fourth.targets) == address
+    np.testing.assert_array_equal(fourth.targets, ev.evaluate_general(
+        r * 4, ev.nominal_sources).targets)
+    # a call with reuse never overwrites a result that was returned without it
+    fifth = ev.evaluate(r * 5, reuse=True)
+    assert not np.shares_memory(fourth.targets, fifth.targets)
+    np.testing.assert_array_equal(fourth.targets, ev.evaluate_general(
+        r * 4, ev.nominal_sources).targets)
