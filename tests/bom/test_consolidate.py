@@ -184,3 +184,25 @@ def test_least_error_over_every_choice_on_crowded_values(seed, values):
     lines, _, error = lexicographic_best(pools)
     assert result.lines == lines and result.stages[-1].scope == "every choice"
     assert result.total_error == pytest.approx(error, abs=1e-8)
+
+
+def test_an_unproven_stage_searches_again_from_no_hint_for_its_bound(monkeypatch):
+    from synth.bom import consolidate as module
+
+    calls = []
+
+    def solve(self, name, hint, work, seconds):
+        calls.append((name, hint is None, round(work, 6)))
+        if name == "error":
+            return None, 0.0, 0.0, False
+        # from the hint: no proof and a weak bound; from no hint: a higher bound
+        return None, (4.0 if hint is None else 2.0), work, False
+
+    monkeypatch.setattr(module._Model, "solve", solve)
+    # two networks that share no line: the floor is 2 lines and the greedy cover 6
+    pools = [Pool([frozenset({0, 1, 2}), frozenset({3, 4, 5})], [0.0, 0.01]),
+             Pool([frozenset({0, 6, 7}), frozenset({3, 8, 9})], [0.0, 0.01])]
+    result = consolidate(pools, work_limit=10.0, presolved=False)
+    lines = result.stages[0]
+    assert calls[:2] == [("lines", False, 3.0), ("lines", True, 3.0)]  # 0.6 x 10, halved
+    assert (lines.value, lines.bound, lines.proven, lines.work) == (5, 4, False, 6.0)
