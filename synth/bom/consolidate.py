@@ -10,7 +10,8 @@ that, in order of priority,
 3. then the total of the networks' errors is smallest.
 
 Stages 1 and 2 are solved by CP-SAT, started from a greedy cover
-(:func:`synth.bom.cover.greedy_cover`).  The model: a Boolean per (network,
+(:func:`synth.bom.cover.greedy_cover`) made smaller by swaps of two lines for one
+(:func:`synth.bom.cover.improved_cover`).  The model: a Boolean per (network,
 candidate) with exactly one per network, a Boolean per BOM line, and for each
 network and line ``Σ candidates needing the line ≤ line`` (the aggregated form of
 ``candidate ⇒ line``, whose linear relaxation is much tighter).  CP-SAT's core-based
@@ -53,7 +54,7 @@ from typing import Any
 
 from ortools.sat.python import cp_model
 
-from synth.bom.cover import best_within, greedy_cover, smallest_need
+from synth.bom.cover import best_within, greedy_cover, improved_cover, smallest_need
 from synth.bom.presolve import Component, Presolved, disjoint_need, presolve, subsets
 
 _ERROR_UNIT = 1e-9  # errors enter the model as integers of this size (fractions)
@@ -287,6 +288,7 @@ def _solve_part(part: Component, buy: frozenset[int], names: Sequence[str], seed
     cover = greedy_cover(lines, deadline)
     if cover is None:
         return None
+    cover = improved_cover(lines, cover, deadline)
     choice = tuple(next(c for c, s in enumerate(pool) if s <= cover) for pool in lines)
     model = _Model(lines, None, buy, seed)
 

@@ -11,7 +11,7 @@ network's own least error, found by going through its candidates.
 
 from __future__ import annotations
 
-__all__ = ["best_within", "greedy_cover", "smallest_need"]
+__all__ = ["best_within", "greedy_cover", "improved_cover", "smallest_need"]
 
 import itertools
 import time
@@ -101,6 +101,69 @@ def greedy_cover(lines: Sequence[Sequence[frozenset[int]]],
         rest = chosen - {line}
         if all(any(c <= rest for c in pool) for pool in lines):
             chosen = rest
+    return frozenset(chosen)
+
+
+def improved_cover(lines: Sequence[Sequence[frozenset[int]]], cover: frozenset[int],
+                   deadline: float | None = None) -> frozenset[int]:
+    """A cover made smaller by swaps of two of its lines for one, while one is found.
+
+    Parameters
+    ----------
+    lines : sequence of sequences of frozenset of int
+        Per network, each candidate's lines.
+    cover : frozenset of int
+        A cover of every network (:func:`greedy_cover`'s).
+    deadline : float, optional
+        A ``time.perf_counter()`` instant; past it the cover found so far is returned.
+
+    Returns
+    -------
+    frozenset of int
+        A cover of no more lines than ``cover``.
+
+    Notes
+    -----
+    A local search of the fewest lines (a 2-for-1 exchange, as in local search for set
+    cover): for each pair of the cover's lines, in ascending order, the networks left
+    without a candidate once both go must each be completed by one same new line; the
+    smallest such line replaces the pair, and the search starts again from the smaller
+    cover.  The result depends only on the input.  On a 50-network E96 board it takes the
+    greedy cover's 18 lines to 17 at once, where CP-SAT from the greedy cover found none
+    fewer within its work limit.
+
+    Examples
+    --------
+    >>> pools = [[frozenset({0, 1}), frozenset({4})], [frozenset({2, 3}), frozenset({4})]]
+    >>> sorted(improved_cover(pools, frozenset({0, 1, 2, 3})))  # 0, 1 for 4; then 2, 3 go
+    [4]
+    """
+    chosen = set(cover)
+    swapped = True
+    while swapped:
+        swapped = False
+        for pair in itertools.combinations(sorted(chosen), 2):
+            if deadline is not None and time.perf_counter() > deadline:
+                return frozenset(chosen)
+            rest = chosen.difference(pair)
+            # for each network left open: the single lines that would complete it
+            completing: set[int] | None = None
+            for pool in lines:
+                missing = [c - rest for c in pool]
+                if any(not m for m in missing):
+                    continue
+                ones = {next(iter(m)) for m in missing if len(m) == 1}
+                completing = ones if completing is None else completing & ones
+                if not completing:
+                    break
+            if completing is None:  # the pair was not needed at all
+                chosen = rest
+            elif completing:
+                chosen = rest | {min(completing)}
+            else:
+                continue
+            swapped = True
+            break
     return frozenset(chosen)
 
 

@@ -11,9 +11,9 @@ import time
 import numpy as np
 import pytest
 
-from bom.exhaustive import least_error_within
-from synth.bom.consolidate import Pool
-from synth.bom.cover import best_within, greedy_cover, smallest_need
+from bom.exhaustive import least_error_within, lexicographic_best
+from synth.bom.consolidate import Pool, consolidate
+from synth.bom.cover import best_within, greedy_cover, improved_cover, smallest_need
 
 
 def random_lines(rng, networks, most, values=10):
@@ -61,3 +61,46 @@ def test_best_within_breaks_ties_by_rank_and_refuses_no_fit():
     assert best_within([[frozenset({1}), frozenset({1})]], [[0.0, 0.0]], frozenset({1})) == (0,)
     with pytest.raises(ValueError, match="network 0 has no candidate"):
         best_within([[frozenset({1})]], [[0.0]], frozenset({2}))
+
+
+@pytest.mark.parametrize("seed", range(20))
+def test_swaps_keep_a_cover_never_larger_nor_below_the_fewest_lines(seed):
+    rng = np.random.default_rng(100 + seed)
+    lines = random_lines(rng, networks=int(rng.integers(2, 7)), most=5, values=8)
+    greedy = greedy_cover(lines)
+    better = improved_cover(lines, greedy)
+    assert all(any(c <= better for c in pool) for pool in lines)
+    fewest, _, _ = lexicographic_best([Pool(pool, [0.0] * len(pool)) for pool in lines])
+    assert fewest <= len(better) <= len(greedy)
+
+
+def test_a_swap_of_two_lines_for_one_reaches_the_fewest_where_the_greedy_cover_does_not(
+        monkeypatch):
+    from synth.bom import consolidate as module
+
+    # the greedy cover takes 6 lines where 5 suffice
+    lines = [[frozenset(c) for c in pool] for pool in (
+        [{2, 3}, {2, 4}], [{1, 4, 5}, {0, 7}, {0, 6, 7}, {0, 1, 4}],
+        [{4}, {5, 6}, {0, 7}, {0, 1, 7}], [{3, 6, 7}, {2, 5, 7}, {3, 6}])]
+    pools = [Pool(pool, [0.0] * len(pool)) for pool in lines]
+    fewest, _, _ = lexicographic_best(pools)
+    greedy = greedy_cover(lines)
+    better = improved_cover(lines, greedy)
+    assert len(greedy) > len(better) == fewest
+    # the consolidation starts CP-SAT from the smaller cover
+    started = []
+
+    def improved(*args, **kwargs):
+        started.append(improved_cover(*args, **kwargs))
+        return started[-1]
+
+    monkeypatch.setattr(module, "improved_cover", improved)
+    assert consolidate(pools, presolved=False).lines == fewest
+    assert started == [better]
+
+
+def test_swaps_stop_at_the_deadline():
+    lines = [[frozenset({k}), frozenset({10})] for k in range(4)]
+    cover = frozenset(range(4))
+    assert improved_cover(lines, cover, deadline=time.perf_counter() - 1.0) == cover
+    assert improved_cover(lines, cover) == {10}
