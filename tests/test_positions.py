@@ -198,12 +198,21 @@ def test_parallel_shunt_cli_shows_no_over_allowance_caution(tmp_path) -> None:
     assert "86%" in result.output and "172%" not in result.output
 
 
+def _shunt_with_tcr(tmp_path: Path, tcr: str) -> Any:
+    import tomllib
+
+    text = SHUNT.replace("AMBIENT", "25 C").replace(
+        'tolerance = "1%"', f'tolerance = "1%"\ntcr = "{tcr}"')
+    return design_from_dict(tomllib.loads(text), origin=str(tmp_path / "shunt.toml"))
+
+
 def test_parallel_shunt_yield_is_judged_per_part(tmp_path) -> None:
     # Each part's worst dissipation over its ±1 % box is 0.4343 W, under 0.5 W, so every
-    # Monte Carlo sample passes: refcheck's seeded yield is 1 [CALC-yield].
+    # Monte Carlo sample passes: refcheck's seeded yield is 1 [CALC-yield].  The
+    # reference checker has no self-heating, so the parts here have no TCR.
     ref = scenario("shunt_20a")
     assert ref["mc_yield"] == 1.0
-    _, design = shunt(tmp_path)
+    design = _shunt_with_tcr(tmp_path, "0 ppm/C")
     result = check(design, spread=SpreadSettings(samples=4000, seed=5))
     spread = result.spread
     assert spread is not None and spread.yield_interval is not None
@@ -216,6 +225,22 @@ def test_parallel_shunt_yield_is_judged_per_part(tmp_path) -> None:
                                                          rel=1e-9)
         assert by_ref[name].utilization == pytest.approx(
             ref["part_worst_power"][name] / ref["allowance_25c"], rel=1e-9)
+
+
+def test_parallel_shunt_worst_power_takes_each_parts_self_heating(tmp_path) -> None:
+    # With a TCR, each part's worst resistance also drifts over its own rise
+    # dT = P * Rth = 0.43 W * 85 K/W [HB-self-heating] [CP-thermal-resistance], so under
+    # the 20 A source (P = I^2 R [HB-ohm]) its worst dissipation is refcheck's box worst
+    # times 1 + TCR * dT.
+    ref = scenario("shunt_20a")
+    rise_k = ref["part_nominal_power"]["R1A"] * 85.0
+    design = _shunt_with_tcr(tmp_path, "100 ppm/C")
+    result = check(design, spread=SpreadSettings(samples=0))
+    assert result.spread is not None
+    by_ref = {p.ref: p for p in result.spread.parts}
+    for name in ("R1A", "R1B"):
+        assert by_ref[name].worst_power == pytest.approx(
+            ref["part_worst_power"][name] * (1 + 100e-6 * rise_k), rel=1e-9)
 
 
 # --------------------------------------------------------------------------- 5. stock shelf

@@ -193,8 +193,8 @@ def design_command(design_file: str, search: SearchOptions, spread: SpreadOption
 @click.option("--force", is_flag=True, help="Replace an existing output file.")
 @click.option("--time-limit", type=float, default=30.0, show_default=True,
               metavar="SECONDS",
-              help="Wall-clock limit of the consolidation (a guard: when it binds, a rerun "
-                   "may choose differently).")
+              help="Wall-clock limit of the whole command: the networks' searches and the "
+                   "consolidation (a guard: when it binds, a rerun may choose differently).")
 @click.option("--work-limit", type=float, default=BOM_WORK_LIMIT, show_default=True,
               metavar="UNITS",
               help="Work limit of the consolidation in solver work units (about a second "
