@@ -4,7 +4,8 @@ A design whose points are the two ends of a source's range (:mod:`synth.design.p
 is judged at the ends, which is exact; this sweeps the source between them so a
 picture can show the transfer curve.  At each swept value the network is solved at
 nominal values and at every vertex of the tolerance box (each physical part one
-deviation at every point), so the envelope is exact at every swept value; with more
+deviation at every point, its TCR over its own temperature with its self-heating rise at
+the design's nominal values), so the envelope is exact at every swept value; with more
 than :data:`ENVELOPE_VARIABLES` varying quantities, or with a matched array (whose common
 deviation the vertices do not bound), no envelope is given.
 """
@@ -21,6 +22,7 @@ import numpy as np
 from synth.circuit.measure import Evaluator
 from synth.design.model import Design
 from synth.design.points import COPY_MARK, point_label
+from synth.spread.heating import part_rises
 from synth.spread.variables import SpreadVariables, box_corners
 
 ENVELOPE_VARIABLES = 10
@@ -109,7 +111,10 @@ def range_curves(design: Design, positions: dict[str, float], values: dict[str, 
     for c, ref in enumerate(design.part_refs):
         parts0[c] = values.get(ref, parts0[c])
     parts0 = ev.follow_parts(parts0)[0]
-    var = SpreadVariables(design, ev)
+    # the parts' self-heating rises at the design's nominal values, held over the sweep (first
+    # order, as in the spread: synth.spread.heating)
+    at_nominal = ev.evaluate(np.atleast_2d(r0), part_values=parts0[None, :])
+    var = SpreadVariables(design, ev, rise_c=part_rises(design, ev, at_nominal.part_power[0]))
     # a matched array's common deviation is not linear-fractional in general: its ends
     # alone give no exact envelope (synth.spread.common_mode), so none is drawn
     exact = len(var) <= ENVELOPE_VARIABLES and not var.common_of

@@ -311,3 +311,22 @@ def test_each_candidates_box_follows_its_own_rises():
                                        rel=1e-9)
     assert low[:, 0] == pytest.approx([0.1 * (1 - 1.85e-3), 0.4 * (1 - 100e-6 * 44)],
                                       rel=1e-9)
+
+
+def test_a_range_curves_envelope_holds_the_rise():
+    # the shunt from 0.5 A to 1.5 A: rises 2.125 K and 19.125 K at the ends, the part's one
+    # rise the larger [HB-self-heating]; at 1.5 A the envelope is 0.15 V x (1 ± 100e-6 x
+    # 19.125) at one ambient, as the spread's worst case there
+    from synth.spread.range_curve import range_curves
+
+    raw = shunt()
+    raw["source"][0] = {"ref": "I1", "kind": "current", "from": "gnd", "to": "sense",
+                        "range": ["0.5 A", "1.5 A"]}
+    raw["target"] = [{"voltage": "sense", "at_least": "0 V"}]
+    design = design_from_dict(raw)
+    curve = range_curves(design, {}, {}, samples=3)[0]
+    assert curve.worst_high[-1] == pytest.approx(0.15 * (1 + 100e-6 * 19.125), rel=1e-9)
+    assert curve.worst_low[0] == pytest.approx(0.05 * (1 - 100e-6 * 19.125), rel=1e-9)
+    spread = analyse_spread(design, settings=NO_MC)
+    assert max(t.worst_high for t in spread.targets) == pytest.approx(curve.worst_high[-1],
+                                                                      rel=1e-12)
