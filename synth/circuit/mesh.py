@@ -452,10 +452,15 @@ class MeshSolver:
         self.last_determinant = determinant
         determinant[...] = lhs[0, 0] if self.n_g == 1 else np.linalg.det(lhs.transpose(2, 0, 1))
         if self.n_g == 1:
-            with np.errstate(divide="ignore", invalid="ignore"):
-                return rhs / lhs[0]  # type: ignore[no-any-return]  # numpy types this array expression as Any
+            # a regulator whose output cannot move its sense node (a zero coefficient) has
+            # no solution: NaN, not the infinity a division would give, which the loop
+            # currents would then turn into inf - inf
+            pivot = lhs[0]
+            singular = (pivot == 0.0) | ~np.isfinite(pivot)
+            return np.divide(rhs, pivot, out=np.full_like(rhs, np.nan),  # type: ignore[no-any-return]  # numpy types this array expression as Any
+                             where=~singular)
         # candidates whose regulator equations are singular get NaN outputs (as a single
-        # regulator's division by zero gives), so the caller can name the regulator
+        # regulator's zero coefficient gives), so the caller can name the regulator
         stacked = lhs.transpose(2, 0, 1)
         scale = np.abs(stacked).max(axis=(1, 2))
         regular = np.abs(determinant) > 1e-13 * np.maximum(scale, 1e-300) ** self.n_g

@@ -353,3 +353,43 @@ def test_ordinary_blocks_are_solved_as_they_are():
     assert resistance_scale(np.array([[1.0, 1e15], [1e-3, 1e170]])) is None
     scale = resistance_scale(np.array([[1e3, 1e308], [1e3, 1.0]]))
     assert scale is not None and scale[0] == 1.0 and np.log2(scale[1]) == 524
+
+
+def _bridge_regulator(controlled):
+    """U1 holds V(a) - V(b) = 1 V across the diagonal of a bridge it drives from `out`;
+    with `controlled`, E1 gives V(c) = 2 (V(a) - V(b)) into R5."""
+    tables = {
+        "resistor": [{"ref": "R1", "nodes": ["out", "a"], "value": "1k"},
+                     {"ref": "R2", "nodes": ["a", "gnd"], "value": "1k"},
+                     {"ref": "R3", "nodes": ["out", "b"], "value": "1k"},
+                     {"ref": "R4", "nodes": ["b", "gnd"], "value": "1k"},
+                     {"ref": "R5", "nodes": ["c", "gnd"], "value": "1k"}],
+        "regulator": [{"ref": "U1", "output": "out", "sense": "a", "reference": "b",
+                       "setpoint": "1 V"}]}
+    if controlled:
+        tables["controlled"] = [{"ref": "E1", "kind": "vcvs", "plus": "c", "minus": "gnd",
+                                 "control": ["a", "b"], "gain": 2}]
+    return design_from_dict(tables)
+
+
+@pytest.mark.parametrize("controlled", [False, True])
+def test_a_regulator_facing_a_balanced_bridge_has_no_solution_and_no_warning(controlled):
+    import warnings
+
+    from synth.circuit.measure import Evaluator
+
+    design = _bridge_regulator(controlled)
+    ev = Evaluator(design)
+    src = ev.nominal_sources
+    # a balanced bridge: the output cannot move V(a) - V(b); with R2 = 2k it can:
+    # V(a) - V(b) = V(out) (2/3 - 1/2) = 1 V needs 6 V [HB-divider]
+    r = np.array([[1e3, 1e3, 1e3, 1e3, 1e3], [1e3, 2e3, 1e3, 1e3, 1e3]])
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", RuntimeWarning)
+        sol = ev.solver.solve(r, src.voltages, src.currents, src.setpoints, gains=src.gains)
+    driven = [ev.node_index[name] for name in ("out", "a", "b")]
+    assert np.isnan(sol.regulator_outputs[0]).all() and np.isnan(sol.node_voltages[0, driven]).all()
+    volts = dict(zip(ev.node_index, sol.node_voltages[1], strict=True))
+    assert volts["out"] == pytest.approx(6.0) and volts["a"] - volts["b"] == pytest.approx(1.0)
+    if controlled:
+        assert volts["c"] == pytest.approx(2.0)
