@@ -280,3 +280,13 @@ def test_max_sensor_current_bounds_the_sensors_own_current():
         not document["feasible"]
     refused = run(*args, "--max-sensor-current", "-")
     assert refused.exit_code == 2 and "--max-sensor-current" in refused.output
+
+
+def test_a_window_broken_only_at_worst_case_is_read_in_degrees():
+    """Met at nominal values, broken over the tolerance box: the worst-case line speaks °C."""
+    result = run(*NTC, "--tolerance", "5%", *RANGE, "--within", "1 C", "--require",
+                 "worst-case")
+    assert result.exit_code == 1, result.output
+    assert "at worst case, target temperature @ " in result.output
+    assert "°C off its line, beyond the ±1 °C allowed" in result.output
+    assert " V lies outside" not in result.output
