@@ -3,10 +3,13 @@
 A design whose free parts name ``classes`` (:mod:`synth.design.read_classes`) leaves two
 choices open: each part's class and its value.  :func:`choose_classes` settles both.  It
 lists every assignment of classes to parts, cheapest first (the cost of a position is its
-class's cost times its parts), and runs the exact value search of :func:`synthesize`
-for each on the design's basis (``require``); the first cost level at which an assignment
-meets the requirement is the least cost, and among that level's assignments the one of
-least error is chosen.  Every cheaper assignment has been searched and found short, so
+class's cost times its parts), and runs the exact value search for each on the design's
+basis (``require``: under ``"worst-case"`` the branch and bound of
+:func:`synth.search.parallel.search` keeping only value sets that hold over the whole box,
+as :func:`synthesize` runs it; otherwise :func:`synthesize` itself), and designs the
+chosen assignment in full by :func:`synthesize`.  The first cost level at which an
+assignment meets the requirement is the least cost, and among that level's assignments
+the one of least error is chosen.  Every cheaper assignment has been searched and found short, so
 the least cost is proven when every search was (``require = "worst-case"`` or
 ``"nominal"``; a yield judged on Monte Carlo samples among each assignment's nominal
 best is never called proven).
@@ -29,12 +32,21 @@ import time
 from collections.abc import Callable
 from dataclasses import dataclass, replace
 
+import numpy as np
+
 from synth.catalog.part_classes import PartClass, tighter_class
+from synth.circuit.measure import Evaluator
 from synth.deadline import Deadline
 from synth.design.model import Design, Resistor
 from synth.errors import DesignError
 from synth.results import Candidate, SynthesisResult
+from synth.search.choices import choices_for
+from synth.search.ideal import ideal_values
+from synth.search.local import local_seeds
+from synth.search.parallel import search
+from synth.search.problem import SearchProblem
 from synth.spread.records import SpreadResult, SpreadSettings
+from synth.spread.worst_case import WorstCase
 from synth.synthesis import synthesize
 
 _COST_DIGITS = 9
@@ -227,24 +239,47 @@ def with_classes(design: Design, parts: tuple[Resistor, ...],
                        single, resistors=tuple(placed(r) for r in single.resistors)))
 
 
-def _worst_error(design: Design, spread: SpreadResult | None) -> float:
-    """The largest worst-case objective term over the box (``equals`` targets)."""
-    assert spread is not None, "every search here analyses the best design's box"
-    terms = [max(float(target.objective(t.worst_low)), float(target.objective(t.worst_high)))
-             for target, t in zip(design.targets, spread.targets, strict=True)
-             if target.equals is not None]
-    return max(terms, default=0.0)
-
-
 def _yield_low(candidate: Candidate) -> float | None:
     spread = candidate.spread
     return None if spread is None or spread.yield_interval is None else spread.yield_interval[0]
 
 
-def _error(design: Design, candidate: Candidate, require: str) -> float | None:
-    if require == "worst-case":
-        return _worst_error(design, candidate.spread)
-    return candidate.objective
+def _box_search(variant: Design, robust: bool, deadline: Deadline, jobs: int
+                ) -> tuple[float | None, bool]:
+    """The least worst-case objective over the box of the variant's value sets, and the proof.
+
+    ``robust``: only value sets whose every window, bound and limit holds over the whole box
+    (``require = "worst-case"``), else those that hold at nominal values.  None when no
+    value set qualifies.  The exact branch and bound of :func:`synth.search.parallel.search`
+    with the worst case's callables, as :func:`synthesize` runs it, without the re-check,
+    the nearest designs and the limit-cost search that follow there (the chosen
+    assignment's final :func:`synthesize` does those).
+    """
+    choices = [choices_for(r, variant.origin) for r in variant.free_resistors]
+    evaluator = Evaluator(variant)
+    # the solver's rules on the lowest, middle and highest choices, as synthesize applies them
+    probes = np.tile([r.value if r.value is not None else 1.0 for r in variant.resistors],
+                     (3, 1))
+    column = {r.ref: k for k, r in enumerate(variant.resistors)}
+    for choice in choices:
+        probes[:, column[choice.ref]] = choice.values[[0, len(choice) // 2, -1]]
+    evaluator.check_regulators(probes)
+    evaluator.check_ratios(probes)
+    worst = WorstCase(variant, evaluator)
+    problem = SearchProblem(variant, evaluator, choices, relaxed=False)
+    ideal = ideal_values(variant, evaluator)
+    budget = deadline.budget(_LOCAL_SHARE)
+    seeds = (local_seeds(problem, ideal, time_limit_s=None if budget is None else budget)
+             if ideal else None)
+    outcome = search(variant, evaluator, choices, top=1, time_limit_s=deadline.budget(0.7),
+                     seeds=seeds, target_ranges=worst.ranges,
+                     robust=worst.holds if robust else None, jobs=jobs)
+    found = outcome.ranked.objective
+    return (float(found[0]) if len(found) else None), outcome.proven
+
+
+_LOCAL_SHARE = 0.1
+"""Share of the time left the local descent that seeds a box search may take."""
 
 
 def _try(design: Design, parts: tuple[Resistor, ...], cost: float,
@@ -252,27 +287,23 @@ def _try(design: Design, parts: tuple[Resistor, ...], cost: float,
          deadline: Deadline, jobs: int) -> _Tried:
     """Search one assignment's values on the basis, and (when short) its best error."""
     variant = with_classes(design, parts, kinds)
-    rank_by = "worst-case" if require == "worst-case" else "nominal"
-    # the worst case of the best design is its spread's (every vertex solved)
-    box = SpreadSettings(samples=0) if require == "worst-case" else None
-    found = synthesize(variant, top=1, rank_by=rank_by, require=require, min_yield=min_yield,
-                       spread=box, deadline=deadline, jobs=jobs)
+    if require == "worst-case":
+        error, proven = _box_search(variant, True, deadline, jobs)
+        if error is not None:
+            return _Tried(cost, kinds, True, error, None, proven)
+        # short over the box: the least worst-case error of the nominally feasible designs
+        nearest, also = _box_search(variant, False, deadline, jobs)
+        return _Tried(cost, kinds, False, nearest, None, proven and also)
+    found = synthesize(variant, top=1, require=require, min_yield=min_yield,
+                       deadline=deadline, jobs=jobs)
     proven = found.proven_optimal
     best = found.candidates[0] if found.candidates else None
     if found.feasible and best is not None:
-        return _Tried(cost, kinds, True, _error(variant, best, require),
-                      _yield_low(best), proven)
+        return _Tried(cost, kinds, True, best.objective, _yield_low(best), proven)
     if require == "yield":  # the nearest by yield, with its yield
         return _Tried(cost, kinds, False, None if best is None else best.objective,
                       None if best is None else _yield_low(best), proven)
-    if require == "nominal":
-        return _Tried(cost, kinds, False, None, None, proven)
-    # short over the box: the least worst-case error of the nominally feasible designs
-    nearest = synthesize(variant, top=1, rank_by="worst-case", require="nominal",
-                         spread=box, deadline=deadline, jobs=jobs)
-    error = (_error(variant, nearest.candidates[0], require)
-             if nearest.feasible and nearest.candidates else None)
-    return _Tried(cost, kinds, False, error, None, proven and nearest.proven_optimal)
+    return _Tried(cost, kinds, False, None, None, proven)
 
 
 def _key(tried: _Tried, require: str) -> tuple[float, ...]:

@@ -219,12 +219,12 @@ def test_a_value_search_left_unfinished_leaves_the_least_cost_unproven(monkeypat
 
     import synth.least_cost as least_cost
 
-    real = least_cost.synthesize
+    real = least_cost.search
 
     def unfinished(*args, **kwargs):
-        return dataclasses.replace(real(*args, **kwargs), proven_optimal=False)
+        return dataclasses.replace(real(*args, **kwargs), proven=False)
 
-    monkeypatch.setattr(least_cost, "synthesize", unfinished)
+    monkeypatch.setattr(least_cost, "search", unfinished)
     choice = choose_classes(_divider(("5%", "1%"), "3%"), top=1)
     assert choice.classes is not None and not choice.proven
     assert choice.why_not_proven == "a value search was cut short or did not finish"
