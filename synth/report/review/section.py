@@ -100,6 +100,16 @@ def _arrangement(resistor: Resistor) -> str:
     return f"{position.count} in {position.arrangement}{equal}"
 
 
+def _self_heating(spread: SpreadResult) -> str:
+    """Each part's own rise, or why the spread holds none."""
+    if spread.self_heating_note is not None:
+        return f"not modelled: {spread.self_heating_note}"
+    rises = ", ".join(f"{p.ref} +{p.temperature_rise_c:.3g} K" for p in spread.parts
+                      if p.temperature_rise_c > 0) or "no part dissipates at nominal values"
+    return ("first order: each part's rise P·Rθ at the nominal operating point, added to the "
+            f"ambient its TCR acts on: {rises}")
+
+
 def _inputs(design: Design, spread: SpreadResult | None) -> list[Markup]:
     low, high = design.temperature_c
     facts: list[tuple[str, Cell]] = [
@@ -117,6 +127,7 @@ def _inputs(design: Design, spread: SpreadResult | None) -> list[Markup]:
         facts.append(("spread", f"worst case over {len(spread.variables)} varying quantities; "
                       + (f"Monte Carlo {s.samples:,} {s.distribution} samples, seed {s.seed}"
                          if s.samples else "no Monte Carlo (0 samples)")))
+        facts.append(("self-heating", _self_heating(spread)))
     else:
         facts.append(("spread", "not analysed"))
     # a design of operating points lists its parts as written, once, and names its points

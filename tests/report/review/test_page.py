@@ -104,6 +104,14 @@ def test_key_numbers_are_on_the_page(review):
     assert "OVER its power allowance" in words
 
 
+def test_each_parts_self_heating_is_stated(review):
+    words = _parse(review[0]).words
+    # 6 V across 100 Ω: 360 mW, on 850 K/W a 306 K rise; 10k + 10k from 12 V: 0.6 mA,
+    # 3.6 mW, 3.06 K [HB-ohm] [HB-self-heating] [CP-thermal-resistance]
+    assert "R1 +306 K, R2 +306 K" in words
+    assert "R1 +3.06 K, R2 +3.06 K" in words
+
+
 def test_statuses_are_words_and_failing_rows_are_marked_without_colour(review):
     parsed = _parse(review[0])
     failing = [attrs for tag, attrs in parsed.tags if tag == "tr" and attrs.get("class")]
