@@ -19,7 +19,6 @@ __all__ = [
     "edit_tables", "grid_designs", "run_point", "sweep", "sweep_axis",
 ]
 
-import copy
 import itertools
 import math
 import re
@@ -31,9 +30,10 @@ from typing import Any
 
 from synth.design.model import Design
 from synth.design.reader import design_from_dict
-from synth.errors import DesignError, InfeasibleError, RnsynthError, excerpt, nearest_name
+from synth.errors import DesignError, InfeasibleError, RnsynthError, excerpt
 from synth.inputs import read_toml, require_suffix
 from synth.parallel import available_cores, ordered_map
+from synth.sweep_keys import edit_tables, place_of
 from synth.units import (
     parse_fraction,
     parse_quantity,
@@ -46,13 +46,6 @@ MAX_POINTS = 10_000
 """The most grid points a sweep may have (all axes' steps multiplied)."""
 
 SPACINGS = ("linear", "log")
-
-_ARRAYS = {"source": "ref", "resistor": "ref", "regulator": "ref", "controlled": "ref",
-           "transistor": "ref", "amplifier": "ref", "target": "name", "point": "name"}
-"""The design file's arrays of tables, and the key that names an item of each."""
-
-_TABLES = ("design", *_ARRAYS)
-
 
 @dataclass(frozen=True)
 class SweepAxis:
@@ -210,73 +203,6 @@ def _spaced(low: float, high: float, steps: int, spacing: str) -> tuple[float, .
     return (low, *inner, high)
 
 
-# -- editing the design's tables ---------------------------------------------------------
-
-
-def _item(tables: Mapping[str, Any], design: Design, key: str, table: str, name: str
-          ) -> tuple[int, str]:
-    """The position of the item ``name`` of ``table`` in the file, and how messages name it."""
-    items = tables.get(table)
-    if not isinstance(items, list) or not items:
-        raise DesignError(f"--over {key}: the design has no [[{table}]]; name one of "
-                          f"{', '.join(t for t in _ARRAYS if tables.get(t))}")
-    naming = _ARRAYS[table]
-    names = [str(item.get(naming, "")) if isinstance(item, Mapping) else "" for item in items]
-    if name in names:
-        return names.index(name), f"{table} {name}"
-    if table == "target" and len(design.targets) == len(items):
-        # (with operating points the design's targets are per point, not per table)
-        labels = [t.label for t in design.targets]
-        if name in labels:
-            return labels.index(name), f"target {name}"
-        names = [n or label for n, label in zip(names, labels, strict=False)]
-    digits = name.removeprefix("#")
-    if digits.isdigit() and 1 <= int(digits) <= len(items):
-        return int(digits) - 1, f"{table} #{int(digits)}"
-    raise DesignError(f"--over {key}: the design has no {table} {excerpt(name, quoted=True)}"
-                      f"{nearest_name(name, [n for n in names if n])}; name it by its "
-                      f"{naming} or its position (1 to {len(items)})")
-
-
-def _place(tables: Mapping[str, Any], design: Design, key: str) -> tuple[str, int | None, str]:
-    """Where ``key`` points: (table, item position or None for [design], field)."""
-    table, _, rest = key.partition(".")
-    if table not in _TABLES:
-        raise DesignError(f"--over {key}: {excerpt(table, quoted=True)} is not a table of a "
-                          f"design file{nearest_name(table, _TABLES)}; start the key with one "
-                          f"of {', '.join(_TABLES)}")
-    if table == "design":
-        if not rest or "." in rest:
-            raise DesignError(f"--over {key}: write design.FIELD, e.g. design.ambient")
-        return table, None, rest
-    name, dot, field = rest.rpartition(".")
-    if not dot or not name or not field:
-        raise DesignError(f"--over {key}: write {table}.ITEM.FIELD, e.g. "
-                          f"{table}.{'1' if table == 'target' else 'R1'}.value")
-    index, _ = _item(tables, design, key, table, name)
-    value = tables[table][index].get(field)
-    if isinstance(value, (list, dict)):
-        raise DesignError(f"--over {key}: {field} holds a list or table, not one value; "
-                          "sweep a key that holds one value")
-    return table, index, field
-
-
-def edit_tables(tables: Mapping[str, Any], places: Sequence[tuple[str, int | None, str]],
-                values: Sequence[str | float]) -> dict[str, Any]:
-    """A copy of ``tables`` with each place ``(table, item, field)`` set to its value."""
-    edited = copy.deepcopy(dict(tables))
-    for (table, index, field), value in zip(places, values, strict=True):
-        if index is None:
-            section = edited.setdefault(table, {})
-            if not isinstance(section, dict):
-                raise DesignError(f"--over {table}.{field}: [design] is not a table; "
-                                  "write it as [design]")
-            section[field] = value
-        else:
-            edited[table][index][field] = value
-    return edited
-
-
 def grid_designs(tables: Mapping[str, Any], origin: str, axes: Sequence[SweepAxis]
                  ) -> list[tuple[tuple[float, ...], Design]]:
     """Every grid point's values (axis order) and its design, read as a design file.
@@ -301,7 +227,7 @@ def grid_designs(tables: Mapping[str, Any], origin: str, axes: Sequence[SweepAxi
         raise DesignError(f"the sweep has {points:,} points, over the {MAX_POINTS:,} a sweep "
                           "may have; give fewer steps")
     base = design_from_dict(tables, origin)
-    places = [_place(tables, base, key) for key in keys]
+    places = [place_of(tables, base, key) for key in keys]
     out = []
     for values in itertools.product(*(a.values for a in axes)):
         written = [a.text(v) for a, v in zip(axes, values, strict=True)]

@@ -20,7 +20,7 @@ LAYERS = (
     ("report",),
     ("templates",),
     ("bom",),
-    ("sweep",),
+    ("sweep", "sweep_keys"),
     ("least_cost", "checking", "synthesis", "front"),
     ("binding",),
     ("results", "cautions", "linearity"),
