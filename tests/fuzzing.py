@@ -98,6 +98,12 @@ OPTION_CASES: list[tuple[list[str], list[str]]] = [
     (["pad", "--impedance", "50", "--loss", "6 dB", "--samples", "0", "--time-limit", "0.5",
       "--series", "E6"],
      ["--impedance", "--loss", "--within", "--ambient", "--package", "--samples", "--seed"]),
+    (["check", str(ROOT / "examples" / "vent_sensor.toml"), "--samples", "0"],
+     ["--samples", "--seed", "--distribution", "--time-limit", "--jobs"]),
+    (["design", str(ROOT / "examples" / "vent_sensor.toml"), "--samples", "0",
+      "--time-limit", "0.5", "--quiet"],
+     ["--top", "--time-limit", "--rank-by", "--require", "--min-yield", "--samples", "--seed",
+      "--plot-x", "--jobs"]),
 ]
 
 
@@ -114,7 +120,8 @@ def _fresh(*paths: Path) -> None:
 
 
 def option_args(rng: random.Random, folder: Path | None = None) -> list[str]:
-    """A quick command or ``series`` with one or two option values at an edge.
+    """A quick command, ``series``, ``check`` or ``design`` with one or two option values at
+    an edge.
 
     With a ``folder``, a quick command sometimes also saves its design and plots there.
     """
@@ -123,7 +130,7 @@ def option_args(rng: random.Random, folder: Path | None = None) -> list[str]:
     for _ in range(rng.randint(1, 2)):
         value = wild(rng)
         args += [rng.choice(options), value if isinstance(value, str) else repr(value)]
-    if folder is not None and base[0] != "series" and rng.random() < 0.3:
+    if folder is not None and base[0] not in ("series", "check", "design") and rng.random() < 0.3:
         _fresh(folder / "saved.toml", folder / "plots")
         args += ["--save", str(folder / "saved.toml")]
         if rng.random() < 0.2:
