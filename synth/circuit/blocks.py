@@ -155,12 +155,13 @@ class BlockMeasure:
 
         Notes
         -----
-        The arrays of the last call are kept.  A later call of the same size
-        writes into them instead of fresh memory (whose page faults cost more
-        than the measurement on a large batch) when nothing else holds any of
-        them any more: no result, array or view of one is alive (counted by the
-        interpreter's references, against a baseline taken the same way on
-        arrays nobody holds), or that call passed ``reuse`` and this one does.
+        The arrays of the last call are kept.  A later call of the same size or
+        smaller writes into them (their first columns) instead of fresh memory
+        (whose page faults cost more than the measurement on a large batch) when
+        nothing else holds any of them any more: no result, array or view of one
+        is alive (counted by the interpreter's references, against a baseline
+        taken the same way on arrays nobody holds), or that call passed ``reuse``
+        and this one does.
         """
         solver = self.solver
         n = len(r)
@@ -197,13 +198,14 @@ class BlockMeasure:
         return work
 
     def _outputs(self, n: int, reuse: bool) -> MeasuredBlocks:
-        """The arrays a call of ``n`` candidates writes: the last call's when it may
-        overwrite them (see :meth:`measure`), fresh ones otherwise."""
+        """The arrays a call of ``n`` candidates writes: the last call's (their first ``n``
+        columns: a search asks for blocks of every size) when it may overwrite them (see
+        :meth:`measure`), fresh ones otherwise."""
         kept = self._kept
-        if kept is not None and kept.supply.shape[0] == n and (
+        if kept is not None and kept.supply.shape[0] >= n and (
                 (reuse and self._kept_for_reuse) or _unheld(kept)):
             self._kept_for_reuse = reuse
-            return kept
+            return kept if kept.supply.shape[0] == n else _first_columns(kept, n)
         n_t = self.n_targets
         fresh = MeasuredBlocks(
             voltages=np.empty((self.n_nodes, n)), currents=np.empty((self.n_branches, n)),
@@ -305,6 +307,16 @@ class BlockMeasure:
                 noise[k] = v_scale
 
 
+def _first_columns(blocks: MeasuredBlocks, n: int) -> MeasuredBlocks:
+    """Views of the first ``n`` candidates of every array of ``blocks``."""
+    return MeasuredBlocks(
+        voltages=blocks.voltages[:, :n], currents=blocks.currents[:, :n],
+        outputs=blocks.outputs[:, :n],
+        determinant=None if blocks.determinant is None else blocks.determinant[:n],
+        targets=blocks.targets[:, :n], power=blocks.power[:, :n],
+        across=blocks.across[:, :n], supply=blocks.supply[:n], noise=blocks.noise[:, :n])
+
+
 def _references(blocks: MeasuredBlocks) -> int:
     """The largest reference count of any array of ``blocks`` (None entries skipped)."""
     arrays = (blocks.voltages, blocks.currents, blocks.outputs, blocks.determinant,
@@ -337,7 +349,13 @@ def _rows(values: np.ndarray, pick: slice, n: int) -> np.ndarray:
     row (no copy: the solve only reads its sources)."""
     if len(values) == n and n > 1:
         return np.ascontiguousarray(values[pick].T)
-    return np.broadcast_to(values[0][:, None], (values.shape[1], pick.stop - pick.start))
+    count = pick.stop - pick.start
+    if not values.shape[1]:
+        return np.empty((0, count))
+    row = np.ascontiguousarray(values[0], dtype=float)
+    # each row one value repeated along the candidates (stride 0): a view, made directly
+    # (numpy.broadcast_to costs more than many a small block's solve)
+    return np.ndarray((len(row), count), dtype=float, buffer=row, strides=(row.itemsize, 0))
 
 
 def _largest(rows: np.ndarray, out: np.ndarray, scratch: np.ndarray) -> np.ndarray:

@@ -80,31 +80,31 @@ def rounded(choices: list[Choices], ideal: dict[str, float]) -> np.ndarray:
 
 
 def _moves(point: np.ndarray, sizes: np.ndarray) -> np.ndarray:
-    """Every point one or two positions away by the steps of a round, inside the space."""
+    """Every point one or two positions away by the steps of a round, inside the space.
+
+    In a fixed order (ties between moves go to the first): each single step, then each
+    pair of steps over every pair of positions, then each common shift; formed with
+    array operations, not row by row.
+    """
     k = len(point)
-    rows = []
-    for step in _STEPS:
-        single = np.tile(point, (k, 1))
-        single[np.arange(k), np.arange(k)] += step
-        rows.append(single)
+    eye = np.eye(k, dtype=np.int64)
+    steps = np.array(_STEPS, dtype=np.int64)
+    rows = [(point + steps[:, None, None] * eye[None, :, :]).reshape(-1, k)]
     reach = next((r for most, r in _PAIR_REACH if k <= most), 0)
     if k > 1 and reach:
         a, b = np.triu_indices(k, 1)
-        steps = [s for s in range(-reach, reach + 1) if s]
-        for da in steps:
-            for db in steps:
-                pair = np.tile(point, (len(a), 1))
-                pair[np.arange(len(a)), a] += da
-                pair[np.arange(len(a)), b] += db
-                rows.append(pair)
+        pair = np.array([s for s in range(-reach, reach + 1) if s], dtype=np.int64)
+        # (da, db, pair of positions): da on position a, db on position b
+        moved = np.broadcast_to(point, (len(pair), len(pair), len(a), k)).copy()
+        moved[:, :, np.arange(len(a)), a] += pair[:, None, None]
+        moved[:, :, np.arange(len(a)), b] += pair[None, :, None]
+        rows.append(moved.reshape(-1, k))
     # every position shifted by the same steps (about a common scale factor, which a
     # network of ratios leaves free), each shift with one position nudged by one step
-    nudges = np.concatenate([np.zeros((1, k), np.int64), np.eye(k, dtype=np.int64),
-                             -np.eye(k, dtype=np.int64)])
-    for shift in range(-_SHIFT_REACH, _SHIFT_REACH + 1):
-        if shift:
-            rows.append(point + shift + nudges)
-    moves = np.concatenate(rows) if rows else np.zeros((0, k), np.int64)
+    nudges = np.concatenate([np.zeros((1, k), np.int64), eye, -eye])
+    shifts = np.array([s for s in range(-_SHIFT_REACH, _SHIFT_REACH + 1) if s], dtype=np.int64)
+    rows.append((point + shifts[:, None, None] + nudges[None, :, :]).reshape(-1, k))
+    moves = np.concatenate(rows)
     inside = np.all((moves >= 0) & (moves < sizes), axis=1)
     return moves[inside]
 

@@ -296,49 +296,60 @@ class SearchProblem:
         n_box, k = lo.shape
         n_v = 2 ** k
         run = max(1, min(n_v, SOLVE_ROWS // max(n_box, 1)))
+        # each free position's value at the low and the high end of every box
+        ends = [(choice.values[lo[:, p]], choice.values[hi[:, p]])
+                for p, choice in enumerate(self.choices)]
         spans: _Spans | None = None
         for v0 in range(0, n_v, run):
             if v0 and stop is not None and stop():
                 raise SearchStopped
             v = np.arange(v0, min(v0 + run, n_v), dtype=np.int64)
-            bits = ((v[:, None] >> np.arange(k)[None, :]) & 1).astype(bool)
-            # vertex-major rows (vertex after vertex, every box in each): the extremes over
-            # the vertices are then element-wise over contiguous rows of boxes
-            vertex = np.where(bits[:, None, :], hi[None, :, :], lo[None, :, :]).reshape(-1, k)
-            part = self._spans_of(vertex, (len(v), n_box))
+            part = self._spans_of(self._vertex_resistances(ends, v), (len(v), n_box))
             spans = part if spans is None else spans.joined(part)
         assert spans is not None
         return spans
 
-    def _spans_of(self, vertex: np.ndarray, shape: tuple[int, int]) -> _Spans:
-        """Extremes over ``shape[0]`` vertices of each of ``shape[1]`` boxes (rows
-        vertex-major)."""
+    def _vertex_resistances(self, ends: list[tuple[np.ndarray, np.ndarray]], v: np.ndarray
+                            ) -> np.ndarray:
+        """``(vertices x boxes, resistors)`` ohm of the vertices numbered ``v`` of every box,
+        vertex-major (vertex after vertex, every box in each: the extremes over the vertices
+        are then element-wise over contiguous runs of boxes); bit ``p`` of a vertex's number
+        puts position ``p`` at its box's high end.  Column-major, as :meth:`resistances`."""
+        n_box = len(ends[0][0]) if ends else 1
+        r = np.empty((self.n_r, len(v), n_box))
+        r[...] = self.base[:, None, None]
+        for p, (low, high) in enumerate(ends):
+            upper = ((v >> p) & 1).astype(bool)
+            r[self.free[p]] = np.where(upper[:, None], high[None, :], low[None, :])
+        flat = r.reshape(self.n_r, -1).T
+        return self.ev.follow(flat) if len(self.ev.copies) else flat
+
+    def _spans_of(self, r: np.ndarray, shape: tuple[int, int]) -> _Spans:
+        """Extremes over ``shape[0]`` vertices of each of ``shape[1]`` boxes, from their
+        resistances ``r`` (rows vertex-major)."""
         n_v, n_box = shape
-        r = self.resistances(vertex)
         ev = self.evaluate(r, parts=False)  # the bounds use positions only
 
         def by_vertex(values: np.ndarray) -> np.ndarray:
-            """``(N, columns)`` as ``(vertices, boxes, columns)`` (a view)."""
-            return values.reshape(n_v, n_box, -1)
+            """``(N, columns)`` as ``(columns, vertices, boxes)`` (a view of an entity-first
+            result)."""
+            return values.T.reshape(-1, n_v, n_box)
 
         def span(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
             v = by_vertex(values)
-            return v.min(axis=0), v.max(axis=0)
+            return v.min(axis=1).T, v.max(axis=1).T
 
-        targets = by_vertex(ev.targets)
-        t_lo, t_hi = targets.min(axis=0), targets.max(axis=0)
+        t_lo, t_hi = span(ev.targets)
         if len(self.unbounded):
             t_lo[:, self.unbounded], t_hi[:, self.unbounded] = -np.inf, np.inf
-        noise = by_vertex(ev.target_noise).max(axis=0)  # the largest floor of any vertex
+        noise = by_vertex(ev.target_noise).max(axis=1).T  # the largest floor of any vertex
         valid = np.all(np.isfinite(t_lo) & np.isfinite(t_hi), axis=1)
         node_v = ev.solution.node_voltages
         i_lo = i_hi = u_lo = u_hi = None
         if self.stressed:
-            current = ev.solution.branch_currents[:, : self.n_r]
-            i_lo, i_hi = span(current)
+            i_lo, i_hi = span(ev.solution.branch_currents[:, : self.n_r])
             ends = self.ev.network.resistor_ends
-            across = (node_v.T[ends[:, 0]] - node_v.T[ends[:, 1]]).T
-            u_lo, u_hi = span(across)
+            u_lo, u_hi = span((node_v.T[ends[:, 0]] - node_v.T[ends[:, 1]]).T)
             valid &= np.all(np.isfinite(i_lo) & np.isfinite(i_hi), axis=1)
         signs = []  # each quantity that must keep one sign over a box's vertices
         det = ev.solution.regulator_determinant
@@ -354,7 +365,7 @@ class SearchProblem:
         least = None
         if self.max_supply_a is not None and not self.relaxed:
             delivered = ev.solution.branch_currents[:, self.supply_columns]
-            least = by_vertex(delivered).min(axis=0)
+            least = by_vertex(delivered).min(axis=1).T
         return _Spans(t_lo, t_hi, noise, i_lo, i_hi, u_lo, u_hi, valid, positive, negative,
                       least)
 

@@ -147,3 +147,23 @@ def test_a_result_still_held_is_never_overwritten_and_a_dropped_one_is_written_a
     assert not np.shares_memory(fourth.targets, fifth.targets)
     np.testing.assert_array_equal(fourth.targets, ev.evaluate_general(
         r * 4, ev.nominal_sources).targets)
+
+
+def test_a_smaller_call_writes_into_the_first_columns_of_a_dropped_result():
+    design = design_from_dict(random_design(1))
+    ev = Evaluator(design)
+    r = np.tile(ev.weights, (40, 1)) * np.linspace(0.5, 2.0, 40)[:, None]
+    big = ev.evaluate(r)
+    address = _address(big.targets)
+    del big
+    small = ev.evaluate(r[:7] * 3)  # views of the first 7 candidates of the kept arrays
+    assert _address(small.targets) == address and small.targets.shape[0] == 7
+    with np.errstate(all="ignore"):
+        np.testing.assert_array_equal(small.targets, ev.evaluate_general(
+            r[:7] * 3, ev.nominal_sources).targets)
+        np.testing.assert_array_equal(small.target_noise, ev.evaluate_general(
+            r[:7] * 3, ev.nominal_sources).target_noise)
+    held = small.targets
+    del small
+    again = ev.evaluate(r[:5])  # a view of the kept arrays is alive: fresh ones
+    assert not np.shares_memory(held, again.targets)
