@@ -150,6 +150,12 @@ def _candidates(design: Design, evaluator: Evaluator, choices: list[Choices],
     return out
 
 
+_RANKED_FREELY = _RECHECK_BLOCK
+"""Up to this many candidates are ranked as asked whatever the time limit: so few cost the
+search little, and measuring their re-check first would cost more (the re-check still fits
+them to the time, block by block)."""
+
+
 def _ranked_top(design: Design, evaluator: Evaluator, choices: list[Choices],
                 seeds: np.ndarray | None, top: int, least: int, deadline: Deadline
                 ) -> tuple[int, float | None]:
@@ -423,7 +429,7 @@ def synthesize(
     by_yield = rank_by == "yield" or require == "yield"
     asked = max(top, YIELD_POOL) if by_yield else top
     ranked_top, per_candidate = _ranked_top(design, evaluator, choices, seeds, asked,
-                                            YIELD_POOL if by_yield else _RECHECK_PROBE,
+                                            max(YIELD_POOL if by_yield else 1, _RANKED_FREELY),
                                             deadline)
     # the search leaves time for what follows it: re-check, spread, limit-cost search
     outcome: SearchOutcome = search(

@@ -10,6 +10,7 @@ from __future__ import annotations
 import json
 
 import numpy as np
+import pytest
 from click.testing import CliRunner
 
 from synth.cli import cli
@@ -233,6 +234,9 @@ def loose_divider():
 def test_the_ranking_keeps_only_the_candidates_whose_re_check_fits(monkeypatch):
     unlimited = synthesize(loose_divider(), top=1000)
     assert len(unlimited.candidates) > 100  # the space has more than the limit lets through
+    import synth.synthesis
+
+    monkeypatch.setattr(synth.synthesis, "_RANKED_FREELY", 64)  # so 1,000 asked is many
     clock = Ticks()
     slow_recheck(monkeypatch, clock, 0.01)
     deadline = Deadline(10.0, start=0.0, clock=clock)
@@ -248,6 +252,9 @@ def test_the_ranking_keeps_only_the_candidates_whose_re_check_fits(monkeypatch):
 
 
 def test_a_ranking_the_search_does_not_fill_is_not_reported_as_cut(monkeypatch):
+    import synth.synthesis
+
+    monkeypatch.setattr(synth.synthesis, "_RANKED_FREELY", 64)
     clock = Ticks()
     slow_recheck(monkeypatch, clock, 1e-6)
     result = synthesize(divider(), top=1000, deadline=Deadline(10.0, start=0.0, clock=clock))
@@ -283,3 +290,14 @@ def test_the_best_candidate_is_re_checked_however_late(monkeypatch):
     rows = np.zeros((5, 2), dtype=np.int64)
     out = _candidates(design, Evaluator(design), choices, rows, expired())
     assert len(out) == 1 and out[0].rank == 1
+
+
+def test_a_few_candidates_asked_are_ranked_without_measuring_their_re_check(monkeypatch):
+    clock = Ticks()
+    slow_recheck(monkeypatch, clock, 0.01)
+    result = synthesize(loose_divider(), top=1000, deadline=Deadline(10.0, start=0.0,
+                                                                     clock=clock))
+    # no probe: the re-check alone moved the clock, by its first block of 32, then blocks
+    # fitted to half of the 10 s (0.01 s to re-check a candidate, as much to show it)
+    assert "ranking" not in [c.stage for c in result.cuts]
+    assert len(result.candidates) == 250 and clock.now == pytest.approx(2.5)
