@@ -301,3 +301,20 @@ def test_a_few_candidates_asked_are_ranked_without_measuring_their_re_check(monk
     # fitted to half of the 10 s (0.01 s to re-check a candidate, as much to show it)
     assert "ranking" not in [c.stage for c in result.cuts]
     assert len(result.candidates) == 250 and clock.now == pytest.approx(2.5)
+
+
+def test_without_seeds_the_re_check_is_measured_on_the_lowest_choices(monkeypatch):
+    from synth.circuit.measure import Evaluator
+    from synth.search.choices import choices_for
+    from synth.synthesis import _ranked_top
+
+    clock = Ticks()
+    slow_recheck(monkeypatch, clock, 0.01)
+    design = loose_divider()
+    choices = [choices_for(r) for r in design.free_resistors]
+    deadline = Deadline(10.0, start=0.0, clock=clock)
+    # 32 re-checks at 0.01 s: 9.68 s left, 30 % after the search, half for re-checking
+    assert _ranked_top(design, Evaluator(design), choices, None, 5000, 64, deadline) == (
+        int(9.68 * 0.3 * 0.5 / 0.02), pytest.approx(0.01))
+    assert _ranked_top(design, Evaluator(design), choices, None, 5000, 64,
+                       Deadline(None)) == (5000, None)
