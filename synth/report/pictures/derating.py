@@ -80,7 +80,7 @@ def derating_curve(design: Design, parts: Sequence[PartReport], package: str, *,
     ambient = np.union1d(np.linspace(low, high, 241),
                          [rating.rated_ambient_c, rating.zero_power_c])
     theta = rating.thermal_resistance_k_per_w
-    if theta and rating.zero_power_c - theta * rating.rated_power_w > rating.rated_ambient_c:
+    if theta and rating.zero_power_c - theta * rating.rated_power_w < rating.rated_ambient_c:
         # a hot-spot limit below the line bends the curve at its own knee
         ambient = np.union1d(ambient, [rating.zero_power_c - theta * rating.rated_power_w])
     rated = derated_power(rating, ambient)

@@ -66,3 +66,21 @@ def test_a_given_axes_is_drawn_on():
     assert derating_curve(d, result.parts, "1206", ax=ax) is host
     assert ax.get_title().startswith("1206 derating: 250 mW to 70 °C")
     assert "worst case over the tolerances" not in {line.get_label() for line in ax.get_lines()}
+
+
+def test_a_part_on_less_copper_bends_the_curve_at_its_own_knee():
+    # 1000 K/W on a 0.1 W, 70 -> 155 °C row: the element reaches 155 °C at (155 - T)/1000 W
+    # [HB-self-heating], below the line from 55 °C on: 100 mW to 55 °C, 70 mW at 85 °C,
+    # where the line alone would give 82.35 mW [CALC-derating]
+    from dataclasses import replace
+
+    d = design()
+    hot = replace(d.packages["0603"], thermal_resistance_k_per_w=1000.0)
+    d = replace(d, packages={**d.packages, "0603": hot})
+    result = check(d, spread=SpreadSettings(samples=0))
+    ax = derating_curve(d, result.parts, "0603").axes[0]
+    rated = next(line for line in ax.get_lines() if line.get_label() == "0603 rating, derated")
+    x, y = rated.get_xdata(), rated.get_ydata()
+    assert 55.0 in list(x)  # the knee is a point of the drawn line
+    assert np.interp([25.0, 55.0, 85.0, 155.0], x, y) == pytest.approx(
+        [0.1, 0.1, 0.07, 0.0], abs=1e-12)
