@@ -36,6 +36,7 @@ from synth.cli.types import (
     VOLTAGE,
     BadInput,
     CatalogueChoice,
+    Count,
     Given,
     Measured,
     Range,
@@ -206,8 +207,9 @@ class SpreadOptions:
 
 
 spread_options = option_group(SpreadOptions, [
-    click.option("--samples", default=100_000, show_default=True,
-                 help="Monte Carlo samples for the spread (0: none)."),
+    click.option("--samples", type=Count(), default=100_000, show_default=True,
+                 help="Monte Carlo samples for the spread (0: none; 1e9 reads as "
+                      "1,000,000,000)."),
     click.option("--distribution", type=click.Choice(["uniform", "normal"]),
                  default="uniform", show_default=True,
                  help="Shape of each tolerance; normal reads tolerance as 3 sigma."),

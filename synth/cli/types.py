@@ -6,17 +6,19 @@ from __future__ import annotations
 
 __all__ = [
     "CURRENT", "DECIBELS", "PERCENT", "RESISTANCE", "RESISTANCE_RANGE", "TEMPERATURE",
-    "VOLTAGE", "BadInput", "CatalogueChoice", "Given", "Measured", "Range", "Window",
+    "VOLTAGE", "BadInput", "CatalogueChoice", "Count", "Given", "Measured", "Range", "Window",
     "option_name", "ranking_choices", "series_name_choices",
 ]
 
+import re
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
+from decimal import Decimal, InvalidOperation
 from typing import IO, Any
 
 import click
 
-from synth.errors import DesignError
+from synth.errors import DesignError, excerpt
 from synth.units import parse_decibels, parse_fraction, parse_quantity, parse_resistance
 
 
@@ -132,6 +134,40 @@ def _plain_number(text: str) -> float:
     except ValueError:
         raise DesignError(f"{text!r} is neither a percentage nor a plain number; "
                           'write e.g. "1%" or 0.05') from None
+
+
+_NUMBER = re.compile(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?")
+"""A decimal number in digits, optionally with an exponent (no inf or nan)."""
+
+
+class Count(click.ParamType[int]):
+    """A whole count, written as digits (``1000000``, ``1_000_000``) or in exponent notation
+    when that is whole (``1e9``, ``2.5e6``); a count of 30 digits or more is refused here,
+    before any range check has to print it."""
+
+    name = "COUNT"
+
+    def convert(self, value: Any, param: click.Parameter | None,
+                ctx: click.Context | None) -> int:
+        if isinstance(value, int) and not isinstance(value, bool):
+            return value
+        text = str(value).strip()
+        shown = excerpt(text, quoted=True)
+        too_large = (f"{option_name(param)}: {shown} is far too large a count; write one "
+                     "of fewer than 30 digits")
+        if not _NUMBER.fullmatch(text.replace("_", "")):
+            number = Decimal("nan")
+        else:
+            try:
+                number = Decimal(text.replace("_", ""))
+            except InvalidOperation:  # an exponent beyond decimal's own range
+                raise BadInput(too_large) from None
+        if number.is_finite() and number.adjusted() >= 29:
+            raise BadInput(too_large)
+        if not number.is_finite() or number != number.to_integral_value():
+            raise BadInput(f"{option_name(param)}: {shown} is not a whole number; write "
+                           "e.g. 100000 or 1e6")
+        return int(number)
 
 
 class _ResistanceRange(click.ParamType[Range]):
