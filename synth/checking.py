@@ -443,16 +443,19 @@ def _spread(design: Design, ev: Evaluator, positions: dict[str, float], parts: n
     """The spread, its Monte Carlo shrunk to fit what is left of ``deadline`` (at least
     the first pilot's samples run, so that a yield is always measured)."""
 
-    def run(samples: int, final: bool) -> SpreadResult:
-        return analyse_spread(design, positions, replace(settings, samples=samples), ev,
-                              part_values=parts,
-                              map_shards=process_shards(jobs) if final and jobs > 1 else None)
+    limited = deadline.limited
 
-    if not deadline.limited:
+    def run(samples: int, final: bool) -> SpreadResult:
+        shards = process_shards(jobs, fine=limited) if final and jobs > 1 else None
+        return analyse_spread(design, positions, replace(settings, samples=samples), ev,
+                              part_values=parts, map_shards=shards,
+                              stop=deadline.expired if final and limited else None)
+
+    if not limited:
         return run(settings.samples, True)
-    spread, samples = fitted_run(run, settings.samples, max(deadline.remaining(), 1e-9),
-                                 deadline.elapsed, reserve_s=POOL_START_S if jobs > 1 else 0.0)
-    if samples >= settings.samples:
+    spread, _ = fitted_run(run, settings.samples, max(deadline.remaining(), 1e-9),
+                           deadline.elapsed, reserve_s=POOL_START_S if jobs > 1 else 0.0)
+    if (spread.samples_run or 0) >= settings.samples:  # the final run may stop early
         return spread
     return replace(spread, settings=settings, samples_cut="time limit")
 

@@ -263,7 +263,8 @@ def _with_goal_status(candidate: Candidate, binding: str | None,
 
 
 def _spread_of(design: Design, evaluator: Evaluator, candidate: Candidate,
-               settings: SpreadSettings, jobs: int = 1) -> Candidate:
+               settings: SpreadSettings, jobs: int = 1,
+               stop: Callable[[], bool] | None = None) -> Candidate:
     values = candidate.check.values
     if design.points:  # the copies at later points: their leader's or their point's values
         r0 = evaluator.follow(np.array([candidate.positions.get(
@@ -276,7 +277,8 @@ def _spread_of(design: Design, evaluator: Evaluator, candidate: Candidate,
         parts = np.array([values[ref] for ref in design.part_refs])
     return replace(candidate, spread=analyse_spread(
         design, candidate.positions, settings, evaluator, part_values=parts,
-        map_shards=process_shards(jobs) if jobs > 1 else None))
+        map_shards=process_shards(jobs, fine=stop is not None) if jobs > 1 else None,
+        stop=stop))
 
 
 def _fitted_spread(design: Design, evaluator: Evaluator, candidate: Candidate,
@@ -295,12 +297,25 @@ def _fitted_spread(design: Design, evaluator: Evaluator, candidate: Candidate,
     if not deadline.limited:
         return _spread_of(design, evaluator, candidate, settings, jobs)
 
+    began: list[float] = []  # the run's start, by its first reading of the clock
+
+    def clock() -> float:
+        now = deadline.elapsed()
+        if not began:
+            began.append(now)
+        return now
+
+    def past_its_share() -> bool:  # a run that never read the clock was not timed
+        return bool(began) and deadline.elapsed() >= began[0] + seconds
+
     def run(samples: int, final: bool) -> Candidate:
         return _spread_of(design, evaluator, candidate, replace(settings, samples=samples),
-                          jobs if final else 1)
+                          jobs if final else 1, past_its_share if final else None)
 
-    kept, samples = fitted_run(run, asked, seconds, deadline.elapsed,
+    kept, samples = fitted_run(run, asked, seconds, clock,
                                reserve_s=POOL_START_S if jobs > 1 else 0.0)
+    if kept.spread is not None and (kept.spread.samples_run or 0) < samples:
+        samples = kept.spread.samples_run or 0  # the final run stopped at its share's end
     if samples >= asked:
         return kept
     if samples == 0:

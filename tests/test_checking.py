@@ -149,3 +149,32 @@ def test_check_report_leads_with_the_verdict_and_ends_with_the_nodes():
     assert lines[2] == ("ambient 25 °C; a part may use up to 50 % of its derated power and "
                         "80 % of its limiting element voltage")
     assert any(line.startswith("gnd ") for line in lines)
+
+
+def test_a_monte_carlo_stopped_by_the_deadline_says_it_was_cut(monkeypatch) -> None:
+    # the final run of a time-limited Monte Carlo stops after the shard during which the
+    # limit passed (here: at once), and check reports the samples run as a cut
+    import synth.checking as checking
+    from synth.deadline import Deadline
+    from synth.spread.monte_carlo import SHARD_SIZE
+    from synth.spread.records import SpreadSettings
+
+    class Passed(Deadline):
+        def expired(self) -> bool:
+            return True
+
+    def whole_run(run, asked, seconds, clock, reserve_s=0.0):
+        return run(asked, True), asked  # the pilots' estimate: every sample fits
+
+    monkeypatch.setattr(checking, "fitted_run", whole_run)
+    design = divider(supply="12 V")
+    asked = 3 * SHARD_SIZE
+    result = check(design, spread=SpreadSettings(samples=asked, seed=2),
+                   deadline=Passed(1e6))
+    assert result.spread is not None
+    assert result.spread.samples_run == SHARD_SIZE
+    assert result.spread.samples_cut == "time limit"
+    assert result.spread.settings.samples == asked
+    free = check(design, spread=SpreadSettings(samples=asked, seed=2), deadline=Deadline(1e6))
+    assert free.spread is not None and free.spread.samples_run == asked
+    assert free.spread.samples_cut is None

@@ -42,6 +42,7 @@ from __future__ import annotations
 
 __all__ = ["analyse_spread"]
 
+from collections.abc import Callable
 from dataclasses import replace
 
 import numpy as np
@@ -67,7 +68,8 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
                    settings: SpreadSettings | None = None,
                    evaluator: Evaluator | None = None, *,
                    part_values: np.ndarray | None = None,
-                   map_shards: ShardMap | None = None) -> SpreadResult:
+                   map_shards: ShardMap | None = None,
+                   stop: Callable[[], bool] | None = None) -> SpreadResult:
     """Worst case, root-sum-square and Monte Carlo spread of a design.
 
     Parameters
@@ -85,6 +87,9 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
         Runs the Monte Carlo shards, like ``map`` (the default); a process pool's ``map``
         spreads them over processes with the same figures
         (:func:`synth.spread.monte_carlo.monte_carlo`).
+    stop : callable, optional
+        Asked after each Monte Carlo shard: True ends the run there (a time limit); the
+        result's ``samples_run`` says how many samples ran.
 
     Returns
     -------
@@ -225,9 +230,9 @@ def analyse_spread(design: Design, values: dict[str, float] | None = None,
     kept = 0
     if settings.samples > 0:
         run = sample_count(ev, settings)
-        targets, yield_fraction = monte_carlo(design, ev, var, parts0, src,
-                                              replace(settings, samples=run), targets,
-                                              map_shards=map_shards)
+        targets, yield_fraction, run = monte_carlo(design, ev, var, parts0, src,
+                                                   replace(settings, samples=run), targets,
+                                                   map_shards=map_shards, stop=stop)
         interval = yield_interval(round(yield_fraction * run), run)
         shards = shard_count(run)
         kept = len(targets[0].mc_values) if targets and targets[0].mc_values is not None else 0

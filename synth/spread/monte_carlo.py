@@ -174,8 +174,8 @@ def run_shard(work: ShardWork, shard: int) -> SampleTally:
 
 def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, parts0: np.ndarray,
                 src: SourceValues, settings: SpreadSettings, targets: list[TargetSpread],
-                map_shards: ShardMap | None = None
-                ) -> tuple[list[TargetSpread], float]:
+                map_shards: ShardMap | None = None, stop: Callable[[], bool] | None = None
+                ) -> tuple[list[TargetSpread], float, int]:
     """Seeded Monte Carlo: each target's statistics and histogram, and the yield.
 
     Parameters
@@ -190,12 +190,17 @@ def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, parts0: np.
         Runs :func:`run_shard` over the shard numbers, like ``map`` (the default), and
         gives the tallies back in shard order: a process pool's ``map`` runs them
         elsewhere.  The figures do not depend on it.
+    stop : callable, optional
+        Asked after each shard is merged: True ends the run there (a time limit), with
+        the figures of the samples run so far.
 
     Returns
     -------
     targets : list of TargetSpread
         With ``mc_*``, ``inside`` and ``mc_histogram`` filled in.
     yield_fraction : float
+    samples_run : int
+        ``settings.samples``, or fewer when ``stop`` ended the run early.
 
     Notes
     -----
@@ -211,8 +216,15 @@ def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, parts0: np.
     runner: ShardMap = map if map_shards is None else map_shards
     tally = SampleTally(list(work.ranges),
                         keep=min(settings.kept_samples, total) if settings.keep_samples else 0)
-    for part in runner(partial(run_shard, work), range(shard_count(total))):
+    tallies = runner(partial(run_shard, work), range(shard_count(total)))
+    for part in tallies:
         tally.merge(part)
+        if stop is not None and tally.count < total and stop():
+            break
+    close = getattr(tallies, "close", None)
+    if close is not None:  # a generator of worker processes' tallies: send no more work
+        close()
+    total = tally.count
     updated = []
     for j, t in enumerate(targets):
         bounds = work.ranges[j]
@@ -225,4 +237,4 @@ def monte_carlo(design: Design, ev: Evaluator, var: SpreadVariables, parts0: np.
             mc_values=tally.kept[:, j] if settings.keep_samples else None,
             mc_min=float(tally.low[j]), mc_max=float(tally.high[j]),
             inside=float(tally.inside[j] / total), mc_histogram=histogram))
-    return updated, tally.passed / total
+    return updated, tally.passed / max(total, 1), total

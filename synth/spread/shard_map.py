@@ -53,24 +53,28 @@ def _run_shards(function: Callable[[int], SampleTally], shards: tuple[int, ...]
     return [function(shard) for shard in shards]
 
 
-def _waves(function: Callable[[int], SampleTally], shards: list[int], jobs: int
-           ) -> Iterator[SampleTally]:
-    items = [tuple(shards[k:k + SHARDS_PER_ITEM])
-             for k in range(0, len(shards), SHARDS_PER_ITEM)]
-    wave = WAVE_ITEMS_PER_JOB * jobs
+def _waves(function: Callable[[int], SampleTally], shards: list[int], jobs: int,
+           fine: bool = False) -> Iterator[SampleTally]:
+    per_item = 1 if fine else SHARDS_PER_ITEM
+    items = [tuple(shards[k:k + per_item]) for k in range(0, len(shards), per_item)]
+    wave = (1 if fine else WAVE_ITEMS_PER_JOB) * jobs
     run = partial(_run_shards, function)
     for first in range(0, len(items), wave):
         for tallies in ordered_map(run, items[first:first + wave], jobs):
             yield from tallies
 
 
-def process_shards(jobs: int) -> ShardMap:
+def process_shards(jobs: int, *, fine: bool = False) -> ShardMap:
     """A shard map over up to ``jobs`` processes (the shards in this one when they are few).
 
     Parameters
     ----------
     jobs : int
         Most processes; 1 runs every shard here, as ``map`` does.
+    fine : bool
+        One shard per item and one item per worker in each wave, for a run that may be
+        told to stop (a time limit): the next wave is sent only when the caller asks for
+        more, so a stop takes effect within about one shard's time, not one coarse wave's.
 
     Returns
     -------
@@ -97,6 +101,6 @@ def process_shards(jobs: int) -> ShardMap:
         if left < PARALLEL_FROM_S:
             yield from map(function, numbers[1:])
             return
-        yield from _waves(function, numbers[1:], jobs)
+        yield from _waves(function, numbers[1:], jobs, fine)
 
     return shard_map

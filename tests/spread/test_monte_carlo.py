@@ -131,3 +131,24 @@ def test_the_figures_do_not_depend_on_keeping_samples():
         h = t.mc_histogram
         want, _ = np.histogram(t.mc_values, bins=len(h.counts), range=(h.low, h.high))
         assert h.counts == tuple(want) and h.below == h.above == 0
+
+
+def test_a_run_told_to_stop_keeps_the_figures_of_the_shards_it_ran():
+    # stop is asked after each merged shard; told to stop after the second, the run has
+    # the figures of a run asked for those two shards' samples (the same seeded shards)
+    design, settings = _divider(4 * SHARD_SIZE + 99)
+    asked = []
+
+    def stop():
+        asked.append(True)
+        return len(asked) >= 2
+
+    stopped = analyse_spread(design, settings=settings, stop=stop)
+    assert len(asked) == 2
+    assert stopped.samples_run == 2 * SHARD_SIZE and stopped.shards == 2
+    two = analyse_spread(design, settings=replace(settings, samples=2 * SHARD_SIZE))
+    assert _figures(stopped) == _figures(two)
+    # never told to stop: the whole run, stop asked once per shard but the last
+    asked.clear()
+    whole = analyse_spread(design, settings=settings, stop=lambda: asked.append(1) or False)
+    assert whole.samples_run == 4 * SHARD_SIZE + 99 and len(asked) == 4

@@ -75,3 +75,26 @@ def test_one_process_or_one_shard_starts_nothing(monkeypatch):
 def test_a_bad_process_count_is_refused(jobs):
     with pytest.raises(ValueError, match="must be a whole number of processes"):
         shard_map.process_shards(jobs)
+
+
+def test_a_fine_map_sends_one_shard_per_worker_and_wave(monkeypatch):
+    # a run that may be told to stop sends its shards one per item, one item per worker
+    # in a wave, so that a stop between waves holds back every shard not yet sent
+    monkeypatch.setattr(shard_map, "PARALLEL_FROM_S", 0.0)
+    waves = []
+    real = shard_map.ordered_map
+
+    def spying(function, items, jobs=1, **kwargs):
+        items = list(items)
+        waves.append(items)
+        return real(function, items, jobs, **kwargs)
+
+    monkeypatch.setattr(shard_map, "ordered_map", spying)
+    tallies = shard_map.process_shards(2, fine=True)(abs, [0, -1, -2, -3, -4, -5, -6])
+    assert [next(tallies) for _ in range(3)] == [0, 1, 2]
+    assert waves == [[(-1,), (-2,)]]  # the first wave only, one shard an item
+    tallies.close()
+    assert waves == [[(-1,), (-2,)]]
+    coarse = list(shard_map.process_shards(2)(abs, [0, -1, -2, -3, -4, -5, -6]))
+    assert coarse == [0, 1, 2, 3, 4, 5, 6]
+    assert waves[1] == [(-1, -2, -3, -4), (-5, -6)]
