@@ -167,3 +167,24 @@ def test_a_smaller_call_writes_into_the_first_columns_of_a_dropped_result():
     del small
     again = ev.evaluate(r[:5])  # a view of the kept arrays is alive: fresh ones
     assert not np.shares_memory(held, again.targets)
+
+
+def test_targets_sharing_a_noise_scale_measure_alike():
+    # two powers, two voltages and two currents: each scale formed once, in its first
+    # target's noise row, and copied to the others [HB-ohm]
+    design = design_from_dict({
+        "source": [{"ref": "V1", "kind": "voltage", "plus": "in", "minus": "gnd",
+                    "value": "9 V"}],
+        "resistor": [{"ref": "R1", "nodes": ["in", "a"], "value": "1k"},
+                     {"ref": "R2", "nodes": ["a", "gnd"], "value": "2k2"},
+                     {"ref": "R3", "nodes": ["a", "gnd"], "value": "4k7"}],
+        "target": [{"power": "R1", "at_most": "50 mW"}, {"voltage": "a", "equals": "5 V"},
+                   {"current": "R2", "at_most": "5 mA"}, {"power": "R3", "at_most": "20 mW"},
+                   {"voltage": ["in", "a"], "at_most": "6 V"},
+                   {"current": "V1", "at_most": "20 mA"}]})
+    ev = Evaluator(design)
+    rng = np.random.default_rng(4)
+    r = ev.weights * 10 ** rng.uniform(-1, 1, (64, len(design.resistors)))
+    fast = compare(ev, r)
+    assert np.all(fast.target_noise[:, 0] == fast.target_noise[:, 3])
+    assert np.all(fast.target_noise[:, 1] == fast.target_noise[:, 4])
