@@ -22,7 +22,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike
 
-from synth.circuit.kernels import as_block
+from synth.circuit.kernels import as_block, refuse_gains, resistance_rows
 from synth.circuit.mesh import MeshSolver
 from synth.circuit.network import Network
 from synth.circuit.solution import MeshSolution
@@ -153,14 +153,8 @@ class IslandSolver:
         -------
         MeshSolution
         """
-        if gains is not None and np.size(gains):
-            raise ValueError("gains: this network has no controlled sources; use "
-                             "ControlledSolver for one that has")
-        r_all = np.asarray(resistances, dtype=float)
-        if r_all.ndim == 1:
-            r_all = r_all[None, :]
-        if r_all.ndim != 2 or r_all.shape[1] != self.n_r:
-            raise ValueError(f"resistances: expected shape (N, {self.n_r}), got {r_all.shape}")
+        refuse_gains(gains)
+        r_all = resistance_rows(resistances, self.n_r)
         n = len(r_all)
         e_all = np.broadcast_to(as_block(voltages, self.n_v, n, "voltages"), (n, self.n_v))
         j_all = np.broadcast_to(as_block(currents, self.n_i, n, "currents"), (n, self.n_i))

@@ -6,7 +6,7 @@ from __future__ import annotations
 
 __all__ = [
     "SparseMap", "as_block", "block_rows", "broadcast_rows", "fill_pattern", "ldl_solve",
-    "node_depths", "resistance_scale",
+    "node_depths", "refuse_gains", "resistance_rows", "resistance_scale",
 ]
 
 import numpy as np
@@ -32,6 +32,24 @@ def as_block(values: ArrayLike | None, count: int, n: int | None, what: str) -> 
         array = array[None, :]
     if array.ndim != 2 or array.shape[1] != count:
         raise ValueError(f"{what}: expected shape (N, {count}) or ({count},), got {array.shape}")
+    return array
+
+
+def refuse_gains(gains: ArrayLike | None) -> None:
+    """Raise ValueError for controlled-source gains given to a solver of a network without
+    controlled sources (None or an empty array is no gains)."""
+    if gains is not None and np.size(gains):
+        raise ValueError("gains: this network has no controlled sources; use "
+                         "ControlledSolver for one that has")
+
+
+def resistance_rows(resistances: ArrayLike, count: int) -> np.ndarray:
+    """``(N, count)`` resistances (ohm) from one candidate's row or N rows."""
+    array = np.asarray(resistances, dtype=float)
+    if array.ndim == 1:
+        array = array[None, :]
+    if array.ndim != 2 or array.shape[1] != count:
+        raise ValueError(f"resistances: expected shape (N, {count}), got {array.shape}")
     return array
 
 

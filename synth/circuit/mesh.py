@@ -42,6 +42,7 @@ from synth.circuit.kernels import (
     fill_pattern,
     ldl_solve,
     node_depths,
+    refuse_gains,
     resistance_scale,
 )
 from synth.circuit.network import Network
@@ -247,9 +248,7 @@ class MeshSolver:
         -------
         MeshSolution
         """
-        if gains is not None and np.size(gains):
-            raise ValueError("gains: this network has no controlled sources; use "
-                             "ControlledSolver for one that has")
+        refuse_gains(gains)
         r_all = np.asarray(resistances, dtype=float)
         n = 1 if r_all.ndim == 1 else len(r_all)
         result = MeshSolution(

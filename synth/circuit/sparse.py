@@ -54,7 +54,13 @@ from typing import Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from synth.circuit.kernels import as_block, block_rows, resistance_scale
+from synth.circuit.kernels import (
+    as_block,
+    block_rows,
+    refuse_gains,
+    resistance_rows,
+    resistance_scale,
+)
 from synth.circuit.network import Network
 from synth.circuit.solution import MeshSolution
 from synth.circuit.topology import UnionFind
@@ -239,14 +245,8 @@ class SparseSolver:
         -------
         MeshSolution
         """
-        if gains is not None and np.size(gains):
-            raise ValueError("gains: this network has no controlled sources; use "
-                             "ControlledSolver for one that has")
-        r_all = np.asarray(resistances, dtype=float)
-        if r_all.ndim == 1:
-            r_all = r_all[None, :]
-        if r_all.ndim != 2 or r_all.shape[1] != self.n_r:
-            raise ValueError(f"resistances: expected shape (N, {self.n_r}), got {r_all.shape}")
+        refuse_gains(gains)
+        r_all = resistance_rows(resistances, self.n_r)
         n = len(r_all)
         e_all = as_block(voltages, self.n_v, n, "voltages")
         j_all = as_block(currents, self.n_i, n, "currents")
