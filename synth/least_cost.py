@@ -23,7 +23,8 @@ alone moves to its next tighter class.
 
 from __future__ import annotations
 
-__all__ = ["ClassChoice", "FrontPoint", "TightenRow", "choose_classes", "class_assignments",
+__all__ = ["FRONT_S", "ClassChoice", "FrontPoint", "TightenRow", "choose_classes",
+           "class_assignments",
            "classed_positions", "tighten_rows", "with_classes"]
 
 import itertools
@@ -48,6 +49,11 @@ from synth.search.problem import SearchProblem
 from synth.spread.records import SpreadResult, SpreadSettings
 from synth.spread.worst_case import WorstCase
 from synth.synthesis import synthesize
+
+FRONT_S = 2.0
+"""Seconds the searches above the least cost may take: they add whole cost levels to the
+trade-off front (what a dearer assignment buys), cheapest first, and prove nothing more
+about the least cost.  The dearest level is searched after them either way."""
 
 _COST_DIGITS = 9
 """Costs equal to this many decimals are one cost level (sums of decimal costs)."""
@@ -138,8 +144,9 @@ class ClassChoice:
         the chosen one (all of them when none meets) and every one at its level was
         searched to the end, exactly, without a time cut.
     front : tuple of FrontPoint
-        The trade-off front, cheapest first; the levels up to the least cost, and
-        the dearest level (every part in its dearest class).
+        The trade-off front, cheapest first: every level up to the least cost, the
+        levels above it that :data:`FRONT_S` leaves time for (whole levels), and the
+        dearest level (every part in its dearest class).
     tighten : tuple of TightenRow
         For each classed part of the chosen design that has a tighter class.
     assignments : int
@@ -152,6 +159,9 @@ class ClassChoice:
         The basis the requirement was judged on.
     why_not_proven : str
         Empty when proven; else the reason.
+    front_complete : bool
+        True when the front holds every cost level (no level between the last one
+        searched above the least cost and the dearest was left out).
     """
 
     result: SynthesisResult
@@ -165,6 +175,7 @@ class ClassChoice:
     elapsed_s: float
     require: str
     why_not_proven: str = ""
+    front_complete: bool = False
 
 
 @dataclass(frozen=True)
@@ -395,6 +406,7 @@ def choose_classes(
     deadline: Deadline | None = None,
     jobs: int = 1,
     progress: Callable[[float], None] | None = None,
+    front_s: float | None = None,
 ) -> ClassChoice:
     """Choose each classed part's class at least total cost, and the values on it.
 
@@ -419,6 +431,9 @@ def choose_classes(
         A running deadline (a command's).
     progress : callable, optional
         Called with the share of the assignments searched (0..1).
+    front_s : float, optional
+        Seconds the levels above the least cost may take, for the front
+        (:data:`FRONT_S` by default; 0: none but the dearest).
 
     Returns
     -------
@@ -454,6 +469,7 @@ def choose_classes(
     it keeps only value sets that hold at every vertex of the tolerance box).
     """
     began = time.perf_counter()
+    front_s = FRONT_S if front_s is None else front_s
     parts = classed_positions(design)
     if not parts:
         raise DesignError(f"{design.origin}: no free part names classes; add classes = "
@@ -468,24 +484,44 @@ def choose_classes(
     tried: list[_Tried] = []
     why = ""
     least: float | None = None
+    front_began: float | None = None  # when the levels above the least cost began
+    front_complete = True
+    level_start = 0  # where the level being searched begins in ``tried``
     for k, (cost, kinds) in enumerate(listed):
         if least is not None and cost > least:
-            break
-        if deadline.expired():
+            # above the least cost the searches only extend the front, for FRONT_S at most;
+            # a level left half-searched is not shown (each point shown is exact)
+            front_began = time.perf_counter() if front_began is None else front_began
+            new_level = cost != tried[-1].cost
+            if deadline.expired() or time.perf_counter() - front_began >= front_s:
+                if not new_level:
+                    del tried[level_start:]
+                front_complete = False
+                break
+            if new_level:
+                level_start = len(tried)
+        elif deadline.expired():
             why = (f"the time limit passed with {k:,} of the {len(listed):,} class "
                    "assignments searched")
             deadline.cut("class search", why, asked=len(listed), done=k)
+            front_complete = False
             break
         tried.append(_try(design, parts, cost, kinds, require, min_yield, deadline, jobs))
         if progress is not None:
             progress((k + 1) / len(listed))
         if tried[-1].meets and least is None:
             least = cost
-    if tried and tried[-1].cost < dearest and not why:
+    if tried and tried[-1].cost < dearest and not why and not deadline.expired():
         # the front's last point: every part in its dearest class, what the most buys
         top_kinds = listed[-1][1]
         tried.append(_try(design, parts, dearest, top_kinds, require, min_yield, deadline, jobs))
-    if not why and any(not t.proven for t in tried):
+    # a front-only search cut short is no exact point of the front
+    searched = len(tried)
+    shown = [t for t in tried if least is None or t.cost <= least or t.proven]
+    front_complete = front_complete and len(shown) == len(tried)
+    tried = shown
+    needed = [t for t in tried if least is None or t.cost <= least]
+    if not why and any(not t.proven for t in needed):
         why = "a value search was cut short or did not finish"
     if not why and require == "yield":
         why = ("a yield is judged on Monte Carlo samples among each assignment's nominal best, "
@@ -503,11 +539,11 @@ def choose_classes(
     best = result.candidates[0] if result.candidates else None
     rows = (tighten_rows(design, by_ref, best.spread)
             if best is not None and best.spread is not None else ())
-    searched = len(tried)
     return ClassChoice(
         result=result, classes={r: c.name for r, c in by_ref.items()} if meeting else None,
         cost=least if meeting else None, proven=not why and result.proven_optimal,
         front=_front(parts, tried, require), tighten=rows, assignments=len(listed),
         searched=searched, elapsed_s=time.perf_counter() - began, require=require,
+        front_complete=front_complete,
         why_not_proven=why or ("" if result.proven_optimal else
                                "the chosen assignment's final search did not finish"))

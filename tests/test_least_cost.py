@@ -269,3 +269,41 @@ def test_operating_point_copies_take_their_part_s_class():
     placed = with_classes(design, parts, tight)
     assert {r.tolerance for r in placed.resistors} == {0.001}
     assert {r.tolerance for r in placed.single.resistors} == {0.001}
+
+
+def _best_meeting_by_pair(window: float, goal: float = 3.3, supply: float = 12.0):
+    """For every class pair: (cost, least worst-case error of its value pairs that hold the
+    window over the box, or None), by the same hand worst case as ``_exhaustive``."""
+    out = []
+    for (s1, t1, c1), (s2, t2, c2) in itertools.product(_CLASSES.values(), repeat=2):
+        r1 = np.array(sorted({v for s in s1 for v in eseries.values(s, 1e3, 1e4)}))
+        r2 = np.array(sorted({v for s in s2 for v in eseries.values(s, 1e3, 1e4)}))
+        a, b = np.meshgrid(r1, r2, indexing="ij")
+        low = supply * b * (1 - t2) / (a * (1 + t1) + b * (1 - t2))
+        high = supply * b * (1 + t2) / (a * (1 - t1) + b * (1 + t2))
+        worst = np.maximum(np.abs(low - goal), np.abs(high - goal)) / goal
+        ok = worst <= window * (1 + 1e-9)
+        out.append((c1 + c2, float(worst[ok].min()) if ok.any() else None))
+    return out
+
+
+def test_with_time_for_it_the_front_holds_every_cost_level_above_the_least_cost():
+    # [CALC-exhaustive]: at every level from the least cost up, the front's error is the
+    # least worst-case error of any class pair at that cost or less, enumerated apart
+    pairs = _best_meeting_by_pair(0.03)
+    choice = choose_classes(_divider(_CLASSES, "3%"), top=1, front_s=60.0)
+    assert choice.proven and choice.cost == pytest.approx(3.0) and choice.front_complete
+    levels = sorted({round(cost, 9) for cost, _ in pairs})
+    assert [round(p.cost, 9) for p in choice.front] == levels
+    for point in choice.front:
+        if point.cost < choice.cost:
+            continue
+        expected = min(e for c, e in pairs if e is not None and c <= point.cost + 1e-9)
+        assert point.meets and point.error == pytest.approx(expected, rel=1e-9)
+    assert choice.searched == len(pairs)
+    # without that time: the levels up to the least cost and the dearest, said incomplete
+    short = choose_classes(_divider(_CLASSES, "3%"), top=1, front_s=0.0)
+    assert short.proven and short.cost == choice.cost and not short.front_complete
+    assert [round(p.cost, 9) for p in short.front] == [c for c in levels
+                                                       if c <= 3.0 + 1e-9] + [16.0]
+    assert short.front[-1].error == pytest.approx(choice.front[-1].error, rel=1e-12)

@@ -61,6 +61,10 @@ def classes_text(choice: ClassChoice) -> str:
              _classes(p.classes), str(p.assignments)] for p in choice.front]
     lines.append(tabulate(rows, headers=["cost", figure.removeprefix("best "), "meets",
                                          "classes", "assignments"], disable_numparse=True))
+    if not choice.front_complete and len(choice.front) > 1:
+        lines.append(f"  the cost levels between {_cost(choice.front[-2].cost)} and "
+                     f"{_cost(choice.front[-1].cost)} were not searched (the front's time "
+                     "ran out); each level shown is exact")
     if choice.tighten:
         lines.append("")
         lines.append("which part to tighten (RSS of each target if that part alone moves to "
@@ -82,6 +86,7 @@ def classes_json(choice: ClassChoice) -> dict[str, Any]:
         "assignments": choice.assignments,
         "searched": choice.searched,
         "elapsed_s": choice.elapsed_s,
+        "front_complete": choice.front_complete,
         "front": [{"cost": p.cost, "classes": dict(p.classes),
                    "cost_of_design": p.cost_of_design, "error": json_number(p.error),
                    "yield_low": json_number(p.yield_low), "meets": p.meets,
