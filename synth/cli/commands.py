@@ -39,6 +39,7 @@ from synth.cli.streams import (
     check_output,
     check_plot_folder,
     plot_files,
+    plots_left_out,
     read_design,
     write_files,
     write_output,
@@ -125,15 +126,19 @@ def check_command(design_file: str, as_json: bool, verify: bool, time_limit: flo
     check_plot_folder(spread.plots)
     settings = spread.settings()
     design = read_design(design_file)
-    result = check(design, verify=verify, spread=settings, jobs=jobs,
-                   deadline=Deadline(time_limit, start=command_start()))
+    deadline = Deadline(time_limit, start=command_start())
+    result = check(design, verify=verify, spread=settings, jobs=jobs, deadline=deadline)
     written = []
     if spread.plots:
         from synth.report.plots import check_pictures
         from synth.spread.range_curve import range_curves
 
         curves = range_curves(result.design, result.positions, result.values)
-        plots = plot_files(check_pictures(result, curves), spread.plots)
+        figures = check_pictures(result, curves)
+        plots = plot_files(figures, spread.plots, deadline)
+        note = plots_left_out(figures, plots)
+        if note is not None:
+            click.echo(f"rnsynth: note: {note}", err=True)
         written = write_files(plots, force=force, folder=spread.plots if plots else None)
     if as_json:
         emit_json(check_json(result))

@@ -33,6 +33,7 @@ from synth.cli.streams import (
     check_output,
     check_plot_folder,
     plot_files,
+    plots_left_out,
     write_files,
     write_output,
 )
@@ -74,8 +75,12 @@ def _plots(design: Design, result: SynthesisResult, search: SearchOptions,
     best = result.candidates[0].check
     curves = range_curves(result.design, best.positions, best.values)
     extra = {"curves": curves} if curves else {}  # only designs of operating points have them
-    return plot_files(design_pictures(result, cost=search.plot_axis, front=front, **extra),
-                      spread.plots)
+    figures = design_pictures(result, cost=search.plot_axis, front=front, **extra)
+    files = plot_files(figures, spread.plots, deadline)
+    note = plots_left_out(figures, files)
+    if note is not None:
+        click.echo(f"rnsynth: note: {note}", err=True)
+    return files
 
 
 def run_design(design: Design, search: SearchOptions, spread: SpreadOptions,

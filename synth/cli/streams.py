@@ -26,6 +26,7 @@ from synth.errors import DesignError
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
 
+    from synth.deadline import Deadline
     from synth.design.model import Design
 
 STREAM = "-"
@@ -101,15 +102,36 @@ def _make_folder(folder: Path) -> list[Path]:
     return missing[::-1]
 
 
-def plot_files(figures: Sequence[tuple[str, Figure]], folder: str
-               ) -> list[tuple[Path, bytes]]:
-    """Each ``(stem, figure)`` rendered as ``folder/stem.png`` and ``folder/stem.svg``."""
+def plot_files(figures: Sequence[tuple[str, Figure]], folder: str,
+               deadline: Deadline | None = None) -> list[tuple[Path, bytes]]:
+    """Each ``(stem, figure)`` rendered as ``folder/stem.png`` and ``folder/stem.svg``.
+
+    With a limited ``deadline`` the figures are drawn in order while it lasts, the first
+    one always; the note of :func:`plots_left_out` names the rest.
+    """
     from synth.report.pictures.axes import FORMATS, figure_bytes
 
     check_plot_folder(folder)
     out = Path(folder)
-    return [(out / f"{stem}.{form}", figure_bytes(figure, form))
-            for stem, figure in figures for form in FORMATS]
+    files: list[tuple[Path, bytes]] = []
+    for k, (stem, figure) in enumerate(figures):
+        if k and deadline is not None and deadline.expired():
+            break
+        files.extend((out / f"{stem}.{form}", figure_bytes(figure, form)) for form in FORMATS)
+    return files
+
+
+def plots_left_out(figures: Sequence[tuple[str, Figure]],
+                   files: Sequence[tuple[Path, bytes]]) -> str | None:
+    """A one-line note naming the figures :func:`plot_files` left out (None: none)."""
+    drawn = {path.stem for path, _ in files}
+    left = [stem for stem, _ in figures if stem not in drawn]
+    if not left:
+        return None
+    from synth.errors import name_list
+
+    return (f"the time limit left {len(left)} of {len(figures)} plots undrawn "
+            f"({name_list(left)}); a longer --time-limit draws them")
 
 
 def write_files(outputs: Sequence[tuple[str | Path, str | bytes]], *, force: bool,

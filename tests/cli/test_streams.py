@@ -384,3 +384,26 @@ def test_a_failed_plot_write_leaves_no_partial_file_nor_folder(tmp_path, monkeyp
     with pytest.raises(DesignError, match=r"could not be written \(No space left on device\)"):
         write_files(plots, force=False, folder=str(tmp_path / "new"))
     assert names(tmp_path) == []
+
+
+@pytest.mark.parametrize("command", ["design", "check"])
+def test_plots_past_the_time_limit_are_left_out_and_named(tmp_path, command) -> None:
+    # the limit has passed when the plots come: the first figure is drawn, the rest are
+    # named in one note and not written; without a limit every figure is drawn
+    example = {"design": "railway_signal.toml", "check": "bench_supply.toml"}[command]
+    path = next(p for p in EXAMPLES if p.name == example)
+    cut = CliRunner().invoke(cli, [command, str(path), "--samples", "100", "--plots",
+                                   str(tmp_path / "cut"), "--time-limit", "1e-6"])
+    assert cut.exit_code in (0, 1), cut.output + cut.stderr
+    assert "Traceback" not in cut.output + cut.stderr
+    notes = [line for line in cut.stderr.splitlines() if "plots undrawn" in line]
+    assert len(notes) == 1
+    drawn = sorted(p.name for p in (tmp_path / "cut").iterdir())
+    assert len(drawn) == 2 and {p.rsplit(".", 1)[1] for p in drawn} == {"png", "svg"}
+    whole = CliRunner().invoke(cli, [command, str(path), "--samples", "100", "--plots",
+                                     str(tmp_path / "whole")])
+    assert whole.exit_code in (0, 1) and "plots undrawn" not in whole.stderr
+    every = {p.stem for p in (tmp_path / "whole").iterdir()}
+    left = notes[0].split("(", 1)[1].split(")", 1)[0].split(", ")
+    assert every == {drawn[0].rsplit(".", 1)[0], *left}
+    assert f"left {len(left)} of {len(every)} plots" in notes[0]
