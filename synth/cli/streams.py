@@ -11,8 +11,8 @@ by the library as figures and only written here, all of a run's plots as one out
 from __future__ import annotations
 
 __all__ = [
-    "STREAM", "check_output", "check_plot_folder", "plot_files", "read_design", "write_files",
-    "write_output",
+    "STREAM", "check_output", "check_plot_folder", "plot_files", "plots_left_out", "read_design",
+    "write_files", "write_output",
 ]
 
 from collections.abc import Sequence
