@@ -259,21 +259,27 @@ def test_three_runs_of_one_board_write_the_same_bytes(board, work):
 
 
 def test_a_time_limit_too_short_for_any_cover_keeps_each_networks_best(board):
-    # each network's small search still runs whole (each is given a least share), the
-    # consolidation has no time at all: the BOM falls back to every network's own best
+    # the consolidation has no time at all.  Each network's small search gets a least
+    # share, so it usually runs whole and the BOM falls back to every network's own best;
+    # on a slow machine the limit cuts a network to one candidate, which the BOM says.
+    # Either way nothing is consolidated and nothing unproven is called proven.
     result = run("bom", board / "board.toml", "--format", "json", "--time-limit", "1e-9")
     assert result.exit_code == 0, result.output
-    doc = json.loads(result.stdout)
-    assert not [n for n in doc["notes"] if n.startswith("network ")]  # none was cut
-    assert all(n["pool"] > 1 for n in doc["networks"])
-    c = doc["consolidation"]
-    assert c["fallback"] and c["cut"] == "time limit" and not c["optimal"]
-    assert not any(s["proven"] for s in c["stages"])
-    assert c["lines_after"] == c["lines_before"]
-    assert ("consolidation: no cover found within the time limit; every network keeps its "
-            "own best candidate (not consolidated)") in doc["notes"]
-    assert "not consolidated: no cover found within the time limit" in result.stderr
     assert "Traceback" not in result.output
+    doc = json.loads(result.stdout)
+    c = doc["consolidation"]
+    assert c["lines_after"] == c["lines_before"] and not c["optimal"]
+    cut = [n["name"] for n in doc["networks"]
+           if f"network {n['name']}: search not proven optimal" in doc["notes"]]
+    assert all(n["pool"] == 1 for n in doc["networks"] if n["name"] in cut)
+    if any(n["pool"] > 1 for n in doc["networks"]):  # a choice was left to consolidate
+        assert c["fallback"] and c["cut"] == "time limit"
+        assert not any(s["proven"] for s in c["stages"])
+        assert ("consolidation: no cover found within the time limit; every network keeps "
+                "its own best candidate (not consolidated)") in doc["notes"]
+        assert "not consolidated: no cover found within the time limit" in result.stderr
+    else:  # every network cut to one candidate: nothing to choose, each one unproven
+        assert sorted(cut) == sorted(n["name"] for n in doc["networks"])
 
 
 @pytest.mark.parametrize("value", ["0", "-1", "inf", "nan"])
