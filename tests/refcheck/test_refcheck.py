@@ -336,10 +336,14 @@ def test_min_loss_pad() -> None:
     # 86.6025) against the 75 ohm it must present: rounding to 5e-5 ohm moves Zin by < 1e-6
     i_in = float(sol.vsource_current["V1"][0])
     exact_in = solve_exact(net).vsource_current["V1"]
-    # both solves against the handbook's 75 ohm (the pad matches the 75 ohm side when the
-    # 50 ohm side is loaded by 50 ohm), not only against each other
-    assert 1.0 / i_in == pytest.approx(75.0, rel=1e-12)
-    assert float(1 / exact_in) == pytest.approx(75.0, rel=1e-12)
+    # the handbook's matched condition by the series and parallel rules alone [HB-ohm]:
+    # R1 + R2 || 50 is the 75 ohm the pad must present (this fails if the r1, r2 formulas
+    # above are wrong, whatever either solver does)
+    by_hand = Fraction(r1) + Fraction(r2) * 50 / (Fraction(r2) + 50)
+    assert float(by_hand) == pytest.approx(75.0, rel=1e-12)
+    # each solve against that hand figure (these fail if a solver is wrong)
+    assert 1.0 / i_in == pytest.approx(float(by_hand), rel=1e-12)
+    assert float(1 / exact_in) == pytest.approx(float(by_hand), rel=1e-12)
     printed = Network(resistors=[("R1", "in", "out", 43.3013), ("R2", "out", "gnd", 86.6025),
                                  ("RL", "out", "gnd", 50.0)],
                       vsources=[("V1", "in", "gnd", 1.0)])

@@ -62,6 +62,14 @@ def test_a_matched_pairs_ratio_spreads_by_the_ratio_tolerance():
     # and (1 - A)/(1 - A + ρ), the common part at its low end
     assert ratio.worst_high - 1 == pytest.approx(RHO / (1 - A), rel=1e-9)
     assert 1 - ratio.worst_low == pytest.approx(RHO / (1 - A + RHO), rel=1e-9)
+    # the same two ends by brute force over the model's box, apart from the hand formulas:
+    # R1/R2 = (1 + c + r1)/(1 + c + r2), c in ±(A - ρ/2), r1, r2 in ±ρ/2 [CP-matched-array]
+    c, r1, r2 = np.meshgrid(np.linspace(-(A - RHO / 2), A - RHO / 2, 201),
+                            np.linspace(-RHO / 2, RHO / 2, 21),
+                            np.linspace(-RHO / 2, RHO / 2, 21), indexing="ij")
+    scanned = (1 + c + r1) / (1 + c + r2)
+    assert ratio.worst_low == pytest.approx(scanned.min(), rel=1e-12)
+    assert ratio.worst_high == pytest.approx(scanned.max(), rel=1e-12)
     assert ratio.exact and ratio.method == "vertices, common mode monotone"
     # two independent ±A parts: about ±2A, ten times wider here [CP-matched-array]
     assert independent["R1/R2"].worst_high - 1 == pytest.approx(2 * A, rel=2e-3)
