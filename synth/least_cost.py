@@ -23,9 +23,9 @@ alone moves to its next tighter class.
 
 from __future__ import annotations
 
-__all__ = ["FRONT_S", "ClassChoice", "FrontPoint", "TightenRow", "choose_classes",
+__all__ = ["FRONT_S", "ClassChoice", "FrontPoint", "choose_classes",
            "class_assignments",
-           "classed_positions", "tighten_rows", "with_classes"]
+           "classed_positions", "with_classes"]
 
 import itertools
 import math
@@ -33,22 +33,17 @@ import time
 from collections.abc import Callable
 from dataclasses import dataclass, replace
 
-import numpy as np
-
-from synth.catalog.part_classes import PartClass, tighter_class
-from synth.circuit.measure import Evaluator
+from synth.catalog.part_classes import PartClass
 from synth.deadline import Deadline
 from synth.design.model import Design, Resistor
 from synth.errors import DesignError
 from synth.results import Candidate, SynthesisResult
-from synth.search.choices import choices_for
-from synth.search.ideal import ideal_values
-from synth.search.local import local_seeds
 from synth.search.parallel import search
-from synth.search.problem import SearchProblem
-from synth.spread.records import SpreadResult, SpreadSettings
+from synth.search.start import start_search
+from synth.spread.records import SpreadSettings
 from synth.spread.worst_case import WorstCase
 from synth.synthesis import synthesize
+from synth.tighten import TightenRow, tighten_rows
 
 FRONT_S = 2.0
 """Seconds the searches above the least cost may take: they add whole cost levels to the
@@ -90,40 +85,6 @@ class FrontPoint:
     yield_low: float | None
     meets: bool
     assignments: int
-
-
-@dataclass(frozen=True)
-class TightenRow:
-    """What one target's spread becomes when one part moves to its next tighter class.
-
-    Attributes
-    ----------
-    ref : str
-        The position.
-    from_class, to_class : str
-        Its class in the chosen design, and the next tighter one it may take.
-    added_cost : float
-        The cost of the move (class cost difference × parts).
-    target : str
-        The target's label.
-    rss_now, rss_after : float
-        The target's root-sum-square deviation, in the target's unit, before and
-        after (the values kept; first order, see :func:`tighten_rows`).
-    nominal : float
-        The target's nominal value (for a relative figure).
-    share : float
-        The part's share of the target's RSS variance now (0..1).
-    """
-
-    ref: str
-    from_class: str
-    to_class: str
-    added_cost: float
-    target: str
-    rss_now: float
-    rss_after: float
-    nominal: float
-    share: float
 
 
 @dataclass(frozen=True)
@@ -266,31 +227,14 @@ def _box_search(variant: Design, robust: bool, deadline: Deadline, jobs: int
     the nearest designs and the limit-cost search that follow there (the chosen
     assignment's final :func:`synthesize` does those).
     """
-    choices = [choices_for(r, variant.origin) for r in variant.free_resistors]
-    evaluator = Evaluator(variant)
-    # the solver's rules on the lowest, middle and highest choices, as synthesize applies them
-    probes = np.tile([r.value if r.value is not None else 1.0 for r in variant.resistors],
-                     (3, 1))
-    column = {r.ref: k for k, r in enumerate(variant.resistors)}
-    for choice in choices:
-        probes[:, column[choice.ref]] = choice.values[[0, len(choice) // 2, -1]]
-    evaluator.check_regulators(probes)
-    evaluator.check_ratios(probes)
-    worst = WorstCase(variant, evaluator)
-    problem = SearchProblem(variant, evaluator, choices, relaxed=False)
-    ideal = ideal_values(variant, evaluator)
-    budget = deadline.budget(_LOCAL_SHARE)
-    seeds = (local_seeds(problem, ideal, time_limit_s=None if budget is None else budget)
-             if ideal else None)
-    outcome = search(variant, evaluator, choices, top=1, time_limit_s=deadline.budget(0.7),
-                     seeds=seeds, target_ranges=worst.ranges,
-                     robust=worst.holds if robust else None, jobs=jobs)
+    start = start_search(variant, deadline)
+    worst = WorstCase(variant, start.evaluator)
+    outcome = search(variant, start.evaluator, start.choices, top=1,
+                     time_limit_s=deadline.budget(0.7), seeds=start.seeds,
+                     target_ranges=worst.ranges, robust=worst.holds if robust else None,
+                     jobs=jobs)
     found = outcome.ranked.objective
     return (float(found[0]) if len(found) else None), outcome.proven
-
-
-_LOCAL_SHARE = 0.1
-"""Share of the time left the local descent that seeds a box search may take."""
 
 
 def _try(design: Design, parts: tuple[Resistor, ...], cost: float,
@@ -339,59 +283,6 @@ def _front(parts: tuple[Resistor, ...], tried: list[_Tried], require: str
             cost_of_design=best.cost, error=best.error, yield_low=best.yield_low,
             meets=best.meets, assignments=len(level)))
     return tuple(points)
-
-
-def tighten_rows(design: Design, classes: dict[str, PartClass],
-                 spread: SpreadResult) -> tuple[TightenRow, ...]:
-    """Each target's RSS spread when one classed part moves to its next tighter class.
-
-    Parameters
-    ----------
-    design : Design
-        The design (its classed positions and targets).
-    classes : dict of str to PartClass
-        The class each classed position is in.
-    spread : SpreadResult
-        The spread of the design at its chosen values (its RSS terms).
-
-    Returns
-    -------
-    tuple of TightenRow
-        Position by position (file order), target by target; a part in its tightest
-        class has none.
-
-    Notes
-    -----
-    First-order propagation (the GUM's law of propagation of uncertainty, JCGM
-    100:2008 eq. 10): a target's RSS variance is the sum of each quantity's
-    squared sensitivity-weighted half-width.  Moving one part from tolerance
-    ``t`` to ``t'`` scales its tolerance term by ``(t'/t)**2`` and its
-    temperature-drift term by ``(tcr'/tcr)**2`` (a part of zero TCR keeps its
-    zero drift term); the other terms and the values stay as they are.
-    """
-    rows = []
-    for resistor in classed_positions(design):
-        now = classes[resistor.ref]
-        nxt = tighter_class(now, resistor.classes)
-        if nxt is None:
-            continue
-        tol_scale = (nxt.tolerance / now.tolerance) ** 2
-        now_tcr, next_tcr = now.tcr or 0.0, nxt.tcr or 0.0
-        drift_scale = (next_tcr / now_tcr) ** 2 if now_tcr > 0 else 1.0
-        for target in spread.targets:
-            mine = [target.rss_terms[ref] for ref in resistor.part_refs
-                    if ref in target.rss_terms]
-            variance = sum(tol + drift for tol, drift in target.rss_terms.values())
-            part = sum(tol + drift for tol, drift in mine)
-            after = variance - part + sum(tol * tol_scale + drift * drift_scale
-                                          for tol, drift in mine)
-            rows.append(TightenRow(
-                ref=resistor.ref, from_class=now.name, to_class=nxt.name,
-                added_cost=(nxt.cost - now.cost) * resistor.position.count,
-                target=target.label, rss_now=math.sqrt(max(variance, 0.0)),
-                rss_after=math.sqrt(max(after, 0.0)), nominal=target.nominal,
-                share=part / variance if variance > 0 else 0.0))
-    return tuple(rows)
 
 
 def choose_classes(
@@ -537,7 +428,7 @@ def choose_classes(
                         deadline=deadline, jobs=jobs)
     by_ref = dict(zip((r.ref for r in parts), kinds, strict=True))
     best = result.candidates[0] if result.candidates else None
-    rows = (tighten_rows(design, by_ref, best.spread)
+    rows = (tighten_rows(classed_positions(design), by_ref, best.spread)
             if best is not None and best.spread is not None else ())
     return ClassChoice(
         result=result, classes={r: c.name for r, c in by_ref.items()} if meeting else None,

@@ -29,63 +29,21 @@ from synth.design.model import REQUIREMENTS, Design
 from synth.errors import DesignError
 from synth.results import Candidate, Problem, SynthesisResult, TargetReport
 from synth.search.branch_and_bound import SearchOutcome
-from synth.search.choices import Choices, choices_for, combination_count, values_of_row
-from synth.search.ideal import ideal_values
-from synth.search.local import local_seeds
+from synth.search.choices import Choices, combination_count, values_of_row
 from synth.search.orders import RANKINGS
 from synth.search.parallel import search
 from synth.search.problem import SearchProblem
 from synth.search.ranking import TIE_TOLERANCE
+from synth.search.start import start_search
 from synth.spread.analyse import analyse_spread
 from synth.spread.fit import fitted_run
 from synth.spread.records import SpreadSettings
 from synth.spread.shard_map import POOL_START_S, process_shards
 from synth.spread.worst_case import WorstCase
 
-_GRID_UP_TO = 12
-"""Up to this many free positions, every rounding up or down of the ideal values is a seed."""
-
-
-def _seeds(problem: SearchProblem, ideal: dict[str, float], deadline: Deadline
-           ) -> np.ndarray | None:
-    """Seeds of the search: the roundings of the ideal values, and a local descent's points."""
-    choices = problem.choices
-    if not ideal:
-        return None
-    budget = deadline.budget(_LOCAL_SHARE)
-    found = [local_seeds(problem, ideal, time_limit_s=None if budget is None
-                         else max(budget, _LOCAL_LEAST_S))]
-    if len(choices) <= _GRID_UP_TO and all(c.ref in ideal for c in choices):
-        around = []
-        for choice in choices:
-            at = int(np.searchsorted(choice.values, ideal[choice.ref]))
-            around.append(sorted({min(max(at - 1, 0), len(choice) - 1),
-                                  min(at, len(choice) - 1)}))
-        grid = np.meshgrid(*[np.array(a) for a in around], indexing="ij")
-        found.append(np.stack([g.ravel() for g in grid], axis=1).astype(np.int64))
-    return np.concatenate(found)
-
-
-_LOCAL_SHARE = 0.1
-"""Share of the time left the local descent may take under a limit."""
-
-_LOCAL_LEAST_S = 0.1
-"""Seconds the local descent may take however little time is left (an incumbent at once)."""
-
 
 def _series_label(value: float, choice: Choices) -> str:
     return coarsest_series(value) or choice.label
-
-
-def _probes(design: Design, choices: list[Choices]) -> np.ndarray:
-    """``(3, resistors)`` value sets: every free part at its lowest, middle and highest choice."""
-    base = np.array([r.value if r.value is not None else 1.0 for r in design.resistors])
-    probes = np.tile(base, (3, 1))
-    index = {r.ref: k for k, r in enumerate(design.resistors)}
-    for choice in choices:
-        values = choice.values
-        probes[:, index[choice.ref]] = values[[0, len(values) // 2, -1]]
-    return probes
 
 
 _RECHECK_BLOCK = 2048
@@ -431,16 +389,10 @@ def synthesize(
     require, min_yield = _basis(design, rank_by, require, min_yield, time_limit_s)
     deadline = deadline or Deadline(time_limit_s)
     cuts_before = len(deadline.cuts)
-    choices = [choices_for(r, design.origin) for r in design.free_resistors]
-    evaluator = Evaluator(design)
+    start = start_search(design, deadline)
+    choices, evaluator, ideal, seeds = start.choices, start.evaluator, start.ideal, start.seeds
     worst = (WorstCase(design, evaluator)
              if rank_by == "worst-case" or require == "worst-case" else None)
-    probes = _probes(design, choices)
-    evaluator.check_regulators(probes)  # the solver's rules, as check applies them
-    evaluator.check_ratios(probes)
-    ideal = ideal_values(design, evaluator)
-    seeds = _seeds(SearchProblem(design, evaluator, choices, relaxed=False), ideal,
-                   deadline)
     by_yield = rank_by == "yield" or require == "yield"
     asked = max(top, YIELD_POOL) if by_yield else top
     ranked_top, per_candidate = _ranked_top(design, evaluator, choices, seeds, asked,

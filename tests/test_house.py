@@ -22,7 +22,7 @@ LAYERS = (
     ("bom",),
     ("sweep", "sweep_keys"),
     ("least_cost", "checking", "synthesis", "front"),
-    ("binding",),
+    ("binding", "tighten"),
     ("results", "cautions", "linearity"),
     ("search",),
     ("spread",),

@@ -9,8 +9,9 @@ from typing import Any
 
 from tabulate import tabulate
 
-from synth.least_cost import ClassChoice, FrontPoint, TightenRow
+from synth.least_cost import ClassChoice, FrontPoint
 from synth.report.numbers import json_number
+from synth.tighten import TightenRow
 
 
 def _cost(value: float) -> str:
