@@ -37,7 +37,7 @@ from synth.catalog.part_classes import PartClass
 from synth.deadline import Deadline
 from synth.design.model import Design, Resistor
 from synth.errors import DesignError
-from synth.results import Candidate, SynthesisResult
+from synth.results import SynthesisResult
 from synth.search.parallel import search
 from synth.search.start import start_search
 from synth.spread.records import SpreadSettings
@@ -211,11 +211,6 @@ def with_classes(design: Design, parts: tuple[Resistor, ...],
                        single, resistors=tuple(placed(r) for r in single.resistors)))
 
 
-def _yield_low(candidate: Candidate) -> float | None:
-    spread = candidate.spread
-    return None if spread is None or spread.yield_interval is None else spread.yield_interval[0]
-
-
 def _box_search(variant: Design, robust: bool, deadline: Deadline, jobs: int
                 ) -> tuple[float | None, bool]:
     """The least worst-case objective over the box of the variant's value sets, and the proof.
@@ -254,10 +249,10 @@ def _try(design: Design, parts: tuple[Resistor, ...], cost: float,
     proven = found.proven_optimal
     best = found.candidates[0] if found.candidates else None
     if found.feasible and best is not None:
-        return _Tried(cost, kinds, True, best.objective, _yield_low(best), proven)
+        return _Tried(cost, kinds, True, best.objective, best.yield_low, proven)
     if require == "yield":  # the nearest by yield, with its yield
         return _Tried(cost, kinds, False, None if best is None else best.objective,
-                      None if best is None else _yield_low(best), proven)
+                      None if best is None else best.yield_low, proven)
     return _Tried(cost, kinds, False, None, None, proven)
 
 

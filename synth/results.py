@@ -303,6 +303,12 @@ class Candidate:
     spread: SpreadResult | None = None
 
     @property
+    def yield_low(self) -> float | None:
+        """The 95 % lower bound of the Monte Carlo yield; None without a Monte Carlo."""
+        spread = self.spread
+        return None if spread is None or spread.yield_interval is None else spread.yield_interval[0]
+
+    @property
     def hottest(self) -> PartReport | None:
         """The resistor using the largest share of its allowed dissipation."""
         rated = [p for p in self.parts if p.kind == "resistor" and p.utilization is not None]

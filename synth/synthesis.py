@@ -300,10 +300,8 @@ def _on_basis(design: Design, candidate: Candidate) -> Candidate:
 
 
 def _yield_low(candidate: Candidate) -> float:
-    spread = candidate.spread
-    if spread is None or spread.yield_interval is None:
-        return 0.0
-    return spread.yield_interval[0]
+    """The candidate's yield lower bound, 0 without a Monte Carlo (for ranking by yield)."""
+    return candidate.yield_low or 0.0
 
 
 def synthesize(
